@@ -1,0 +1,22 @@
+import { z } from "zod";
+import { TRIAL_ROLES } from "@/db/types";
+
+export const createAccountSchema = z.object({
+  name: z.string().trim().min(1, "Enter the person's name.").max(120, "The name can be at most 120 characters."),
+  email: z.string().trim().min(1, "Enter an e-mail address.").max(254, "The e-mail address is too long.").email("Enter a valid e-mail address."),
+  password: z
+    .string()
+    .min(12, "The password must be at least 12 characters.")
+    .max(200, "The password can be at most 200 characters."),
+  isAdmin: z.preprocess((v) => v === "on" || v === "true" || v === true, z.boolean()),
+});
+
+export const assignRoleSchema = z.object({
+  userId: z.coerce.number().int("Choose a person.").positive("Choose a person."),
+  trialId: z.coerce.number().int("Choose a trial.").positive("Choose a trial."),
+  role: z.enum(TRIAL_ROLES as [string, ...string[]], { message: "Choose a role." }),
+});
+
+export const removeRoleSchema = z.object({ membershipId: z.coerce.number().int().positive() });
+
+export type FormState = { ok?: string; error?: string; fieldErrors?: Record<string, string[] | undefined> };

@@ -1,0 +1,3 @@
+export default function Loading() {
+  return <p className="text-sm text-stone-500" role="status">Loading…</p>;
+}

@@ -1,0 +1,56 @@
+"use client";
+import { useState, type FormEvent } from "react";
+import { signIn } from "next-auth/react";
+import { useRouter } from "next/navigation";
+import { Button } from "./ui/button";
+import { Field, TextInput } from "./ui/field";
+import { Banner } from "./ui/banner";
+
+export function SignInForm() {
+  const router = useRouter();
+  const [error, setError] = useState<string | null>(null);
+  const [fieldErrors, setFieldErrors] = useState<{ email?: string; password?: string }>({});
+  const [pending, setPending] = useState(false);
+
+  async function onSubmit(e: FormEvent<HTMLFormElement>) {
+    e.preventDefault();
+    const form = new FormData(e.currentTarget);
+    const email = String(form.get("email") ?? "").trim();
+    const password = String(form.get("password") ?? "");
+    const fe: typeof fieldErrors = {};
+    if (!email) fe.email = "Enter your e-mail address.";
+    else if (email.length > 254 || !/^[^\s@]+@[^\s@]+$/.test(email)) fe.email = "Enter a valid e-mail address.";
+    if (!password) fe.password = "Enter your password.";
+    setFieldErrors(fe);
+    setError(null);
+    if (fe.email || fe.password) return;
+    setPending(true);
+    const res = await signIn("credentials", { email, password, redirect: false });
+    setPending(false);
+    if (!res || res.error) {
+      setError(
+        res?.error && res.error !== "CredentialsSignin"
+          ? res.error
+          : "The e-mail address or password is not correct. Check both and try again.",
+      );
+      return;
+    }
+    router.push("/trials");
+    router.refresh();
+  }
+
+  return (
+    <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4" aria-label="Sign in">
+      {error ? <Banner tone="danger">{error}</Banner> : null}
+      <Field label="E-mail" name="email" error={fieldErrors.email}>
+        <TextInput id="email" name="email" type="email" autoComplete="username" maxLength={254} invalid={!!fieldErrors.email} />
+      </Field>
+      <Field label="Password" name="password" error={fieldErrors.password}>
+        <TextInput id="password" name="password" type="password" autoComplete="current-password" maxLength={200} invalid={!!fieldErrors.password} />
+      </Field>
+      <Button type="submit" disabled={pending}>
+        {pending ? "Signing in…" : "Sign in"}
+      </Button>
+    </form>
+  );
+}

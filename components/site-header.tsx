@@ -1,0 +1,37 @@
+import Link from "next/link";
+import { currentUser } from "@/lib/auth";
+import { SignOutButton } from "./sign-out-button";
+
+function CairnMark() {
+  // Three stacked stones.
+  return (
+    <svg aria-hidden="true" width="26" height="26" viewBox="0 0 26 26">
+      <ellipse cx="13" cy="21" rx="10" ry="4" fill="#5e584c" />
+      <ellipse cx="13" cy="14" rx="7" ry="3.4" fill="#797263" />
+      <ellipse cx="13" cy="8" rx="4.4" ry="2.6" fill="#3f7d4f" />
+    </svg>
+  );
+}
+
+export async function SiteHeader() {
+  const user = await currentUser().catch(() => null);
+  return (
+    <header className="border-b border-stone-200 bg-white">
+      <div className="mx-auto flex max-w-7xl items-center justify-between px-5 py-3">
+        <Link href="/trials" className="flex items-center gap-2 text-lg font-semibold text-stone-900 no-underline">
+          <CairnMark /> Cairn
+        </Link>
+        {user ? (
+          <nav aria-label="Account" className="flex items-center gap-4 text-sm">
+            <Link href="/trials">Trials</Link>
+            {user.isAdmin ? <Link href="/admin">Administration</Link> : null}
+            <span className="text-stone-600" data-testid="signed-in-as">
+              {user.name}
+            </span>
+            <SignOutButton />
+          </nav>
+        ) : null}
+      </div>
+    </header>
+  );
+}

@@ -1,0 +1,44 @@
+import type { InputHTMLAttributes, ReactNode, SelectHTMLAttributes, TextareaHTMLAttributes } from "react";
+
+/** A labelled input with its error announced politely next to it. */
+export function Field({
+  label,
+  name,
+  error,
+  hint,
+  children,
+}: {
+  label: string;
+  name: string;
+  error?: string | string[];
+  hint?: string;
+  children: ReactNode;
+}) {
+  const msg = Array.isArray(error) ? error[0] : error;
+  return (
+    <div className="flex flex-col gap-1">
+      <label htmlFor={name} className="text-sm font-medium text-stone-700">
+        {label}
+      </label>
+      {children}
+      {hint && !msg ? <p className="text-xs text-stone-500">{hint}</p> : null}
+      <p id={`${name}-error`} aria-live="polite" className="min-h-0 text-xs text-berry-700">
+        {msg ?? ""}
+      </p>
+    </div>
+  );
+}
+
+const INPUT = "rounded-md border border-stone-300 bg-white px-3 py-2 text-sm text-stone-900 placeholder:text-stone-400 focus:border-lichen-600 aria-[invalid=true]:border-berry-600";
+
+export function TextInput({ invalid, className = "", ...rest }: InputHTMLAttributes<HTMLInputElement> & { invalid?: boolean }) {
+  return <input className={`${INPUT} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;
+}
+
+export function SelectInput({ invalid, className = "", ...rest }: SelectHTMLAttributes<HTMLSelectElement> & { invalid?: boolean }) {
+  return <select className={`${INPUT} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;
+}
+
+export function TextArea({ invalid, className = "", ...rest }: TextareaHTMLAttributes<HTMLTextAreaElement> & { invalid?: boolean }) {
+  return <textarea className={`${INPUT} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;
+}

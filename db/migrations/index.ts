@@ -1,0 +1,45 @@
+/**
+ * The ordered list of migrations, imported statically so knex needs no runtime import() of .ts
+ * files (which fails under vitest and in the Next bundle). Add a new migration file, then list it here.
+ */
+import type { Knex } from "knex";
+import * as m1 from "./20261202000100_create_users";
+import * as m2 from "./20261202000200_create_trials";
+import * as m3 from "./20261202000300_create_arms";
+import * as m4 from "./20261202000400_create_trial_memberships";
+import * as m5 from "./20261202000500_create_signatures";
+import * as m6 from "./20261202000600_create_designs";
+import * as m7 from "./20261202000700_create_analyses";
+import * as m8 from "./20261202000800_create_analysis_arm_counts";
+import * as m9 from "./20261202000900_create_patient_outcomes";
+import * as m10 from "./20261202001000_create_recommendations";
+import * as m11 from "./20261202001100_create_audit_events";
+import * as m12 from "./20261202001200_create_audit_chain_head";
+import * as m13 from "./20261202001300_audit_events_refuse_update";
+import * as m14 from "./20261202001400_audit_events_refuse_delete";
+
+type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
+const migrations: Array<[string, Migration]> = [
+  ["20261202000100_create_users", m1],
+  ["20261202000200_create_trials", m2],
+  ["20261202000300_create_arms", m3],
+  ["20261202000400_create_trial_memberships", m4],
+  ["20261202000500_create_signatures", m5],
+  ["20261202000600_create_designs", m6],
+  ["20261202000700_create_analyses", m7],
+  ["20261202000800_create_analysis_arm_counts", m8],
+  ["20261202000900_create_patient_outcomes", m9],
+  ["20261202001000_create_recommendations", m10],
+  ["20261202001100_create_audit_events", m11],
+  ["20261202001200_create_audit_chain_head", m12],
+  ["20261202001300_audit_events_refuse_update", m13],
+  ["20261202001400_audit_events_refuse_delete", m14],
+];
+
+export const migrationSource: Knex.MigrationSource<[string, Migration]> = {
+  getMigrations: async () => migrations,
+  getMigrationName: ([name]) => name,
+  getMigration: async ([, m]) => m,
+};
+
+export const migrationNames = migrations.map(([name]) => name);

@@ -1,0 +1,42 @@
+import "server-only";
+import { db, type Tx } from "../knex";
+import type { AnalysisOpenRow, AnalysisStatus } from "../types";
+import { ANALYSIS_OPEN_COLUMNS } from "./open-status";
+
+/** Creates one planned analysis per look of a newly locked design; looks already done keep their rows. */
+export async function createPlannedLooks(tx: Tx, trialId: number, designId: number, lookSizes: number[]): Promise<void> {
+  const existing: AnalysisOpenRow[] = await tx("analyses").where({ trial_id: trialId }).select(ANALYSIS_OPEN_COLUMNS);
+  const done = existing.filter((a) => a.status === "locked" || a.status === "reviewed");
+  // Looks not yet analysed follow the new design; analysed ones stay as they were.
+  await tx("analyses")
+    .where({ trial_id: trialId })
+    .whereIn("status", ["planned", "open"])
+    .whereNotExists(tx("analysis_arm_counts").whereRaw("analysis_arm_counts.analysis_id = analyses.id"))
+    .delete();
+  const kept = await tx("analyses").where({ trial_id: trialId }).select("look_number", "planned_n");
+  const keptSizes = new Set(kept.map((k: { planned_n: number }) => k.planned_n));
+  let next = Math.max(0, ...kept.map((k: { look_number: number }) => k.look_number)) + 1;
+  const fresh = lookSizes.filter((n) => !keptSizes.has(n) && n > Math.max(0, ...done.map((d) => d.planned_n)));
+  if (fresh.length)
+    await tx("analyses").insert(fresh.map((n) => ({ trial_id: trialId, design_id: designId, look_number: next++, planned_n: n, status: "planned" })));
+}
+
+export async function fetchAnalysesOpen(trialId: number, tx: Tx = db): Promise<AnalysisOpenRow[]> {
+  return tx("analyses").where({ trial_id: trialId }).select(ANALYSIS_OPEN_COLUMNS).orderBy("look_number");
+}
+
+/**
+ * Optimistic concurrency: the update applies only if row_version is still the one the editor
+ * loaded. Returns false when someone else saved first.
+ */
+export async function updateAnalysisOpenFields(
+  tx: Tx,
+  analysisId: number,
+  rowVersion: number,
+  fields: Partial<{ cutoff_date: string | null; enrolled_total: number | null; status: AnalysisStatus; locked_at: Date | null; reviewed_at: Date | null; lock_signature_id: number | null; amendment_count: number }>,
+): Promise<boolean> {
+  const n = await tx("analyses")
+    .where({ id: analysisId, row_version: rowVersion })
+    .update({ ...fields, row_version: rowVersion + 1, updated_at: new Date() });
+  return n === 1;
+}

@@ -1,0 +1,55 @@
+import "server-only";
+/**
+ * CLOSED data: arm-level counts and patient-level outcomes. Only callers that have passed
+ * requireTrialAccess(..., "viewClosed" or "enterData") may import from here; the blinding test
+ * checks that no module reachable from a blinded route does.
+ */
+import { db, type Tx } from "../knex";
+import type { ArmCountRow, PatientOutcomeRow } from "../types";
+
+export async function fetchArmCounts(analysisId: number, tx: Tx = db): Promise<ArmCountRow[]> {
+  return tx<ArmCountRow>("analysis_arm_counts").where({ analysis_id: analysisId }).orderBy("arm_id");
+}
+
+export async function fetchArmCountsForTrial(trialId: number, tx: Tx = db): Promise<(ArmCountRow & { look_number: number })[]> {
+  return tx("analysis_arm_counts as c")
+    .join("analyses as a", "a.id", "c.analysis_id")
+    .where("a.trial_id", trialId)
+    .select("c.*", "a.look_number")
+    .orderBy(["a.look_number", "c.arm_id"]);
+}
+
+export type ArmCountsInput = { armId: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null };
+
+/** Replaces the counts of an analysis (all arms at once). */
+export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCountsInput[]): Promise<void> {
+  await tx("analysis_arm_counts").where({ analysis_id: analysisId }).delete();
+  if (counts.length)
+    await tx("analysis_arm_counts").insert(
+      counts.map((c) => ({
+        analysis_id: analysisId,
+        arm_id: c.armId,
+        enrolled: c.enrolled,
+        evaluable: c.evaluable,
+        responders: c.responders,
+        toxicities: c.toxicities,
+      })),
+    );
+}
+
+export async function fetchPatientOutcomes(analysisId: number, tx: Tx = db): Promise<PatientOutcomeRow[]> {
+  return tx<PatientOutcomeRow>("patient_outcomes").where({ analysis_id: analysisId }).orderBy("source_line");
+}
+
+export type PatientOutcomeInput = Omit<PatientOutcomeRow, "id" | "analysis_id">;
+
+export async function replacePatientOutcomes(tx: Tx, analysisId: number, rows: PatientOutcomeInput[]): Promise<void> {
+  await tx("patient_outcomes").where({ analysis_id: analysisId }).delete();
+  for (let i = 0; i < rows.length; i += 500) {
+    await tx("patient_outcomes").insert(rows.slice(i, i + 500).map((r) => ({ ...r, analysis_id: analysisId })));
+  }
+}
+
+export async function fetchRecommendationRationales(trialId: number, tx: Tx = db) {
+  return tx("recommendations").where({ trial_id: trialId }).select("id", "analysis_id", "rationale", "decision", "corrects_id", "created_at").orderBy("id", "desc");
+}

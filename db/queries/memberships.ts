@@ -1,0 +1,46 @@
+import "server-only";
+import { db, type Tx } from "../knex";
+import type { TrialRole } from "../types";
+
+export async function fetchRolesOnTrial(userId: number, trialId: number, tx: Tx = db): Promise<TrialRole[]> {
+  const rows = await tx("trial_memberships").where({ user_id: userId, trial_id: trialId }).select("role");
+  return rows.map((r: { role: TrialRole }) => r.role);
+}
+
+export async function fetchAnyRoleHeld(userId: number, role: TrialRole, tx: Tx = db): Promise<boolean> {
+  const row = await tx("trial_memberships").where({ user_id: userId, role }).first("id");
+  return Boolean(row);
+}
+
+export type MembershipListing = { id: number; trialId: number; trialCode: string; userId: number; userName: string; userEmail: string; role: TrialRole };
+
+export async function fetchMemberships(filter: { trialId?: number } = {}, tx: Tx = db): Promise<MembershipListing[]> {
+  const q = tx("trial_memberships as m")
+    .join("users as u", "u.id", "m.user_id")
+    .join("trials as t", "t.id", "m.trial_id")
+    .select(
+      "m.id",
+      "m.trial_id as trialId",
+      "t.code as trialCode",
+      "m.user_id as userId",
+      "u.name as userName",
+      "u.email as userEmail",
+      "m.role",
+    )
+    .orderBy(["t.code", "u.name", "m.role"]);
+  if (filter.trialId !== undefined) q.where("m.trial_id", filter.trialId);
+  return q;
+}
+
+export async function fetchMembershipById(id: number, tx: Tx = db) {
+  return tx("trial_memberships").where({ id }).first();
+}
+
+export async function insertMembership(tx: Tx, m: { trialId: number; userId: number; role: TrialRole }): Promise<number> {
+  const [id] = await tx("trial_memberships").insert({ trial_id: m.trialId, user_id: m.userId, role: m.role });
+  return id;
+}
+
+export async function deleteMembership(tx: Tx, id: number): Promise<number> {
+  return tx("trial_memberships").where({ id }).delete();
+}

@@ -1,0 +1,67 @@
+import "server-only";
+/**
+ * Open information only. Nothing in this module may select from analysis_arm_counts,
+ * patient_outcomes or recommendation rationales; the blinding tests grep for that.
+ */
+import { db, type Tx } from "../knex";
+import type { AnalysisOpenRow, RecommendationDecision } from "../types";
+
+export const ANALYSIS_OPEN_COLUMNS = [
+  "id",
+  "trial_id",
+  "design_id",
+  "look_number",
+  "planned_n",
+  "cutoff_date",
+  "enrolled_total",
+  "status",
+  "amendment_count",
+  "row_version",
+  "locked_at",
+  "reviewed_at",
+] as const;
+
+export async function fetchLookSchedule(trialId: number, tx: Tx = db): Promise<AnalysisOpenRow[]> {
+  return tx("analyses").where({ trial_id: trialId }).select(ANALYSIS_OPEN_COLUMNS).orderBy("look_number");
+}
+
+export async function fetchAnalysisOpen(analysisId: number, tx: Tx = db): Promise<AnalysisOpenRow | undefined> {
+  return tx("analyses").where({ id: analysisId }).first(ANALYSIS_OPEN_COLUMNS);
+}
+
+export type OpenRecommendation = {
+  id: number;
+  analysisId: number;
+  lookNumber: number;
+  decision: RecommendationDecision;
+  correctsId: number | null;
+  recordedAt: Date;
+  signerName: string;
+};
+
+/** Recommendations without their rationale: decision, date, who signed, which look. */
+export async function fetchRecommendationsOpen(trialId: number, tx: Tx = db): Promise<OpenRecommendation[]> {
+  return tx("recommendations as r")
+    .join("analyses as a", "a.id", "r.analysis_id")
+    .join("signatures as s", "s.id", "r.signature_id")
+    .where("r.trial_id", trialId)
+    .select(
+      "r.id",
+      "r.analysis_id as analysisId",
+      "a.look_number as lookNumber",
+      "r.decision",
+      "r.corrects_id as correctsId",
+      "r.created_at as recordedAt",
+      "s.signer_name as signerName",
+    )
+    .orderBy("r.id", "desc");
+}
+
+export type DesignMeta = { id: number; version: number; status: string; lockedAt: Date | null; amendmentReason: string | null };
+
+export async function fetchDesignVersions(trialId: number, tx: Tx = db): Promise<DesignMeta[]> {
+  return tx("designs")
+    .where({ trial_id: trialId })
+    .select("id", "version", "status", "locked_at as lockedAt", "amendment_reason as amendmentReason")
+    .orderBy("version", "desc");
+}

@@ -1,0 +1,45 @@
+import "server-only";
+import { createHash } from "node:crypto";
+import type { Tx } from "../knex";
+import type { SignatureRow } from "../types";
+
+/** Hash of the exact record content being signed (stable key order), binding the signature to it. */
+export function recordHash(record: unknown): string {
+  return createHash("sha256").update(stableStringify(record)).digest("hex");
+}
+
+export function stableStringify(v: unknown): string {
+  if (v === null || typeof v !== "object") return JSON.stringify(v ?? null);
+  if (v instanceof Date) return JSON.stringify(v.toISOString());
+  if (Array.isArray(v)) return `[${v.map(stableStringify).join(",")}]`;
+  const o = v as Record<string, unknown>;
+  return `{${Object.keys(o)
+    .filter((k) => o[k] !== undefined)
+    .sort()
+    .map((k) => `${JSON.stringify(k)}:${stableStringify(o[k])}`)
+    .join(",")}}`;
+}
+
+export type SignatureMeaning = "design approved" | "analysis locked" | "recommendation recorded";
+
+export async function insertSignature(
+  tx: Tx,
+  s: { userId: number; signerName: string; signerEmail: string; meaning: SignatureMeaning; entityType: string; entityId: number; record: unknown },
+): Promise<SignatureRow> {
+  const row = {
+    user_id: s.userId,
+    signer_name: s.signerName,
+    signer_email: s.signerEmail,
+    meaning: s.meaning,
+    entity_type: s.entityType,
+    entity_id: s.entityId,
+    record_hash: recordHash(s.record),
+    signed_at: new Date(),
+  };
+  const [id] = await tx("signatures").insert(row);
+  return { id, ...row };
+}
+
+export async function fetchSignature(tx: Tx, id: number): Promise<SignatureRow | undefined> {
+  return tx<SignatureRow>("signatures").where({ id }).first();
+}

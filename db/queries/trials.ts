@@ -1,0 +1,80 @@
+import "server-only";
+import { db, type Tx } from "../knex";
+import type { ArmRow, TrialRole, TrialRow } from "../types";
+
+/** Open columns of a trial: nothing here is outcome data. */
+const TRIAL_COLUMNS = [
+  "t.id",
+  "t.code",
+  "t.title",
+  "t.sponsor_name",
+  "t.phase",
+  "t.design_type",
+  "t.endpoint_name",
+  "t.toxicity_endpoint_name",
+  "t.target_enrolment",
+  "t.first_patient_on",
+  "t.status",
+  "t.created_by",
+  "t.created_at",
+  "t.updated_at",
+];
+
+export type TrialListing = TrialRow & { roles: TrialRole[] };
+
+/** The trials a user belongs to, with the roles held on each; administrators see every trial. */
+export async function fetchTrialsForUser(userId: number, isAdmin: boolean, tx: Tx = db): Promise<TrialListing[]> {
+  const trials: TrialRow[] = isAdmin
+    ? await tx("trials as t").select(TRIAL_COLUMNS).orderBy("t.code")
+    : await tx("trials as t")
+        .whereIn("t.id", tx("trial_memberships").where({ user_id: userId }).select("trial_id"))
+        .select(TRIAL_COLUMNS)
+        .orderBy("t.code");
+  const memberships = await tx("trial_memberships").where({ user_id: userId }).select("trial_id", "role");
+  return trials.map((t) => ({
+    ...t,
+    roles: memberships.filter((m: { trial_id: number }) => m.trial_id === t.id).map((m: { role: TrialRole }) => m.role),
+  }));
+}
+
+export async function fetchTrial(trialId: number, tx: Tx = db): Promise<TrialRow | undefined> {
+  return tx("trials as t").where("t.id", trialId).first(TRIAL_COLUMNS);
+}
+
+export async function fetchTrialByCode(code: string, tx: Tx = db): Promise<TrialRow | undefined> {
+  return tx("trials as t").where("t.code", code).first(TRIAL_COLUMNS);
+}
+
+export async function fetchArms(trialId: number, tx: Tx = db): Promise<ArmRow[]> {
+  return tx<ArmRow>("arms").where({ trial_id: trialId }).orderBy("sort_order");
+}
+
+export type NewTrial = {
+  code: string;
+  title: string;
+  sponsorName: string;
+  phase: string;
+  designType: "single" | "two";
+  endpointName: string;
+  toxicityEndpointName: string | null;
+  targetEnrolment: number;
+  createdBy: number | null;
+  arms: Array<{ label: string; armRole: ArmRow["arm_role"] }>;
+};
+
+/** Inserts a trial and its arms; the caller owns the transaction (and writes the audit row). */
+export async function insertTrial(tx: Tx, t: NewTrial): Promise<number> {
+  const [id] = await tx("trials").insert({
+    code: t.code,
+    title: t.title,
+    sponsor_name: t.sponsorName,
+    phase: t.phase,
+    design_type: t.designType,
+    endpoint_name: t.endpointName,
+    toxicity_endpoint_name: t.toxicityEndpointName,
+    target_enrolment: t.targetEnrolment,
+    created_by: t.createdBy,
+  });
+  await tx("arms").insert(t.arms.map((a, i) => ({ trial_id: id, label: a.label, arm_role: a.armRole, sort_order: i })));
+  return id;
+}

@@ -1,0 +1,108 @@
+import "server-only";
+/**
+ * Authorization in one place. Every page, route handler and server action calls one of these.
+ * The session only says who someone is; what they may do is read from the database on every
+ * request, so a removed role or deactivated account takes effect at the next request.
+ */
+import { getServerSession } from "next-auth";
+import { notFound, redirect, forbidden } from "next/navigation";
+import { authOptions } from "./options";
+import { fetchUserById, toPublicUser } from "@/db/queries/users";
+import { fetchAnyRoleHeld, fetchRolesOnTrial } from "@/db/queries/memberships";
+import { fetchTrial } from "@/db/queries/trials";
+import type { PublicUser, TrialRole, TrialRow } from "@/db/types";
+import { allows, isUnblinded, type Capability, type Principal } from "./permissions";
+import { HttpError, forbiddenError, notFoundError, unauthorized } from "@/lib/http";
+
+export { allows, isUnblinded, type Capability } from "./permissions";
+
+export type TrialAccess = { user: PublicUser; trial: TrialRow; roles: TrialRole[]; principal: Principal; unblinded: boolean };
+
+/** The signed-in, active user, or null. */
+export async function currentUser(): Promise<PublicUser | null> {
+  const session = await getServerSession(authOptions);
+  const id = (session?.user as { id?: number } | undefined)?.id;
+  if (!id) return null;
+  const row = await fetchUserById(id);
+  if (!row || !row.is_active) return null;
+  return toPublicUser(row);
+}
+
+/** For route handlers and server actions: throws HttpError (401) instead of redirecting. */
+export async function requireUser(): Promise<PublicUser> {
+  const u = await currentUser();
+  if (!u) throw unauthorized();
+  return u;
+}
+
+export async function requireAdmin(): Promise<PublicUser> {
+  const u = await requireUser();
+  if (!u.isAdmin) throw new HttpError(403, "Only an administrator may do this.");
+  return u;
+}
+
+/** May this user create trials? Administrators, and anyone who is unblinded statistician on some trial. */
+export async function mayCreateTrial(u: PublicUser): Promise<boolean> {
+  return u.isAdmin || (await fetchAnyRoleHeld(u.id, "unblinded_statistician"));
+}
+
+/**
+ * Trial-level check: 404 when the trial does not exist or the user is not on it (so its existence
+ * is not revealed), 403 when on it without the capability.
+ */
+export async function requireTrialAccess(trialId: number, cap: Capability): Promise<TrialAccess> {
+  const user = await requireUser();
+  if (!Number.isInteger(trialId) || trialId <= 0) throw notFoundError("That trial");
+  const trial = await fetchTrial(trialId);
+  if (!trial) throw notFoundError("That trial");
+  const roles = await fetchRolesOnTrial(user.id, trialId);
+  const principal: Principal = { isAdmin: user.isAdmin, roles };
+  if (roles.length === 0 && !user.isAdmin) throw notFoundError("That trial");
+  if (!allows(principal, cap)) throw forbiddenError(describe(cap));
+  return { user, trial, roles, principal, unblinded: isUnblinded(principal) };
+}
+
+/** For pages: the same checks, answered the way a browser expects (sign-in redirect, 404 page, 403 page). */
+export async function authorizePage(trialId: number, cap: Capability): Promise<TrialAccess> {
+  try {
+    return await requireTrialAccess(trialId, cap);
+  } catch (e) {
+    pageInterrupt(e);
+  }
+}
+
+export async function requirePageUser(): Promise<PublicUser> {
+  const u = await currentUser();
+  if (!u) redirect("/signin");
+  return u;
+}
+
+export async function requirePageAdmin(): Promise<PublicUser> {
+  const u = await requirePageUser();
+  if (!u.isAdmin) forbidden();
+  return u;
+}
+
+function pageInterrupt(e: unknown): never {
+  if (e instanceof HttpError) {
+    if (e.status === 401) redirect("/signin");
+    if (e.status === 404) notFound();
+    if (e.status === 403) forbidden();
+  }
+  throw e;
+}
+
+function describe(cap: Capability): string {
+  const words: Record<Capability, string> = {
+    viewOpen: "viewing this trial",
+    viewClosed: "viewing closed (unblinded) results",
+    editDesign: "editing the design",
+    lockDesign: "locking the design",
+    enterData: "entering interim data",
+    recordRecommendation: "recording a recommendation",
+    manageMeetings: "managing DMC meetings",
+    viewAuditOpen: "viewing the audit trail",
+    viewAuditClosed: "viewing closed audit entries",
+  };
+  return words[cap];
+}

@@ -1,0 +1,68 @@
+import "server-only";
+import type { NextAuthOptions } from "next-auth";
+import CredentialsProvider from "next-auth/providers/credentials";
+import bcrypt from "bcryptjs";
+import { z } from "zod";
+import { fetchUserByEmail } from "@/db/queries/users";
+import { recordAuditEvent } from "@/db/audit";
+
+export const signInSchema = z.object({
+  email: z.string().trim().min(1, "Enter your e-mail address.").max(254, "That e-mail address is too long.").email("Enter a valid e-mail address."),
+  password: z.string().min(1, "Enter your password.").max(200, "That password is too long."),
+});
+
+/** bcrypt cost for stored passwords (at least 10, per the foundation issue). */
+export const BCRYPT_ROUNDS = 11;
+
+// A hash of a random string, compared when the account does not exist, so timing does not reveal which e-mails are registered.
+const DUMMY_HASH = "$2b$11$C6UzMDM.H6dfI/f/IKxGhuJ5e5y9lZ7zWBh3fE6Yxc.0kAnWpgbbu";
+
+export const authOptions: NextAuthOptions = {
+  session: { strategy: "jwt", maxAge: 8 * 60 * 60 },
+  pages: { signIn: "/signin" },
+  providers: [
+    CredentialsProvider({
+      name: "Cairn account",
+      credentials: { email: { label: "E-mail", type: "email" }, password: { label: "Password", type: "password" } },
+      async authorize(raw) {
+        const parsed = signInSchema.safeParse(raw ?? {});
+        if (!parsed.success) return null;
+        const { email, password } = parsed.data;
+        const user = await fetchUserByEmail(email);
+        const ok = await bcrypt.compare(password, user?.password_hash ?? DUMMY_HASH);
+        if (!user || !ok || !user.is_active) {
+          await recordAuditEvent({
+            actorUserId: user?.id ?? null,
+            actorEmail: email.toLowerCase(),
+            trialId: null,
+            action: "sign_in_failed",
+            entityType: "user",
+            entityId: user?.id ?? null,
+            visibility: "open",
+          });
+          return null;
+        }
+        await recordAuditEvent({
+          actorUserId: user.id,
+          actorEmail: user.email,
+          trialId: null,
+          action: "sign_in",
+          entityType: "user",
+          entityId: user.id,
+          visibility: "open",
+        });
+        return { id: String(user.id), email: user.email, name: user.name };
+      },
+    }),
+  ],
+  callbacks: {
+    async jwt({ token, user }) {
+      if (user) token.uid = Number(user.id);
+      return token;
+    },
+    async session({ session, token }) {
+      if (session.user) (session.user as { id?: number }).id = token.uid as number;
+      return session;
+    },
+  },
+};

@@ -1,0 +1,20 @@
+/**
+ * Database connection settings, shared by the app (through lib/config), knexfile.ts and scripts.
+ * CAIRN_DB_AS_OWNER=1 connects as the owner account that may run migrations; the app runs as the
+ * restricted application account.
+ */
+export function databaseConnection() {
+  const asOwner = process.env.CAIRN_DB_AS_OWNER === "1";
+  return {
+    host: process.env.CAIRN_DB_HOST ?? "127.0.0.1",
+    port: Number(process.env.CAIRN_DB_PORT ?? 3407),
+    user: (asOwner ? process.env.CAIRN_DB_OWNER_USER : process.env.CAIRN_DB_APP_USER) ?? "cairn_app",
+    password: (asOwner ? process.env.CAIRN_DB_OWNER_PASSWORD : process.env.CAIRN_DB_APP_PASSWORD) ?? "",
+    database: process.env.CAIRN_DB_NAME ?? "cairn",
+    charset: "utf8mb4",
+    timezone: "Z",
+    dateStrings: ["DATE"] as ("DATE")[],
+    supportBigNumbers: true,
+    connectTimeout: 5_000,
+  };
+}

@@ -1,0 +1,28 @@
+import "server-only";
+/**
+ * Configuration is read here and nowhere else: typed getters over process.env.
+ * scripts/up and scripts/test export these; see .env.example for the list.
+ */
+import { databaseConnection } from "./config-shared";
+
+export { databaseConnection };
+
+function required(name: string): string {
+  const v = process.env[name];
+  if (!v) throw new Error(`Missing configuration: ${name} (start Cairn with scripts/up)`);
+  return v;
+}
+
+export const config = {
+  authSecret: () => required("NEXTAUTH_SECRET"),
+  appUrl: () => process.env.NEXTAUTH_URL ?? "http://localhost:3000",
+  isProduction: () => process.env.NODE_ENV === "production" && process.env.CAIRN_INSECURE_COOKIES !== "1",
+  smtp: () => ({
+    host: process.env.SMTP_HOST ?? "127.0.0.1",
+    port: Number(process.env.SMTP_PORT ?? 2525),
+    user: process.env.SMTP_USER || undefined,
+    pass: process.env.SMTP_PASS || undefined,
+    from: process.env.MAIL_FROM ?? "Cairn <cairn@localhost>",
+  }),
+  mailCatcherDir: () => process.env.CAIRN_MAIL_DIR ?? ".data/mail",
+};

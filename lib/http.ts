@@ -1,0 +1,83 @@
+import "server-only";
+import { randomUUID } from "node:crypto";
+import { NextResponse } from "next/server";
+import { ZodError } from "zod";
+import { StatsDomainError } from "./stats/validate";
+
+/** An error with an HTTP meaning; thrown anywhere on the server, mapped once by `errorResponse`. */
+export class HttpError extends Error {
+  constructor(
+    public readonly status: 400 | 401 | 403 | 404 | 409 | 413 | 415 | 422 | 429 | 503,
+    message: string,
+    public readonly details?: unknown,
+  ) {
+    super(message);
+    this.name = "HttpError";
+  }
+}
+
+export const unauthorized = () => new HttpError(401, "Sign in to continue.");
+export const forbiddenError = (what = "this") => new HttpError(403, `Your role on this trial does not allow ${what}.`);
+export const notFoundError = (what = "That record") => new HttpError(404, `${what} was not found.`);
+export const conflict = (message: string) => new HttpError(409, message);
+
+function isDatabaseDown(e: unknown): boolean {
+  const code = (e as { code?: string })?.code ?? "";
+  return ["ECONNREFUSED", "PROTOCOL_CONNECTION_LOST", "ETIMEDOUT", "ECONNRESET", "ER_CON_COUNT_ERROR"].includes(code) ||
+    (e instanceof Error && /Knex: Timeout acquiring a connection/.test(e.message));
+}
+
+/**
+ * invalid input 422 with the issues; no session 401; wrong role 403; missing 404; conflict 409;
+ * database unreachable 503; anything else 500 with a logged id and no internals.
+ */
+export function errorResponse(e: unknown): NextResponse {
+  if (e instanceof HttpError) {
+    return NextResponse.json({ error: e.message, ...(e.details ? { details: e.details } : {}) }, { status: e.status });
+  }
+  if (e instanceof ZodError) {
+    return NextResponse.json(
+      {
+        error: "The request is not valid.",
+        issues: e.issues.map((i) => ({ path: i.path.join("."), message: i.message })),
+      },
+      { status: 422 },
+    );
+  }
+  if (e instanceof StatsDomainError) {
+    return NextResponse.json({ error: `The request is not valid: ${e.message}.` }, { status: 422 });
+  }
+  if (e instanceof SyntaxError) {
+    return NextResponse.json({ error: "The request body is not valid JSON." }, { status: 400 });
+  }
+  if (isDatabaseDown(e)) {
+    return NextResponse.json({ error: "The database is not reachable just now; nothing was saved. Try again shortly." }, { status: 503 });
+  }
+  const id = randomUUID();
+  console.error(`[cairn] error ${id}`, e);
+  return NextResponse.json({ error: `Something went wrong on the server (reference ${id}).` }, { status: 500 });
+}
+
+/** Wraps a route handler body so every thrown error goes through the one mapping. */
+export function handle<A extends unknown[]>(fn: (...args: A) => Promise<Response>) {
+  return async (...args: A): Promise<Response> => {
+    try {
+      return await fn(...args);
+    } catch (e) {
+      return errorResponse(e);
+    }
+  };
+}
+
+/** Reads a JSON body with a size ceiling, so an oversized body is refused before parsing. */
+export async function readJson(req: Request, maxBytes = 256 * 1024): Promise<unknown> {
+  const len = Number(req.headers.get("content-length") ?? 0);
+  if (len > maxBytes) throw new HttpError(413, `The request body is larger than ${Math.round(maxBytes / 1024)} KB.`);
+  const text = await req.text();
+  if (text.length > maxBytes) throw new HttpError(413, `The request body is larger than ${Math.round(maxBytes / 1024)} KB.`);
+  try {
+    return JSON.parse(text);
+  } catch {
+    throw new HttpError(400, "The request body is not valid JSON.");
+  }
+}

@@ -1,0 +1,70 @@
+/**
+ * Priors on a rate and their conjugate updating, as mixtures of Beta components.
+ * A single Beta is a one-component mixture, so every computation has one code path.
+ */
+import type { MixtureBeta, PriorSpec } from "./types";
+import { betaCdf, betaSurvival, logBeta, logChoose } from "./distributions";
+import { requireData, requirePositive, requireProbability, StatsDomainError } from "./validate";
+
+/** The vague component of a robust mixture (Schmidli et al. 2014 use a unit-information prior; Cairn uses Beta(1, 1)). */
+export const VAGUE_COMPONENT = { a: 1, b: 1 } as const;
+
+/** Resolve a prior specification to its mixture-of-Betas form. */
+export function resolvePrior(spec: PriorSpec): MixtureBeta {
+  switch (spec.family) {
+    case "uniform":
+      return [{ weight: 1, a: 1, b: 1 }];
+    case "jeffreys":
+      return [{ weight: 1, a: 0.5, b: 0.5 }];
+    case "beta":
+      requirePositive("a", spec.a);
+      requirePositive("b", spec.b);
+      return [{ weight: 1, a: spec.a, b: spec.b }];
+    case "informative": {
+      requireProbability("mean", spec.mean);
+      requirePositive("ess", spec.ess);
+      return [{ weight: 1, a: spec.mean * spec.ess, b: (1 - spec.mean) * spec.ess }];
+    }
+    case "robustMixture": {
+      requireProbability("mean", spec.mean);
+      requirePositive("ess", spec.ess);
+      requireProbability("weight", spec.weight, { closed: true });
+      const informative = { weight: spec.weight, a: spec.mean * spec.ess, b: (1 - spec.mean) * spec.ess };
+      const vague = { weight: 1 - spec.weight, ...VAGUE_COMPONENT };
+      return [informative, vague].filter((c) => c.weight > 0);
+    }
+    default:
+      throw new StatsDomainError("prior.family", (spec as { family: unknown }).family, "is not a known prior family");
+  }
+}
+
+/**
+ * Posterior after x responders of n: each component updates to Beta(a + x, b + n - x) and its
+ * weight is multiplied by the component's marginal likelihood of the data (beta-binomial), then
+ * renormalised. The binomial coefficient is common to all components, but kept for clarity.
+ */
+export function updateMixture(prior: MixtureBeta, x: number, n: number): MixtureBeta {
+  requireData(x, n);
+  const logW = prior.map(
+    (c) => Math.log(c.weight) + logChoose(n, x) + logBeta(c.a + x, c.b + n - x) - logBeta(c.a, c.b),
+  );
+  const max = Math.max(...logW);
+  const w = logW.map((l) => Math.exp(l - max));
+  const total = w.reduce((s, v) => s + v, 0);
+  return prior.map((c, i) => ({ weight: w[i] / total, a: c.a + x, b: c.b + n - x }));
+}
+
+/** P(p <= t) under a mixture. */
+export function mixtureCdf(m: MixtureBeta, t: number): number {
+  return m.reduce((s, c) => s + c.weight * betaCdf(t, c.a, c.b), 0);
+}
+
+/** P(p > t) under a mixture, accurate in the upper tail. */
+export function mixtureSurvival(m: MixtureBeta, t: number): number {
+  return m.reduce((s, c) => s + c.weight * betaSurvival(t, c.a, c.b), 0);
+}
+
+/** Mixture mean. */
+export function mixtureMean(m: MixtureBeta): number {
+  return m.reduce((s, c) => s + (c.weight * c.a) / (c.a + c.b), 0);
+}

@@ -1,0 +1,86 @@
+/**
+ * The design model shared by the engine, the database (stored as JSON in designs.spec) and the UI.
+ * Every field is validated at the edge by the zod schema in lib/stats/design-schema.ts.
+ */
+
+/** A prior on a response (or toxicity) rate, as the statistician specifies it. */
+export type PriorSpec =
+  | { family: "uniform" } // Beta(1, 1)
+  | { family: "jeffreys" } // Beta(0.5, 0.5)
+  | { family: "beta"; a: number; b: number }
+  /** Beta(mean * ess, (1 - mean) * ess). */
+  | { family: "informative"; mean: number; ess: number }
+  /** weight on Beta(mean * ess, (1 - mean) * ess), 1 - weight on the vague Beta(1, 1) (Schmidli et al. 2014). */
+  | { family: "robustMixture"; mean: number; ess: number; weight: number };
+
+/** One Beta component of a (possibly one-component) mixture. */
+export type BetaComponent = { weight: number; a: number; b: number };
+/** The resolved form every computation works with: weights sum to 1. */
+export type MixtureBeta = BetaComponent[];
+
+/** Planned looks: an explicit list of (per-arm) enrolled counts, or every k from a first look. The last look is always nMax. */
+export type LookSchedule = { kind: "list"; sizes: number[] } | { kind: "every"; first: number; every: number };
+
+/**
+ * The monitoring rule. Both kinds declare success at the final analysis when
+ * P(p > p0 | all data) > thetaT (two arms: P(pT - pC > delta | all data) > thetaT).
+ * - predictive (Lee & Liu 2008): at an interim, futility if PP < futilityThreshold (thetaL),
+ *   efficacy if efficacyStopping and PP > efficacyThreshold (thetaU).
+ * - posterior (Thall & Simon 1994 style): at an interim, futility if
+ *   P(p > p0 + delta | data) < futilityThreshold (pL), efficacy if efficacyStopping and it exceeds
+ *   efficacyThreshold (pU). Two arms: P(pT > pC + delta | data).
+ * Strict inequalities: a tie does not trigger.
+ */
+export type MonitoringRule = {
+  kind: "predictive" | "posterior";
+  thetaT: number;
+  futilityThreshold: number;
+  efficacyStopping: boolean;
+  efficacyThreshold: number | null;
+};
+
+/** Thall, Simon & Estey 1995 style: safety stop if P(q > qmax | toxicities) > thetaS at any look. */
+export type SafetyRule = { qmax: number; prior: PriorSpec; thetaS: number };
+
+export type SingleArmDesign = {
+  arms: "single";
+  prior: PriorSpec;
+  /** Uninteresting (null) response rate. */
+  p0: number;
+  /** Target rate for power. */
+  p1: number;
+  /** Margin used by the posterior-probability rule at interims: P(p > p0 + delta). Default 0. */
+  delta: number;
+  nMax: number;
+  looks: LookSchedule;
+  rule: MonitoringRule;
+  safety: SafetyRule | null;
+};
+
+export type TwoArmDesign = {
+  arms: "two";
+  /** T is experimental, C is control. */
+  priorT: PriorSpec;
+  priorC: PriorSpec;
+  /** Assumed control rate, for operating characteristics (type I error at pT = pC = controlRate). */
+  controlRate: number;
+  /** Experimental rate for power. */
+  experimentalRate: number;
+  /** Decision margin on the difference scale; negative for non-inferiority. */
+  delta: number;
+  /** Maximum evaluable patients per arm (equal allocation). */
+  nMaxPerArm: number;
+  /** Per-arm enrolled counts at the looks. */
+  looks: LookSchedule;
+  rule: MonitoringRule;
+  safety: SafetyRule | null;
+};
+
+export type Design = SingleArmDesign | TwoArmDesign;
+
+export type StopReason = "futility" | "efficacy" | "safety";
+/** The outcome at a look: stop with a reason, continue, or (at nMax) success / no success. */
+export type LookDecision =
+  | { action: "continue"; reason: string }
+  | { action: "stop"; stop: StopReason; reason: string }
+  | { action: "final"; success: boolean; reason: string };

@@ -1,0 +1,47 @@
+import { defineConfig } from "@playwright/test";
+
+// Browser tests against the production build, in Debian's chromium (never a downloaded browser).
+// scripts/test prepares the seeded database named by CAIRN_E2E_DB and runs `next build` first.
+const port = Number(process.env.CAIRN_E2E_PORT ?? 3100);
+const smtpPort = Number(process.env.CAIRN_E2E_SMTP_PORT ?? 2526);
+const baseURL = `http://localhost:${port}`;
+
+export default defineConfig({
+  testDir: "tests/e2e",
+  fullyParallel: false,
+  workers: 1,
+  retries: 0,
+  timeout: 60_000,
+  expect: { timeout: 10_000 },
+  use: {
+    baseURL,
+    trace: "retain-on-failure",
+    launchOptions: {
+      executablePath: "/usr/bin/chromium",
+      args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--disable-dev-shm-usage"],
+    },
+  },
+  webServer: [
+    {
+      command: `npx tsx scripts/mail-catcher.ts --port ${smtpPort} --dir .data/mail-e2e`,
+      port: smtpPort,
+      reuseExistingServer: false,
+      timeout: 30_000,
+    },
+    {
+      command: `npx next start -p ${port}`,
+      url: `${baseURL}/api/health`,
+      reuseExistingServer: false,
+      timeout: 60_000,
+      env: {
+        ...(process.env as Record<string, string>),
+        NODE_ENV: "production",
+        CAIRN_DB_NAME: process.env.CAIRN_E2E_DB ?? "cairn_e2e",
+        NEXTAUTH_URL: baseURL,
+        SMTP_HOST: "127.0.0.1",
+        SMTP_PORT: String(smtpPort),
+        CAIRN_MAIL_DIR: ".data/mail-e2e",
+      },
+    },
+  ],
+});
