@@ -1,13 +1,11 @@
 "use client";
 import { useState, type FormEvent } from "react";
 import { signIn } from "next-auth/react";
-import { useRouter } from "next/navigation";
 import { Button } from "./ui/button";
 import { Field, TextInput } from "./ui/field";
 import { Banner } from "./ui/banner";
 
 export function SignInForm() {
-  const router = useRouter();
   const [error, setError] = useState<string | null>(null);
   const [fieldErrors, setFieldErrors] = useState<{ email?: string; password?: string }>({});
   const [pending, setPending] = useState(false);
@@ -35,8 +33,8 @@ export function SignInForm() {
       );
       return;
     }
-    router.push("/trials");
-    router.refresh();
+    // A full navigation, so the header and every server component render with the new session.
+    window.location.assign("/trials");
   }
 
   return (

@@ -3,8 +3,7 @@
  * CAIRN_DB_AS_OWNER=1 connects as the owner account that may run migrations; the app runs as the
  * restricted application account.
  */
-export function databaseConnection() {
-  const asOwner = process.env.CAIRN_DB_AS_OWNER === "1";
+export function databaseConnection(asOwner = process.env.CAIRN_DB_AS_OWNER === "1") {
   return {
     host: process.env.CAIRN_DB_HOST ?? "127.0.0.1",
     port: Number(process.env.CAIRN_DB_PORT ?? 3407),

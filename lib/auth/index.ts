@@ -51,7 +51,11 @@ export async function mayCreateTrial(u: PublicUser): Promise<boolean> {
  * is not revealed), 403 when on it without the capability.
  */
 export async function requireTrialAccess(trialId: number, cap: Capability): Promise<TrialAccess> {
-  const user = await requireUser();
+  return checkTrialAccess(await requireUser(), trialId, cap);
+}
+
+/** The trial-level decision for a known user; separated from the session so it can be tested against the database. */
+export async function checkTrialAccess(user: PublicUser, trialId: number, cap: Capability): Promise<TrialAccess> {
   if (!Number.isInteger(trialId) || trialId <= 0) throw notFoundError("That trial");
   const trial = await fetchTrial(trialId);
   if (!trial) throw notFoundError("That trial");

@@ -4,7 +4,25 @@
  */
 import type { MixtureBeta, PriorSpec } from "./types";
 import { betaCdf, betaSurvival, logBeta, logChoose } from "./distributions";
-import { requireData, requirePositive, requireProbability, StatsDomainError } from "./validate";
+import { requireData, requireFinite, requirePositive, requireProbability, StatsDomainError } from "./validate";
+
+/**
+ * A resolved mixture is usable when it has at least one component, every weight is in [0, 1],
+ * every shape is finite and > 0, and the weights sum to 1 within 1e-9 (they come from
+ * renormalisation, so exact 1 cannot be demanded).
+ */
+export function requireMixture(name: string, m: MixtureBeta): void {
+  if (!Array.isArray(m) || m.length === 0) throw new StatsDomainError(name, m, "must be a non-empty list of Beta components");
+  let total = 0;
+  m.forEach((c, i) => {
+    requirePositive(`${name}[${i}].a`, c.a);
+    requirePositive(`${name}[${i}].b`, c.b);
+    requireFinite(`${name}[${i}].weight`, c.weight);
+    if (c.weight < 0 || c.weight > 1) throw new StatsDomainError(`${name}[${i}].weight`, c.weight, "must lie in [0, 1]");
+    total += c.weight;
+  });
+  if (Math.abs(total - 1) > 1e-9) throw new StatsDomainError(`${name} weights`, total, "must sum to 1");
+}
 
 /** The vague component of a robust mixture (Schmidli et al. 2014 use a unit-information prior; Cairn uses Beta(1, 1)). */
 export const VAGUE_COMPONENT = { a: 1, b: 1 } as const;

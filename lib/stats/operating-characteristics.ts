@@ -1,0 +1,342 @@
+/**
+ * Operating characteristics computed exactly by forward recursion over the binomial increments
+ * between looks (not by simulation). The state after each look is the distribution of the
+ * cumulative responder count among trials still running; mass that crosses a boundary is booked
+ * as a stop at that look and removed.
+ *
+ * The recursion runs on a boundary table, so any rule that can be written as one (a Bayesian
+ * design via `singleArmBoundaries`, or a frequentist two-stage design) gets the same treatment.
+ *
+ * Conventions: early termination is any stop before nMax; P(declare success) counts success at the
+ * final analysis plus early efficacy stops; sample size is the number of patients at the stop.
+ */
+import type { Design, SingleArmDesign, TwoArmDesign } from "./types";
+import { expandLooks } from "./looks";
+import { binomialPmfs } from "./distributions";
+import {
+  safetyBoundaries,
+  singleArmBoundaries,
+  twoArmBoundaries,
+  validateResponseBoundary,
+  type ResponseBoundary,
+  type SafetyBoundary,
+  type TwoArmBoundary,
+} from "./boundaries";
+import { requireCount, requireProbability, StatsDomainError } from "./validate";
+
+export type LookOutcome = {
+  n: number;
+  /** P(the trial stops for futility at this look); at the final look: P(no success). */
+  pStopFutility: number;
+  /** P(the trial stops for efficacy at this look); at the final look: P(success). */
+  pStopEfficacy: number;
+  /** P(the trial is still running after this look) (0 at the final look). */
+  pContinue: number;
+};
+
+export type OperatingCharacteristics = {
+  /** True response rate (single arm) the characteristics are computed at. */
+  p: number;
+  looks: LookOutcome[];
+  pEarlyFutility: number;
+  pEarlyEfficacy: number;
+  /** P(any stop before nMax). */
+  pEarlyTermination: number;
+  pSuccessAtEnd: number;
+  pNoSuccessAtEnd: number;
+  /** P(success at the end) + P(early efficacy stop): type I error at p0, power at p1. */
+  pDeclareSuccess: number;
+  expectedSampleSize: number;
+  /** P(N = n) at each look size. */
+  sampleSizeDistribution: { n: number; probability: number }[];
+};
+
+/** Cumulative distribution carried between looks, and the binomial increments it is convolved with. */
+function convolve(dist: Float64Array, inc: Float64Array): Float64Array {
+  const out = new Float64Array(dist.length + inc.length - 1);
+  for (let x = 0; x < dist.length; x++) {
+    const w = dist[x];
+    if (w === 0) continue;
+    for (let y = 0; y < inc.length; y++) out[x + y] += w * inc[y];
+  }
+  return out;
+}
+
+function validateBoundaries(boundaries: ResponseBoundary[]): void {
+  if (!Array.isArray(boundaries) || boundaries.length === 0)
+    throw new StatsDomainError("boundaries", boundaries, "must be a non-empty array of looks");
+  let prev = 0;
+  boundaries.forEach((b, k) => {
+    validateResponseBoundary(b, prev);
+    prev = b.n;
+    const last = k === boundaries.length - 1;
+    if (b.final !== last) throw new StatsDomainError("boundary.final", b.final, "must be true for the last look only");
+  });
+}
+
+/**
+ * Exact single-arm operating characteristics of a boundary table at true response rate p.
+ *
+ * @param boundaries - looks in increasing n; the last is the final analysis (final: true), where
+ *   counts >= efficacyMin are success (null: no count succeeds)
+ * @param p - true response rate, 0 <= p <= 1
+ */
+export function exactOperatingCharacteristics(boundaries: ResponseBoundary[], p: number): OperatingCharacteristics {
+  validateBoundaries(boundaries);
+  requireProbability("p", p, { closed: true });
+  const incCache = new Map<number, Float64Array>();
+  let dist: Float64Array = new Float64Array([1]);
+  let prev = 0;
+  const looks: LookOutcome[] = [];
+  for (const b of boundaries) {
+    const gap = b.n - prev;
+    let inc = incCache.get(gap);
+    if (!inc) incCache.set(gap, (inc = binomialPmfs(gap, p)));
+    dist = convolve(dist, inc);
+    prev = b.n;
+    const fMax = b.futilityMax ?? -1;
+    const eMin = b.efficacyMin ?? b.n + 1;
+    let fut = 0;
+    let eff = 0;
+    let cont = 0;
+    for (let x = 0; x <= b.n; x++) {
+      if (x <= fMax) {
+        fut += dist[x];
+        dist[x] = 0;
+      } else if (x >= eMin) {
+        eff += dist[x];
+        dist[x] = 0;
+      } else if (b.final) {
+        // Final analysis: every remaining count is "no success" (the row's futilityMax normally covers it).
+        fut += dist[x];
+        dist[x] = 0;
+      } else cont += dist[x];
+    }
+    looks.push({ n: b.n, pStopFutility: fut, pStopEfficacy: eff, pContinue: b.final ? 0 : cont });
+  }
+  const interim = looks.slice(0, -1);
+  const last = looks[looks.length - 1];
+  const pEarlyFutility = interim.reduce((s, l) => s + l.pStopFutility, 0);
+  const pEarlyEfficacy = interim.reduce((s, l) => s + l.pStopEfficacy, 0);
+  const sampleSizeDistribution = looks.map((l) => ({ n: l.n, probability: l.pStopFutility + l.pStopEfficacy }));
+  return {
+    p,
+    looks,
+    pEarlyFutility,
+    pEarlyEfficacy,
+    pEarlyTermination: pEarlyFutility + pEarlyEfficacy,
+    pSuccessAtEnd: last.pStopEfficacy,
+    pNoSuccessAtEnd: last.pStopFutility,
+    pDeclareSuccess: last.pStopEfficacy + pEarlyEfficacy,
+    expectedSampleSize: sampleSizeDistribution.reduce((s, d) => s + d.n * d.probability, 0),
+    sampleSizeDistribution,
+  };
+}
+
+/** Exact operating characteristics of a single-arm design at true rate p (0 <= p <= 1). */
+export function singleArmOperatingCharacteristics(design: SingleArmDesign, p: number): OperatingCharacteristics {
+  return exactOperatingCharacteristics(singleArmBoundaries(design).response, p);
+}
+
+/** Operating characteristics over a curve of true rates, computing the boundaries once. */
+export function operatingCharacteristicsCurve(design: SingleArmDesign, rates: number[]): OperatingCharacteristics[] {
+  if (!Array.isArray(rates)) throw new StatsDomainError("rates", rates, "must be an array of rates");
+  const b = singleArmBoundaries(design).response;
+  return rates.map((p) => exactOperatingCharacteristics(b, p));
+}
+
+/** Type I error at p0 and power at p1 of a single-arm design (both count early efficacy stops). */
+export function typeIErrorAndPower(design: SingleArmDesign): {
+  typeIError: number;
+  power: number;
+  atNull: OperatingCharacteristics;
+  atTarget: OperatingCharacteristics;
+} {
+  const b = singleArmBoundaries(design).response;
+  const atNull = exactOperatingCharacteristics(b, design.p0);
+  const atTarget = exactOperatingCharacteristics(b, design.p1);
+  return { typeIError: atNull.pDeclareSuccess, power: atTarget.pDeclareSuccess, atNull, atTarget };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Safety-only characteristics
+// ---------------------------------------------------------------------------------------------
+
+export type SafetyOperatingCharacteristics = {
+  /** True toxicity rate. */
+  q: number;
+  /** P(the first safety stop is at this look); the final look counts a flag at the final analysis. */
+  looks: { n: number; pSafetyStop: number }[];
+  /** P(a safety stop at any look, final included). */
+  pSafetyStop: number;
+  /** P(a safety stop before nMax). */
+  pEarlySafetyStop: number;
+  /** Expected patients enrolled when safety monitoring alone decides when to stop. */
+  expectedSampleSize: number;
+};
+
+/**
+ * Exact probability of a safety stop by look at true toxicity rate q, with safety monitoring alone
+ * (no response-based stopping), so no assumption about the joint law of toxicity and response.
+ * @param boundaries - from `safetyBoundaries`, looks in increasing n
+ * @param q - true toxicity rate, 0 <= q <= 1
+ */
+export function exactSafetyOperatingCharacteristics(boundaries: SafetyBoundary[], q: number): SafetyOperatingCharacteristics {
+  if (!Array.isArray(boundaries) || boundaries.length === 0)
+    throw new StatsDomainError("boundaries", boundaries, "must be a non-empty array of looks");
+  requireProbability("q", q, { closed: true });
+  let dist: Float64Array = new Float64Array([1]);
+  let prev = 0;
+  const looks: { n: number; pSafetyStop: number }[] = [];
+  let expected = 0;
+  boundaries.forEach((b, k) => {
+    requireCount("boundary.n", b.n);
+    if (b.n <= prev && !(k === 0 && b.n > 0)) throw new StatsDomainError("boundary.n", b.n, `must exceed the previous look ${prev}`);
+    if (b.toxicityMin !== null) {
+      requireCount("boundary.toxicityMin", b.toxicityMin);
+      if (b.toxicityMin > b.n) throw new StatsDomainError("boundary.toxicityMin", b.toxicityMin, `must not exceed n = ${b.n}`);
+    }
+    dist = convolve(dist, binomialPmfs(b.n - prev, q));
+    prev = b.n;
+    let stop = 0;
+    if (b.toxicityMin !== null)
+      for (let t = b.toxicityMin; t <= b.n; t++) {
+        stop += dist[t];
+        dist[t] = 0;
+      }
+    looks.push({ n: b.n, pSafetyStop: stop });
+    expected += b.n * stop;
+  });
+  const remaining = dist.reduce((s, v) => s + v, 0);
+  const nMax = boundaries[boundaries.length - 1].n;
+  expected += nMax * remaining;
+  const pSafetyStop = looks.reduce((s, l) => s + l.pSafetyStop, 0);
+  return { q, looks, pSafetyStop, pEarlySafetyStop: pSafetyStop - looks[looks.length - 1].pSafetyStop, expectedSampleSize: expected };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Two arms
+// ---------------------------------------------------------------------------------------------
+
+export type TwoArmOperatingCharacteristics = Omit<OperatingCharacteristics, "p"> & { pT: number; pC: number };
+
+/**
+ * Exact two-arm operating characteristics at true rates (pT, pC), by forward recursion over the
+ * joint (xT, xC) state with equal per-arm looks. Sample sizes are per arm.
+ * @param boundaries - from `twoArmBoundaries`: per look, per control count, the bounds on xT
+ * @param pT, pC - true rates, each in [0, 1]
+ */
+export function exactTwoArmOperatingCharacteristics(boundaries: TwoArmBoundary[], pT: number, pC: number): TwoArmOperatingCharacteristics {
+  if (!Array.isArray(boundaries) || boundaries.length === 0)
+    throw new StatsDomainError("boundaries", boundaries, "must be a non-empty array of looks");
+  requireProbability("pT", pT, { closed: true });
+  requireProbability("pC", pC, { closed: true });
+  // dist[xC * (n + 1) + xT]
+  let dist: Float64Array = new Float64Array([1]);
+  let prev = 0;
+  const looks: LookOutcome[] = [];
+  boundaries.forEach((b, k) => {
+    requireCount("boundary.n", b.n);
+    if (b.n <= prev) throw new StatsDomainError("boundary.n", b.n, `must exceed the previous look ${prev}`);
+    if (b.final !== (k === boundaries.length - 1)) throw new StatsDomainError("boundary.final", b.final, "must be true for the last look only");
+    if (b.futilityMaxT.length !== b.n + 1 || b.efficacyMinT.length !== b.n + 1)
+      throw new StatsDomainError("boundary.futilityMaxT", b.futilityMaxT.length, `must have one entry per control count 0..${b.n}`);
+    const n = b.n;
+    const gap = n - prev;
+    const incT = binomialPmfs(gap, pT);
+    const incC = binomialPmfs(gap, pC);
+    const w0 = prev + 1;
+    const w1 = n + 1;
+    // Separable convolution: experimental increments along rows, then control increments down columns.
+    const rows = new Float64Array(w0 * w1);
+    for (let xC = 0; xC < w0; xC++) {
+      const src = xC * w0;
+      const dst = xC * w1;
+      for (let xT = 0; xT < w0; xT++) {
+        const v = dist[src + xT];
+        if (v === 0) continue;
+        for (let y = 0; y <= gap; y++) rows[dst + xT + y] += v * incT[y];
+      }
+    }
+    const next = new Float64Array(w1 * w1);
+    for (let xC = 0; xC < w0; xC++) {
+      const src = xC * w1;
+      for (let y = 0; y <= gap; y++) {
+        const c = incC[y];
+        if (c === 0) continue;
+        const dst = (xC + y) * w1;
+        for (let xT = 0; xT < w1; xT++) next[dst + xT] += rows[src + xT] * c;
+      }
+    }
+    dist = next;
+    prev = n;
+    let fut = 0;
+    let eff = 0;
+    let cont = 0;
+    for (let xC = 0; xC <= n; xC++) {
+      const fMax = b.futilityMaxT[xC] ?? -1;
+      const eMin = b.efficacyMinT[xC] ?? n + 1;
+      const base = xC * w1;
+      for (let xT = 0; xT <= n; xT++) {
+        const v = dist[base + xT];
+        if (xT <= fMax) {
+          fut += v;
+          dist[base + xT] = 0;
+        } else if (xT >= eMin) {
+          eff += v;
+          dist[base + xT] = 0;
+        } else if (b.final) {
+          fut += v;
+          dist[base + xT] = 0;
+        } else cont += v;
+      }
+    }
+    looks.push({ n, pStopFutility: fut, pStopEfficacy: eff, pContinue: b.final ? 0 : cont });
+  });
+  const interim = looks.slice(0, -1);
+  const last = looks[looks.length - 1];
+  const pEarlyFutility = interim.reduce((s, l) => s + l.pStopFutility, 0);
+  const pEarlyEfficacy = interim.reduce((s, l) => s + l.pStopEfficacy, 0);
+  const sampleSizeDistribution = looks.map((l) => ({ n: l.n, probability: l.pStopFutility + l.pStopEfficacy }));
+  return {
+    pT,
+    pC,
+    looks,
+    pEarlyFutility,
+    pEarlyEfficacy,
+    pEarlyTermination: pEarlyFutility + pEarlyEfficacy,
+    pSuccessAtEnd: last.pStopEfficacy,
+    pNoSuccessAtEnd: last.pStopFutility,
+    pDeclareSuccess: last.pStopEfficacy + pEarlyEfficacy,
+    expectedSampleSize: sampleSizeDistribution.reduce((s, d) => s + d.n * d.probability, 0),
+    sampleSizeDistribution,
+  };
+}
+
+/** Exact two-arm operating characteristics of a design at (pT, pC). */
+export function twoArmOperatingCharacteristics(design: TwoArmDesign, pT: number, pC: number): TwoArmOperatingCharacteristics {
+  return exactTwoArmOperatingCharacteristics(twoArmBoundaries(design).response, pT, pC);
+}
+
+/** Two-arm type I error at pT = pC = controlRate and power at (experimentalRate, controlRate). */
+export function twoArmTypeIErrorAndPower(design: TwoArmDesign): {
+  typeIError: number;
+  power: number;
+  atNull: TwoArmOperatingCharacteristics;
+  atTarget: TwoArmOperatingCharacteristics;
+} {
+  const b = twoArmBoundaries(design).response;
+  const atNull = exactTwoArmOperatingCharacteristics(b, design.controlRate, design.controlRate);
+  const atTarget = exactTwoArmOperatingCharacteristics(b, design.experimentalRate, design.controlRate);
+  return { typeIError: atNull.pDeclareSuccess, power: atTarget.pDeclareSuccess, atNull, atTarget };
+}
+
+/**
+ * Safety-only characteristics of a design's safety rule at true toxicity rate q, at the design's
+ * planned looks; null when the design has no safety rule.
+ */
+export function safetyOperatingCharacteristics(design: Design, q: number): SafetyOperatingCharacteristics | null {
+  if (!design.safety) return null;
+  const looks = expandLooks(design.looks, design.arms === "single" ? design.nMax : design.nMaxPerArm);
+  return exactSafetyOperatingCharacteristics(safetyBoundaries(design.safety, looks), q);
+}

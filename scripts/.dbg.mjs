@@ -1,0 +1,12 @@
+import { chromium } from "@playwright/test";
+const b = await chromium.launch({ executablePath: "/usr/bin/chromium", args: ["--no-sandbox","--disable-gpu","--disable-background-networking"] });
+const p = await b.newPage();
+p.on("console", m => console.log("console:", m.text()));
+p.on("response", r => { if (r.url().includes("/api/")) console.log("resp", r.status(), r.url()); });
+await p.goto("http://localhost:3000/signin");
+await p.getByLabel("E-mail").fill("sponsor@cairn.example"); await p.getByLabel("Password").fill("demo-sponsor-pass");
+await p.getByRole("button", { name: "Sign in" }).click();
+await p.waitForTimeout(4000);
+console.log(p.url()); console.log((await p.textContent("main")).slice(0,400));
+await p.screenshot({ path: "/tmp/shots/dbg.png" });
+await b.close();

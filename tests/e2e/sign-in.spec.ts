@@ -1,0 +1,55 @@
+import { expect, test } from "@playwright/test";
+import { ACCOUNTS, signIn, type AccountKey } from "./support/accounts";
+
+test("an anonymous visitor is sent to the sign-in page, and the API answers 401", async ({ page, request }) => {
+  await page.goto("/trials");
+  await expect(page).toHaveURL(/\/signin$/);
+  const res = await request.get("/api/trials/1/open-status", { maxRedirects: 0 });
+  expect(res.status()).toBe(401);
+});
+
+test("a wrong password gets a clear message and no session", async ({ page }) => {
+  await page.goto("/signin");
+  await page.getByLabel("E-mail").fill(ACCOUNTS.sponsor.email);
+  await page.getByLabel("Password").fill("not-the-password");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.getByRole("alert").filter({ hasText: "not correct" })).toBeVisible();
+  await page.goto("/trials");
+  await expect(page).toHaveURL(/\/signin$/);
+});
+
+test("empty and malformed input is refused before anything is sent", async ({ page }) => {
+  await page.goto("/signin");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.getByText("Enter your e-mail address.")).toBeVisible();
+  await expect(page.getByText("Enter your password.")).toBeVisible();
+  await page.getByLabel("E-mail").fill("no-at-sign");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.getByText("Enter a valid e-mail address.")).toBeVisible();
+});
+
+const EXPECTED_ROLE_BADGE: Record<AccountKey, string | null> = {
+  admin: null,
+  statistician: "Unblinded statistician",
+  dmc: "DMC member",
+  sponsor: "Sponsor",
+  coordinator: "Trial coordinator",
+};
+
+for (const who of Object.keys(ACCOUNTS) as AccountKey[]) {
+  test(`${who} signs in, sees both demo trials with the right role, and signs out`, async ({ page }) => {
+    await signIn(page, who);
+    await expect(page).toHaveURL(/\/trials$/);
+    for (const code of ["CRN-201", "CRN-305"]) {
+      const roles = page.getByTestId(`roles-${code}`);
+      if (EXPECTED_ROLE_BADGE[who]) await expect(roles).toContainText(EXPECTED_ROLE_BADGE[who]!);
+      else await expect(roles).toContainText("Administrator (blinded)");
+    }
+    await page.getByRole("link", { name: "CRN-201" }).click();
+    await expect(page.getByTestId("caution")).toContainText("Decision support only");
+    await page.getByRole("button", { name: "Sign out" }).click();
+    await expect(page).toHaveURL(/\/signin$/);
+    await page.goto("/trials");
+    await expect(page).toHaveURL(/\/signin$/);
+  });
+}
