@@ -16,6 +16,8 @@ const csp = [
 ].join("; ");
 
 const nextConfig = {
+  // Parallel builds (several developers or test runs on one machine) each get their own output folder.
+  distDir: process.env.NEXT_DIST_DIR || ".next",
   // knex pulls in drivers it never uses (pg, sqlite3, ...) when bundled; keep it and mysql2 external.
   serverExternalPackages: ["knex", "mysql2", "pdfkit", "nodemailer", "piscina", "smtp-server", "mailparser"],
   poweredByHeader: false,

@@ -23,7 +23,7 @@ export default defineConfig({
   },
   webServer: [
     {
-      command: `npx tsx scripts/mail-catcher.ts --port ${smtpPort} --dir .data/mail-e2e`,
+      command: `npx tsx scripts/mail-catcher.ts --port ${smtpPort} --dir .data/mail-e2e-${port}`,
       port: smtpPort,
       reuseExistingServer: false,
       timeout: 30_000,
@@ -40,7 +40,7 @@ export default defineConfig({
         NEXTAUTH_URL: baseURL,
         SMTP_HOST: "127.0.0.1",
         SMTP_PORT: String(smtpPort),
-        CAIRN_MAIL_DIR: ".data/mail-e2e",
+        CAIRN_MAIL_DIR: `.data/mail-e2e-${port}`,
       },
     },
   ],

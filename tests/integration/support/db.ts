@@ -16,7 +16,7 @@ export function ownerKnex(): Knex {
   return knexFactory({ ...config, connection: databaseConnection(true) });
 }
 
-if (process.env.CAIRN_DB_NAME !== "cairn_test") {
+if (!process.env.CAIRN_DB_NAME?.startsWith("cairn_test")) {
   throw new Error("Integration tests must run against CAIRN_DB_NAME=cairn_test (use scripts/test).");
 }
 
