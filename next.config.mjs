@@ -21,6 +21,9 @@ const nextConfig = {
   // knex pulls in drivers it never uses (pg, sqlite3, ...) when bundled; keep it and mysql2 external.
   serverExternalPackages: ["knex", "mysql2", "pdfkit", "nodemailer", "piscina", "smtp-server", "mailparser"],
   poweredByHeader: false,
+  // scripts/test runs `tsc --noEmit` over the whole project (app, lib, db, tests) as its own step;
+  // checking again inside the build would only repeat it.
+  typescript: { ignoreBuildErrors: true },
   experimental: { authInterrupts: true },
   async headers() {
     return [

@@ -6,9 +6,9 @@ import path from "node:path";
 export default defineConfig({
   resolve: {
     alias: {
-      "@": path.resolve(__dirname),
+      "@": path.resolve(import.meta.dirname),
       // The server-only guard throws outside a React Server environment; tests are server code.
-      "server-only": path.resolve(__dirname, "tests/integration/support/server-only-stub.ts"),
+      "server-only": path.resolve(import.meta.dirname, "tests/integration/support/server-only-stub.ts"),
     },
   },
   test: {

@@ -25,9 +25,10 @@ export async function createAccount(_prev: FormState, form: FormData): Promise<F
     return denied(e);
   }
   const parsed = createAccountSchema.safeParse(Object.fromEntries(form));
-  if (!parsed.success) return { error: "Check the highlighted fields.", fieldErrors: parsed.error.flatten().fieldErrors };
+  const values = { name: String(form.get("name") ?? ""), email: String(form.get("email") ?? "") };
+  if (!parsed.success) return { error: "Check the highlighted fields.", fieldErrors: parsed.error.flatten().fieldErrors, values };
   const { name, email, password, isAdmin } = parsed.data;
-  if (await fetchUserByEmail(email)) return { error: "Check the highlighted fields.", fieldErrors: { email: ["An account with this e-mail address already exists."] } };
+  if (await fetchUserByEmail(email)) return { error: "Check the highlighted fields.", fieldErrors: { email: ["An account with this e-mail address already exists."] }, values };
   const passwordHash = await bcrypt.hash(password, BCRYPT_ROUNDS);
   try {
     await db.transaction(async (tx) => {
@@ -45,7 +46,7 @@ export async function createAccount(_prev: FormState, form: FormData): Promise<F
     });
   } catch (e) {
     if ((e as { code?: string }).code === "ER_DUP_ENTRY")
-      return { error: "Check the highlighted fields.", fieldErrors: { email: ["An account with this e-mail address already exists."] } };
+      return { error: "Check the highlighted fields.", fieldErrors: { email: ["An account with this e-mail address already exists."] }, values };
     throw e;
   }
   revalidatePath("/admin");

@@ -19,16 +19,16 @@ export function CreateAccountForm() {
   const [state, action, pending] = useActionState(createAccount, initial);
   const fe = state.fieldErrors ?? {};
   return (
-    <form action={action} className="flex flex-col gap-3" aria-label="Create an account">
+    <form action={action} noValidate className="flex flex-col gap-3" aria-label="Create an account">
       <Outcome state={state} />
       <Field label="Name" name="name" error={fe.name}>
-        <TextInput id="name" name="name" maxLength={120} invalid={!!fe.name} required />
+        <TextInput id="name" name="name" maxLength={120} invalid={!!fe.name} defaultValue={state.values?.name} />
       </Field>
       <Field label="E-mail" name="email" error={fe.email}>
-        <TextInput id="email" name="email" type="email" maxLength={254} invalid={!!fe.email} required />
+        <TextInput id="email" name="email" type="email" maxLength={254} invalid={!!fe.email} defaultValue={state.values?.email} />
       </Field>
       <Field label="Initial password" name="password" error={fe.password} hint="At least 12 characters. Share it with the person by a separate channel.">
-        <TextInput id="password" name="password" type="password" autoComplete="new-password" maxLength={200} invalid={!!fe.password} required />
+        <TextInput id="password" name="password" type="password" autoComplete="new-password" maxLength={200} invalid={!!fe.password} />
       </Field>
       <label className="flex items-center gap-2 text-sm">
         <input type="checkbox" name="isAdmin" /> Administrator (manages accounts; stays blinded)
@@ -42,7 +42,7 @@ export function AssignRoleForm({ users, trials }: { users: { id: number; label: 
   const [state, action, pending] = useActionState(assignRole, initial);
   const fe = state.fieldErrors ?? {};
   return (
-    <form action={action} className="flex flex-col gap-3" aria-label="Give a role on a trial">
+    <form action={action} noValidate className="flex flex-col gap-3" aria-label="Give a role on a trial">
       <Outcome state={state} />
       <Field label="Person" name="userId" error={fe.userId}>
         <SelectInput id="userId" name="userId" defaultValue="" invalid={!!fe.userId}>

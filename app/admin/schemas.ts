@@ -19,4 +19,5 @@ export const assignRoleSchema = z.object({
 
 export const removeRoleSchema = z.object({ membershipId: z.coerce.number().int().positive() });
 
-export type FormState = { ok?: string; error?: string; fieldErrors?: Record<string, string[] | undefined> };
+/** What a form action returns: a message, field errors, and the submitted values to show again (never passwords). */
+export type FormState = { ok?: string; error?: string; fieldErrors?: Record<string, string[] | undefined>; values?: Record<string, string> };

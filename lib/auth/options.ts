@@ -5,6 +5,15 @@ import bcrypt from "bcryptjs";
 import { z } from "zod";
 import { fetchUserByEmail } from "@/db/queries/users";
 import { recordAuditEvent } from "@/db/audit";
+import { FailureWindow, SIGN_IN_LIMITS, tooManyAttemptsMessage } from "./rate-limit";
+
+const accountFailures = new FailureWindow(SIGN_IN_LIMITS.perAccount);
+const addressFailures = new FailureWindow(SIGN_IN_LIMITS.perAddress);
+
+function clientAddress(headers: Record<string, unknown> | undefined): string {
+  const fwd = String(headers?.["x-forwarded-for"] ?? "").split(",")[0].trim();
+  return fwd || String(headers?.["x-real-ip"] ?? "local");
+}
 
 export const signInSchema = z.object({
   email: z.string().trim().min(1, "Enter your e-mail address.").max(254, "That e-mail address is too long.").email("Enter a valid e-mail address."),
@@ -24,13 +33,20 @@ export const authOptions: NextAuthOptions = {
     CredentialsProvider({
       name: "Cairn account",
       credentials: { email: { label: "E-mail", type: "email" }, password: { label: "Password", type: "password" } },
-      async authorize(raw) {
+      async authorize(raw, req) {
         const parsed = signInSchema.safeParse(raw ?? {});
         if (!parsed.success) return null;
         const { email, password } = parsed.data;
+        const account = email.toLowerCase();
+        const address = clientAddress(req?.headers as Record<string, unknown> | undefined);
+        const wait = Math.max(accountFailures.blockedFor(account), addressFailures.blockedFor(address));
+        // next-auth passes a thrown error's message to the sign-in form.
+        if (wait > 0) throw new Error(tooManyAttemptsMessage(wait));
         const user = await fetchUserByEmail(email);
         const ok = await bcrypt.compare(password, user?.password_hash ?? DUMMY_HASH);
         if (!user || !ok || !user.is_active) {
+          accountFailures.recordFailure(account);
+          addressFailures.recordFailure(address);
           await recordAuditEvent({
             actorUserId: user?.id ?? null,
             actorEmail: email.toLowerCase(),
@@ -42,6 +58,7 @@ export const authOptions: NextAuthOptions = {
           });
           return null;
         }
+        accountFailures.reset(account);
         await recordAuditEvent({
           actorUserId: user.id,
           actorEmail: user.email,

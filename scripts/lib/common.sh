@@ -3,13 +3,14 @@
 set -euo pipefail
 
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/../.." && pwd)"
-DATA_DIR="$ROOT/.data"
-RUN_DIR="$ROOT/.run"
+# Overridable so a test can run a second, scratch instance beside the developer's.
+DATA_DIR="${CAIRN_DATA_DIR:-$ROOT/.data}"
+RUN_DIR="${CAIRN_RUN_DIR:-$ROOT/.run}"
 MARIADB_DATADIR="$DATA_DIR/mariadb"
 MARIADB_SOCKET="$RUN_DIR/mariadb.sock"
 MARIADB_PID="$RUN_DIR/mariadb.pid"
 MARIADB_LOG="$RUN_DIR/mariadb.log"
-SECRETS_FILE="$DATA_DIR/secrets.env"
+SECRETS_FILE="${CAIRN_SECRETS_FILE:-$ROOT/.data/secrets.env}"
 
 # Cairn's own ports, away from the usual 3306/3000/25 so another instance on the machine does not clash.
 export CAIRN_DB_HOST="${CAIRN_DB_HOST:-127.0.0.1}"

@@ -1,0 +1,108 @@
+/**
+ * Faults: MariaDB goes away under a running production server, then comes back. Requests fail with a
+ * clear message and write nothing; the app recovers by itself within 10 s. Then an unclean stop
+ * (kill -9): the start function of scripts/up brings the same data directory back.
+ * Uses a scratch MariaDB instance (own data directory and port) and its own `next start`, so the
+ * other tests' database is never touched. Needs a production build (scripts/test builds first).
+ */
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { execFileSync, spawn, type ChildProcess } from "node:child_process";
+import { existsSync, mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import { signInCookie } from "../support/http-session";
+
+const root = path.resolve(__dirname, "../..");
+const scratch = mkdtempSync(path.join(tmpdir(), "cairn-fault-"));
+const DB_PORT = "3419";
+const APP_PORT = 3111;
+const base = `http://localhost:${APP_PORT}`;
+const env = {
+  ...process.env,
+  CAIRN_DATA_DIR: path.join(scratch, "data"),
+  CAIRN_RUN_DIR: path.join(scratch, "run"),
+  CAIRN_DB_PORT: DB_PORT,
+  CAIRN_DB_NAME: "cairn_fault",
+  PATH: `${process.env.PATH}:/usr/sbin`,
+};
+const distDir = process.env.NEXT_DIST_DIR || ".next";
+const built = existsSync(path.join(root, distDir, "BUILD_ID"));
+// In CI (scripts/test builds first) a missing build is a failure, not a reason to skip.
+if (!built && process.env.CI) throw new Error(`no production build in ${distDir}: run next build first`);
+
+function sh(script: string) {
+  return execFileSync("bash", ["-c", `source scripts/lib/common.sh; ensure_secrets; ${script}`], { cwd: root, env, stdio: "pipe" }).toString();
+}
+
+let app: ChildProcess | undefined;
+
+async function waitFor(fn: () => Promise<boolean>, ms: number): Promise<number> {
+  const t0 = Date.now();
+  while (Date.now() - t0 < ms) {
+    if (await fn().catch(() => false)) return Date.now() - t0;
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  throw new Error(`not within ${ms} ms`);
+}
+const healthy = async () => (await fetch(`${base}/api/health`)).status === 200;
+
+beforeAll(async () => {
+  if (!built) return;
+  sh("start_mariadb; ensure_database cairn_fault; migrate_database cairn_fault");
+  execFileSync("npx", ["tsx", "--conditions=react-server", "scripts/seed.ts"], { cwd: root, env: { ...env, ...secrets() }, stdio: "pipe" });
+  app = spawn("npx", ["next", "start", "-p", String(APP_PORT)], { cwd: root, env: { ...env, ...secrets(), NODE_ENV: "production", NEXTAUTH_URL: base }, stdio: "ignore", detached: true });
+  await waitFor(healthy, 60_000);
+}, 180_000);
+
+function secrets(): Record<string, string> {
+  const out = sh("env | grep -E '^(CAIRN_DB_APP_|CAIRN_DB_OWNER_|NEXTAUTH_SECRET)'");
+  return Object.fromEntries(out.trim().split("\n").map((l) => [l.slice(0, l.indexOf("=")), l.slice(l.indexOf("=") + 1)]));
+}
+
+afterAll(() => {
+  if (app?.pid) {
+    try {
+      process.kill(-app.pid, "SIGTERM");
+    } catch {
+      /* gone */
+    }
+  }
+  try {
+    sh("stop_mariadb");
+  } catch {
+    /* gone */
+  }
+  rmSync(scratch, { recursive: true, force: true });
+});
+
+describe.skipIf(!built)("database outage", () => {
+  it("requests fail with a clear 503 while MariaDB is down, and the app recovers within 10 s of it coming back", async () => {
+    const cookie = await signInCookie(base, "sponsor@cairn.example", "demo-sponsor-pass");
+    const before = await fetch(`${base}/api/trials/1/open-status`, { headers: { cookie } });
+    expect(before.status).toBe(200);
+
+    sh("stop_mariadb");
+    const health = await fetch(`${base}/api/health`);
+    expect(health.status).toBe(503);
+    expect(await health.json()).toMatchObject({ database: "unreachable" });
+    const during = await fetch(`${base}/api/trials/1/open-status`, { headers: { cookie } });
+    expect(during.status).toBe(503);
+    const body = await during.text();
+    expect(body).toMatch(/database is not reachable/i);
+    expect(body).not.toMatch(/ECONNREFUSED|stack|at .*\.js/);
+
+    sh("start_mariadb");
+    const recoveredIn = await waitFor(async () => (await fetch(`${base}/api/trials/1/open-status`, { headers: { cookie } })).status === 200, 10_000);
+    expect(recoveredIn).toBeLessThan(10_000);
+  }, 60_000);
+
+  it("after an unclean stop (kill -9), the start function brings the same data back", async () => {
+    const pid = Number(sh("cat \"$MARIADB_PID\"").trim());
+    process.kill(pid, "SIGKILL");
+    await new Promise((r) => setTimeout(r, 500));
+    sh("start_mariadb");
+    const users = sh("mysql_root -N -e 'SELECT COUNT(*) FROM cairn_fault.users'").trim();
+    expect(Number(users)).toBe(6);
+    await waitFor(healthy, 10_000);
+  }, 60_000);
+});
