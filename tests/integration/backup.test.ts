@@ -32,7 +32,7 @@ beforeAll(async () => {
   execFileSync("bash", ["scripts/backup", process.env.CAIRN_DB_NAME!, dump], { stdio: "pipe" });
   execFileSync("bash", ["scripts/restore", dump, "--fresh-instance", dir, String(port), "--database", "cairn_restored"], { stdio: "pipe" });
   execFileSync("mariadb", ["--no-defaults", `--socket=${sock}`, "-uroot", "-e", "CREATE USER IF NOT EXISTS 'verify'@'127.0.0.1' IDENTIFIED BY 'verify-pass'; GRANT SELECT, TRIGGER ON cairn_restored.* TO 'verify'@'127.0.0.1';"], { env: { ...process.env, PATH: `${process.env.PATH}:/usr/sbin` } });
-  restored = knexFactory({ client: "mysql2", connection: { host: "127.0.0.1", port, user: "verify", password: "verify-pass", database: "cairn_restored", timezone: "Z", dateStrings: ["DATE"] } });
+  restored = knexFactory({ client: "mysql2", connection: { host: "127.0.0.1", port, user: "verify", password: "verify-pass", database: "cairn_restored", timezone: "Z" } });
 }, 120_000);
 
 afterAll(async () => {
