@@ -121,3 +121,65 @@ export type AuditEventRow = {
   prev_hash: string;
   hash: string;
 };
+
+export type MeetingStatus = "scheduled" | "held" | "cancelled";
+/** A DMC meeting. Open information: time, agendas (organiser's text), the look it reviews. */
+export type MeetingRow = {
+  id: number;
+  trial_id: number;
+  analysis_id: number;
+  /** UTC instant. */
+  scheduled_at: Date;
+  /** IANA time zone the meeting was scheduled in, e.g. "Europe/Oslo". */
+  time_zone: string;
+  open_agenda: string;
+  closed_agenda: string;
+  reminder_days_before: number;
+  reminder_sent_at: Date | null;
+  status: MeetingStatus;
+  row_version: number;
+  created_by: number | null;
+  created_at: Date;
+  updated_at: Date;
+};
+
+export type MeetingAttendeeRow = { id: number; meeting_id: number; user_id: number; attended: number | boolean | null };
+
+export type PacketAudience = "open" | "closed";
+/** A generated packet without its PDF bytes (listings never select them). */
+export type PacketMetaRow = {
+  id: number;
+  meeting_id: number;
+  version: number;
+  audience: PacketAudience;
+  content_hash: string;
+  engine_version: string;
+  page_count: number;
+  byte_size: number;
+  created_at: Date;
+  created_by: number | null;
+};
+/** CLOSED when audience is "closed": the PDF holds arm-level results. */
+export type PacketRow = PacketMetaRow & { pdf: Buffer };
+
+export type EmailKind = "packet_open" | "packet_closed_notice" | "meeting_reminder";
+export type EmailStatus = "queued" | "sending" | "sent" | "failed";
+export type EmailMessageRow = {
+  id: number;
+  trial_id: number;
+  meeting_id: number | null;
+  packet_id: number | null;
+  to_user_id: number | null;
+  to_address: string;
+  subject: string;
+  kind: EmailKind;
+  body_text: string;
+  status: EmailStatus;
+  attempts: number;
+  last_error: string | null;
+  next_attempt_at: Date | null;
+  sent_at: Date | null;
+  smtp_message_id: string | null;
+  created_by: number | null;
+  created_at: Date;
+};

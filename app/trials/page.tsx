@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { requirePageUser } from "@/lib/auth";
+import { mayCreateTrial, requirePageUser } from "@/lib/auth";
+import { buttonClass } from "@/components/ui/button";
 import { fetchTrialsForUser } from "@/db/queries/trials";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { Badge } from "@/components/ui/badge";
@@ -10,10 +11,15 @@ export const metadata: Metadata = { title: "Trials" };
 
 export default async function TrialsPage() {
   const user = await requirePageUser();
-  const trials = await fetchTrialsForUser(user.id, user.isAdmin);
+  const [trials, mayCreate] = await Promise.all([fetchTrialsForUser(user.id, user.isAdmin), mayCreateTrial(user)]);
   return (
     <div className="flex flex-col gap-5">
       <div>
+        {mayCreate ? (
+          <Link href="/trials/new" className={buttonClass("primary", "float-right no-underline")}>
+            New trial
+          </Link>
+        ) : null}
         <h1>Trials</h1>
         <p className="text-sm text-stone-600">The trials you hold a role on{user.isAdmin ? " (as administrator you see every trial, blinded)" : ""}.</p>
       </div>

@@ -17,6 +17,10 @@ import * as m11 from "./20261202001100_create_audit_events";
 import * as m12 from "./20261202001200_create_audit_chain_head";
 import * as m13 from "./20261202001300_audit_events_refuse_update";
 import * as m14 from "./20261202001400_audit_events_refuse_delete";
+import * as m20 from "./20261202002000_create_meetings";
+import * as m21 from "./20261202002100_create_meeting_attendees";
+import * as m22 from "./20261202002200_create_packets";
+import * as m23 from "./20261202002300_create_email_messages";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
 const migrations: Array<[string, Migration]> = [
@@ -34,6 +38,10 @@ const migrations: Array<[string, Migration]> = [
   ["20261202001200_create_audit_chain_head", m12],
   ["20261202001300_audit_events_refuse_update", m13],
   ["20261202001400_audit_events_refuse_delete", m14],
+  ["20261202002000_create_meetings", m20],
+  ["20261202002100_create_meeting_attendees", m21],
+  ["20261202002200_create_packets", m22],
+  ["20261202002300_create_email_messages", m23],
 ];
 
 export const migrationSource: Knex.MigrationSource<[string, Migration]> = {

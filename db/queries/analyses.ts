@@ -40,3 +40,33 @@ export async function updateAnalysisOpenFields(
     .update({ ...fields, row_version: rowVersion + 1, updated_at: new Date() });
   return n === 1;
 }
+
+export type AnalysisLockedRow = AnalysisOpenRow & { lock_signature_id: number | null };
+
+/**
+ * Reads a look inside a write transaction and holds its row lock until commit, so two saves of the
+ * same look queue here and the second sees the first's row_version.
+ */
+export async function fetchAnalysisForUpdate(tx: Tx, analysisId: number): Promise<AnalysisLockedRow | undefined> {
+  return tx("analyses")
+    .where({ id: analysisId })
+    .forUpdate()
+    .first([...ANALYSIS_OPEN_COLUMNS, "lock_signature_id"]);
+}
+
+/** The latest cut-off before this look and the earliest after it (open information). */
+export async function fetchNeighbourCutoffs(trialId: number, lookNumber: number, tx: Tx = db): Promise<{ before: string | null; after: string | null }> {
+  const before = await tx("analyses").where({ trial_id: trialId }).where("look_number", "<", lookNumber).whereNotNull("cutoff_date").max({ d: "cutoff_date" }).first();
+  const after = await tx("analyses").where({ trial_id: trialId }).where("look_number", ">", lookNumber).whereNotNull("cutoff_date").min({ d: "cutoff_date" }).first();
+  return { before: (before?.d as string | null) ?? null, after: (after?.d as string | null) ?? null };
+}
+
+export type LockSignatureInfo = { signerName: string; signedAt: Date; meaning: string };
+
+/** The e-signature that locked a look (open information: who signed, when, meaning). */
+export async function fetchLockSignature(analysisId: number, tx: Tx = db): Promise<LockSignatureInfo | undefined> {
+  return tx("analyses as a")
+    .join("signatures as s", "s.id", "a.lock_signature_id")
+    .where("a.id", analysisId)
+    .first("s.signer_name as signerName", "s.signed_at as signedAt", "s.meaning");
+}

@@ -53,3 +53,19 @@ export async function replacePatientOutcomes(tx: Tx, analysisId: number, rows: P
 export async function fetchRecommendationRationales(trialId: number, tx: Tx = db) {
   return tx("recommendations").where({ trial_id: trialId }).select("id", "analysis_id", "rationale", "decision", "corrects_id", "created_at").orderBy("id", "desc");
 }
+
+/** CLOSED: patient rows of a look with their arm label, for the data grid. */
+export type PatientOutcomeGridRow = PatientOutcomeRow & { arm_label: string };
+
+export async function fetchPatientOutcomeGrid(analysisId: number, tx: Tx = db): Promise<PatientOutcomeGridRow[]> {
+  return tx("patient_outcomes as p")
+    .join("arms as a", "a.id", "p.arm_id")
+    .where("p.analysis_id", analysisId)
+    .select("p.*", "a.label as arm_label")
+    .orderBy("p.source_line");
+}
+
+export async function countPatientOutcomes(analysisId: number, tx: Tx = db): Promise<number> {
+  const r = await tx("patient_outcomes").where({ analysis_id: analysisId }).count({ n: "*" }).first();
+  return Number(r?.n ?? 0);
+}

@@ -58,3 +58,46 @@ export async function markDesignLocked(tx: Tx, designId: number, signatureId: nu
 export async function supersedeLockedDesigns(tx: Tx, trialId: number): Promise<void> {
   await tx("designs").where({ trial_id: trialId, status: "locked" }).update({ status: "superseded" });
 }
+
+/** A design version with the open facts of its signature (who signed, meaning, when, record hash). */
+export type DesignVersionListing = DesignRecord & {
+  signer_name: string | null;
+  signature_meaning: string | null;
+  signed_at: Date | null;
+  record_hash: string | null;
+  created_by_name: string | null;
+};
+
+/** Every version of a trial's design, newest first; earlier versions stay readable. */
+export async function fetchDesignVersions(trialId: number, tx: Tx = db): Promise<DesignVersionListing[]> {
+  const rows = await tx("designs as d")
+    .leftJoin("signatures as s", "s.id", "d.signature_id")
+    .leftJoin("users as u", "u.id", "d.created_by")
+    .where("d.trial_id", trialId)
+    .orderBy("d.version", "desc")
+    .select(
+      "d.*",
+      "s.signer_name as signer_name",
+      "s.meaning as signature_meaning",
+      "s.signed_at as signed_at",
+      "s.record_hash as record_hash",
+      "u.name as created_by_name",
+    );
+  return rows.map((r: DesignRow & Omit<DesignVersionListing, keyof DesignRecord>) => ({ ...toRecord(r), signer_name: r.signer_name, signature_meaning: r.signature_meaning, signed_at: r.signed_at, record_hash: r.record_hash, created_by_name: r.created_by_name }));
+}
+
+/** Reads a design row and locks it until the transaction ends, so lock and save cannot interleave. */
+export async function fetchDesignForUpdate(tx: Tx, designId: number): Promise<DesignRecord | undefined> {
+  const r = await tx<DesignRow>("designs").where({ id: designId }).forUpdate().first();
+  return r ? toRecord(r) : undefined;
+}
+
+/** Status of every version of a trial, locked for the transaction (serialises draft creation and amendments). */
+export async function fetchDesignStatusesForUpdate(tx: Tx, trialId: number): Promise<Pick<DesignRow, "id" | "version" | "status">[]> {
+  return tx<DesignRow>("designs").where({ trial_id: trialId }).forUpdate().select("id", "version", "status").orderBy("version");
+}
+
+/** Ids and versions of the locked designs a new charter version will supersede. */
+export async function fetchLockedDesignIds(tx: Tx, trialId: number): Promise<{ id: number; version: number }[]> {
+  return tx("designs").where({ trial_id: trialId, status: "locked" }).select("id", "version");
+}

@@ -78,3 +78,13 @@ export async function insertTrial(tx: Tx, t: NewTrial): Promise<number> {
   await tx("arms").insert(t.arms.map((a, i) => ({ trial_id: id, label: a.label, arm_role: a.armRole, sort_order: i })));
   return id;
 }
+
+/** Locks a trial row for the rest of the transaction: serialises writes that depend on the trial's current state. */
+export async function lockTrialRow(tx: Tx, trialId: number): Promise<void> {
+  await tx("trials").where({ id: trialId }).forUpdate().first("id");
+}
+
+/** Whether a trial code is taken (codes are unique; checked before insert for a field-level message). */
+export async function trialCodeTaken(code: string, tx: Tx = db): Promise<boolean> {
+  return Boolean(await tx("trials").where({ code }).first("id"));
+}

@@ -121,6 +121,11 @@ export function validateTwoArmDesign(d: TwoArmDesign): { priorT: MixtureBeta; pr
 
 const finalRuleCache = new Map<string, TwoArmFinalRule>();
 
+/** Forget cached two-arm final tables (benchmarks use it to time the full computation). */
+export function clearTwoArmFinalRuleCache(): void {
+  finalRuleCache.clear();
+}
+
 /** The two-arm final success table for a design, computed once per distinct (priors, N, delta, thetaT). */
 export function twoArmFinalRuleForDesign(d: TwoArmDesign): TwoArmFinalRule {
   const key = JSON.stringify([d.priorT, d.priorC, d.nMaxPerArm, d.delta, d.rule.thetaT]);

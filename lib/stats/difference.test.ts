@@ -73,7 +73,7 @@ describe("probDifferenceExceeds: symmetry P(pT - pC > d) + P(pC - pT > -d) = 1 (
 describe("probDifferenceExceeds: seeded Monte Carlo (within 4 SE)", () => {
   // Draws by inversion with @stdlib/stats-base-dists-beta-quantile on @stdlib/random-base-mt19937
   // uniforms (seed 20240611), so the check shares no code with lib/stats.
-  const rng = mt19937.factory({ seed: 20240611 }).normalized;
+  const rng: () => number = (mt19937.factory({ seed: 20240611 }) as unknown as { normalized: () => number }).normalized;
   const draw = (m: MixtureBeta): number => {
     let u = rng();
     let k = 0;
@@ -126,7 +126,7 @@ describe("probDifferenceExceeds: mixtures are weight-averages of component pairs
           y.weight *
           (Number.isInteger(x.a) && Number.isInteger(y.a)
             ? exactProbTGreater(x.a, x.b, y.a, y.b)
-            : pairProbDifferenceExceeds(x.a, x.b, y.a, y.b, 0, 1e-14, true).value);
+            : pairProbDifferenceExceeds(x.a, x.b, y.a, y.b, 0, 1e-12, true).value);
     expect(Math.abs(probDifferenceExceeds(t, c, 0) - direct)).toBeLessThan(1e-10);
   });
 });
@@ -140,12 +140,12 @@ describe("pairProbDifferenceExceeds: fixed-order fast path against the adaptive 
       fc.double({ min: 0, max: 8, noNaN: true }).map((u) => Math.exp(u)),
     );
     fc.assert(
-      fc.property(shape, shape, shape, shape, fc.double({ min: -0.99, max: 0.99, noNaN: true }), (aT, bT, aC, bC, d) => {
+      fc.property(shape, shape, shape, shape, fc.oneof(fc.double({ min: -0.99, max: 0.99, noNaN: true }), fc.double({ min: -1e-100, max: 1e-100, noNaN: true })), (aT, bT, aC, bC, d) => {
         const fast = pairProbDifferenceExceeds(aT, bT, aC, bC, d).value;
-        const reference = pairProbDifferenceExceeds(aT, bT, aC, bC, d, 1e-14, true).value;
+        const reference = pairProbDifferenceExceeds(aT, bT, aC, bC, d, 1e-12, true).value;
         return Math.abs(fast - reference) < 1e-9;
       }),
-      { seed: 424242, numRuns: 3000 },
+      { seed: 424242, numRuns: 400 },
     );
   });
 });

@@ -9,9 +9,9 @@
  * smooth on the scale of the integrand. The range is cut to where that arm holds all but 1e-15 of
  * its mass (checked with the CDF, not assumed from a normal approximation), and an endpoint where
  * the integrand behaves like u^(alpha - 1) or 1 - c u^alpha with alpha < 1 (a shape parameter below
- * 1: U- or J-shaped posteriors, or delta = 0 with a small shape) is mapped by u = t^(1/alpha), which
+ * 1: U- or J-shaped posteriors, or delta near 0 with a small shape) is mapped by u = t^(1/alpha), which
  * makes the integrand bounded and smooth enough for Gauss–Kronrod. Adaptive Gauss–Kronrod 7/15
- * (QUADPACK's QAG scheme) then runs to an absolute error estimate of 1e-11 per pair.
+ * (QUADPACK's QAG scheme) then runs to an absolute error estimate of 1e-10 per pair.
  */
 import type { MixtureBeta } from "./types";
 import { betaCdfUnchecked, betaSurvivalUnchecked, logBetaUnchecked } from "./distributions";
@@ -81,7 +81,7 @@ export function integrateGaussKronrod(
   opts: { initialPanels?: number; maxPanels?: number } = {},
 ): { value: number; error: number } {
   const initial = opts.initialPanels ?? 2;
-  const maxPanels = opts.maxPanels ?? 4000;
+  const maxPanels = opts.maxPanels ?? 1000;
   const panels: Panel[] = [];
   for (let i = 0; i < initial; i++) panels.push(kronrod15(f, a + ((b - a) * i) / initial, a + ((b - a) * (i + 1)) / initial));
   let value = 0;
@@ -114,6 +114,8 @@ export function integrateGaussKronrod(
 const TAIL_CUT = 1e-15;
 /** Largest power used to flatten an endpoint singularity (shape parameters down to 1/60). */
 const MAX_POWER = 60;
+/** A singular point this close to the range (as a fraction of its length) is treated as at its end. */
+const NEAR = 0.05;
 /** Distances from the mean, in SDs, tried in turn as cut points. */
 const CUT_SDS = [8, 10, 12, 16, 24, 32, 64, 128, 256, 1024];
 
@@ -145,7 +147,7 @@ function gaussLegendre(n: number): { nodes: Float64Array; weights: Float64Array 
 const { nodes: GL_NODES, weights: GL_WEIGHTS } = gaussLegendre(64);
 
 /** Absolute error target for one pair of components (the mixture total stays well below 1e-8). */
-export const PAIR_ABS_TOL = 1e-11;
+export const PAIR_ABS_TOL = 1e-10;
 
 /**
  * P(X - Y > delta) for X ~ Beta(aT, bT), Y ~ Beta(aC, bC) independent; shapes > 0, delta in (-1, 1).
@@ -169,9 +171,10 @@ export function pairProbDifferenceExceeds(
   const varC = (aC * bC) / ((aC + bC) * (aC + bC) * (aC + bC + 1));
 
   // Integration arm Z ~ Beta(za, zb) with weight function g (a CDF or survival of the other arm);
-  // [s, e] is where g is not constant; leftAlpha / rightAlpha give the power law of g at s / e.
+  // [s, e] is where g is not constant. The other arm's boundaries sit at z = otherZero (power law
+  // with exponent otherA there) and z = otherOne (exponent otherB).
   let za: number, zb: number, zlb: number;
-  let constPart: number, s: number, e: number, leftAlpha: number, rightAlpha: number;
+  let constPart: number, s: number, e: number, otherZero: number, otherOne: number, otherA: number, otherB: number;
   let g: (z: number) => number;
   if (varC <= varT) {
     za = aC;
@@ -180,8 +183,10 @@ export function pairProbDifferenceExceeds(
     constPart = delta < 0 ? betaCdfUnchecked(-delta, aC, bC, lbC) : 0;
     s = Math.max(0, -delta);
     e = Math.min(1, 1 - delta);
-    leftAlpha = delta <= 0 ? aT : Infinity; // at y = s, pT = s + delta = 0 exactly when delta <= 0
-    rightAlpha = delta >= 0 ? bT : Infinity;
+    otherZero = -delta;
+    otherOne = 1 - delta;
+    otherA = aT;
+    otherB = bT;
     g = (y) => betaSurvivalUnchecked(y + delta, aT, bT, lbT);
   } else {
     za = aT;
@@ -190,8 +195,10 @@ export function pairProbDifferenceExceeds(
     constPart = delta < 0 ? betaSurvivalUnchecked(1 + delta, aT, bT, lbT) : 0;
     s = Math.max(0, delta);
     e = Math.min(1, 1 + delta);
-    leftAlpha = delta >= 0 ? aC : Infinity;
-    rightAlpha = delta <= 0 ? bC : Infinity;
+    otherZero = delta;
+    otherOne = 1 + delta;
+    otherA = aC;
+    otherB = bC;
     g = (x) => betaCdfUnchecked(x - delta, aC, bC, lbC);
   }
 
@@ -223,18 +230,54 @@ export function pairProbDifferenceExceeds(
   }
   if (!(hi > lo)) return { value: constPart, error: 2 * TAIL_CUT };
 
-  // Fast path: when the integrand is analytic on [lo, hi] and the range is at most 12 SDs from the
+  // Points where the integrand is a power law u^(alpha - 1) (Z's own ends) or 1 - c u^alpha (the
+  // other arm's ends). Only those at or just outside the range (within NEAR of its length) matter.
+  const len = hi - lo;
+  const near = NEAR * len;
+  const singular: Array<[number, number]> = [
+    [0, za],
+    [1, zb],
+    [otherZero, otherA],
+    [otherOne, otherB],
+  ];
+  const regular = (alpha: number) => Number.isInteger(alpha) || alpha >= 6;
+  let loRegular = true;
+  let hiRegular = true;
+  // Each end is mapped from the nearby singular point needing the largest power (qL / qR with power
+  // pL / pR), so the power laws there become t^(p * alpha - 1) with p * alpha >= 1.
+  let pL = 1;
+  let pR = 1;
+  let qL = lo;
+  let qR = hi;
+  for (const [q, alpha] of singular) {
+    if (regular(alpha)) continue;
+    // u = t^p with p = ceil(alpha) / alpha turns u^alpha into the integer power t^ceil(alpha).
+    const p = Math.min(Math.ceil(alpha) / alpha, MAX_POWER);
+    if (q <= lo && lo - q <= near) {
+      loRegular = false;
+      if (p > pL) {
+        pL = p;
+        qL = q;
+      }
+    }
+    if (q >= hi && q - hi <= near) {
+      hiRegular = false;
+      if (p > pR) {
+        pR = p;
+        qR = q;
+      }
+    }
+  }
+
+  // Fast path: when the integrand is analytic near [lo, hi] and the range is at most 12 SDs from the
   // mean on each side, 64-point Gauss–Legendre is accurate to about 1e-13 (difference.test.ts
-  // compares it with the adaptive rule over random shapes). An end is analytic when it is a tail
-  // cut, or a boundary where every power law there has an integer exponent or one of at least 6.
+  // compares it with the adaptive rule over random shapes). An end qualifies when it is a tail cut,
+  // or when every power law at or near it has an integer exponent or one of at least 6.
   if (!forceAdaptive) {
-    const regular = (alpha: number) => alpha === Infinity || Number.isInteger(alpha) || alpha >= 6;
-    const loOk =
-      kLo <= 12 || (mean - 12 * sd <= lo && (lo > 0 || regular(za)) && (lo > s || regular(leftAlpha)));
-    const hiOk =
-      kHi <= 12 || (mean + 12 * sd >= hi && (hi < 1 || regular(zb)) && (hi < e || regular(rightAlpha)));
+    const loOk = kLo <= 12 || (mean - 12 * sd <= lo && loRegular);
+    const hiOk = kHi <= 12 || (mean + 12 * sd >= hi && hiRegular);
     if (loOk && hiOk) {
-      const half = 0.5 * (hi - lo);
+      const half = 0.5 * len;
       const mid = 0.5 * (hi + lo);
       let sum = 0;
       for (let i = 0; i < GL_NODES.length; i++) {
@@ -245,49 +288,40 @@ export function pairProbDifferenceExceeds(
     }
   }
 
-  let pL = 1;
-  if (lo === 0 && za < 1) pL = Math.max(pL, 1 / za);
-  if (lo === s && leftAlpha < 1) pL = Math.max(pL, 1 / leftAlpha);
-  let pR = 1;
-  if (hi === 1 && zb < 1) pR = Math.max(pR, 1 / zb);
-  if (hi === e && rightAlpha < 1) pR = Math.max(pR, 1 / rightAlpha);
-  pL = Math.min(pL, MAX_POWER);
-  pR = Math.min(pR, MAX_POWER);
-
   // The density takes 1 - z separately: near z = 1 with zb < 1 the mass within one rounding unit
-  // of 1 is about 1e-16^zb (4e-7 for zb = 0.4), so 1 - z must not be formed by subtraction.
+  // of 1 is about 1e-16^zb (4e-7 for zb = 0.4), so 1 - z must not be formed by subtraction there.
   const h = (z: number, oneMinusZ: number) => {
     if (!(z > 0) || !(oneMinusZ > 0)) return 0;
     const v = Math.exp((za - 1) * Math.log(z) + (zb - 1) * Math.log(oneMinusZ) - zlb) * g(z);
     return Number.isFinite(v) ? v : 0;
   };
-  // z = anchor + dir * len * t^p, t in [0, 1].
-  const mapped = (anchor: number, dir: number, len: number, p: number) => {
-    const fromOne = anchor === 1 && dir === -1;
-    return (t: number) => {
-      const tp1 = p === 1 ? 1 : Math.pow(t, p - 1);
-      const jac = p * len * tp1;
-      if (jac === 0) return 0;
-      const w = len * tp1 * t;
-      return fromOne ? h(1 - w, w) * jac : h(anchor + dir * w, 1 - (anchor + dir * w)) * jac;
-    };
+  // z = anchor + dir * span * t^p for t in [tStart, 1], tStart chosen so the piece starts at `from`.
+  const mapped = (anchor: number, dir: number, span: number, p: number) => (t: number) => {
+    const tp1 = p === 1 ? 1 : Math.pow(t, p - 1);
+    const jac = p * span * tp1;
+    if (jac === 0) return 0;
+    const w = span * tp1 * t;
+    return dir > 0 ? h(anchor + w, 1 - (anchor + w)) * jac : h(anchor - w, 1 - anchor + w) * jac;
   };
 
   let value = constPart;
   let error = 2 * TAIL_CUT;
-  const run = (f: (t: number) => number, tol: number) => {
-    const r = integrateGaussKronrod(f, 0, 1, tol);
+  const run = (anchor: number, dir: number, from: number, to: number, p: number, tol: number) => {
+    const span = Math.abs(to - anchor);
+    const tStart = Math.pow(Math.abs(from - anchor) / span, 1 / p);
+    if (!(tStart < 1)) return;
+    const r = integrateGaussKronrod(mapped(anchor, dir, span, p), tStart, 1, tol);
     value += r.value;
     error += r.error;
   };
   if (pL > 1 && pR > 1) {
     const mid = 0.5 * (lo + hi);
-    run(mapped(lo, 1, mid - lo, pL), absTol / 2);
-    run(mapped(hi, -1, hi - mid, pR), absTol / 2);
+    run(qL, 1, lo, mid, pL, absTol / 2);
+    run(qR, -1, hi, mid, pR, absTol / 2);
   } else if (pR > 1) {
-    run(mapped(hi, -1, hi - lo, pR), absTol);
+    run(qR, -1, hi, lo, pR, absTol);
   } else {
-    run(mapped(lo, 1, hi - lo, pL), absTol);
+    run(qL, 1, lo, hi, pL, absTol);
   }
   return { value: Math.min(1, Math.max(0, value)), error };
 }

@@ -318,6 +318,13 @@ export function twoArmOperatingCharacteristics(design: TwoArmDesign, pT: number,
   return exactTwoArmOperatingCharacteristics(twoArmBoundaries(design).response, pT, pC);
 }
 
+/** Two-arm operating characteristics over a curve of (pT, pC) pairs, computing the boundaries once. */
+export function twoArmOperatingCharacteristicsCurve(design: TwoArmDesign, pairs: [number, number][]): TwoArmOperatingCharacteristics[] {
+  if (!Array.isArray(pairs)) throw new StatsDomainError("pairs", pairs, "must be an array of [pT, pC] pairs");
+  const b = twoArmBoundaries(design).response;
+  return pairs.map(([pT, pC]) => exactTwoArmOperatingCharacteristics(b, pT, pC));
+}
+
 /** Two-arm type I error at pT = pC = controlRate and power at (experimentalRate, controlRate). */
 export function twoArmTypeIErrorAndPower(design: TwoArmDesign): {
   typeIError: number;

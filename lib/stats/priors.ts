@@ -86,3 +86,26 @@ export function mixtureSurvival(m: MixtureBeta, t: number): number {
 export function mixtureMean(m: MixtureBeta): number {
   return m.reduce((s, c) => s + (c.weight * c.a) / (c.a + c.b), 0);
 }
+
+/**
+ * Effective sample size of a prior on a rate, in patients.
+ * - One Beta(a, b): a + b (the prior is worth a + b binomial observations; common practice, and the
+ *   single-Beta case of Morita, Thall & Mueller 2008).
+ * - A mixture: the moment-matched a + b, m (1 - m) / v - 1, where m and v are the mixture's mean
+ *   and variance: the size of the single Beta with the same mean and spread. This is NOT the
+ *   Morita, Thall & Mueller (2008) definition (which matches curvature at the prior mean); it agrees
+ *   with a + b for one component and shrinks as the components disagree, so a robust mixture is
+ *   shown as worth fewer patients than its informative part.
+ * @param prior a prior specification (validated as in resolvePrior) or a resolved mixture (weights in [0, 1] summing to 1, shapes > 0)
+ * @returns a positive number of patients
+ */
+export function priorEffectiveSampleSize(prior: PriorSpec | MixtureBeta): number {
+  const m = Array.isArray(prior) ? prior : resolvePrior(prior);
+  requireMixture("prior", m);
+  const live = m.filter((c) => c.weight > 0);
+  if (live.length === 1) return live[0].a + live[0].b;
+  const mean = mixtureMean(live);
+  const second = live.reduce((s, c) => s + (c.weight * c.a * (c.a + 1)) / ((c.a + c.b) * (c.a + c.b + 1)), 0);
+  const variance = second - mean * mean;
+  return (mean * (1 - mean)) / variance - 1;
+}

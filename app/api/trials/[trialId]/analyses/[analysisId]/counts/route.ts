@@ -1,0 +1,14 @@
+import { NextResponse } from "next/server";
+import { requireTrialAccess } from "@/lib/auth";
+import { handle, readJson } from "@/lib/http";
+import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { saveArmCounts } from "@/app/trials/[trialId]/analyses/_lib/service";
+
+export const dynamic = "force-dynamic";
+
+/** Replaces the per-arm counts of an open look. Body: { rowVersion, cutoffDate, counts: [...], reason? }. */
+export const PUT = handle(async (req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
+  const { user } = await requireTrialAccess(trialId, "enterData");
+  return NextResponse.json(await saveArmCounts(user, trialId, analysisId, await readJson(req)));
+});

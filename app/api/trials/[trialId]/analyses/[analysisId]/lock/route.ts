@@ -1,0 +1,14 @@
+import { NextResponse } from "next/server";
+import { requireTrialAccess } from "@/lib/auth";
+import { handle, readJson } from "@/lib/http";
+import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { lockAnalysis } from "@/app/trials/[trialId]/analyses/_lib/service";
+
+export const dynamic = "force-dynamic";
+
+/** Locks an open look with an e-signature ("analysis locked"). Body: { rowVersion, password }. */
+export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
+  const { user } = await requireTrialAccess(trialId, "enterData");
+  return NextResponse.json(await lockAnalysis(user, trialId, analysisId, await readJson(req, 16 * 1024)));
+});

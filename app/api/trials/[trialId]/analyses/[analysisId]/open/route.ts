@@ -1,0 +1,14 @@
+import { NextResponse } from "next/server";
+import { requireTrialAccess } from "@/lib/auth";
+import { handle, readJson } from "@/lib/http";
+import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { openLookForEntry } from "@/app/trials/[trialId]/analyses/_lib/service";
+
+export const dynamic = "force-dynamic";
+
+/** Opens a planned look for entry and sets its data cut-off. Body: { rowVersion, cutoffDate }. */
+export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
+  const { user } = await requireTrialAccess(trialId, "enterData");
+  return NextResponse.json(await openLookForEntry(user, trialId, analysisId, await readJson(req)));
+});

@@ -1,0 +1,19 @@
+import { NextResponse } from "next/server";
+import { allows, requireTrialAccess } from "@/lib/auth";
+import { forbiddenError, handle } from "@/lib/http";
+import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { loadLookContext } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { fetchPatientOutcomeGrid } from "@/db/queries/closed";
+import { patientJson } from "@/app/trials/[trialId]/analyses/_lib/json";
+
+export const dynamic = "force-dynamic";
+
+/** CLOSED: the patient-level rows of a look (unblinded roles only). */
+export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
+  const access = await requireTrialAccess(trialId, "viewOpen");
+  if (!allows(access.principal, "viewClosed") && !allows(access.principal, "enterData")) throw forbiddenError("viewing closed (unblinded) results");
+  await loadLookContext(trialId, analysisId);
+  const rows = await fetchPatientOutcomeGrid(analysisId);
+  return NextResponse.json({ patients: rows.map(patientJson) });
+});

@@ -1,0 +1,14 @@
+import { NextResponse } from "next/server";
+import { requireTrialAccess } from "@/lib/auth";
+import { handle, readJson } from "@/lib/http";
+import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { reopenAnalysis } from "@/app/trials/[trialId]/analyses/_lib/service";
+
+export const dynamic = "force-dynamic";
+
+/** Reopens a locked look as an amendment. Body: { rowVersion, reason }. */
+export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
+  const { user } = await requireTrialAccess(trialId, "enterData");
+  return NextResponse.json(await reopenAnalysis(user, trialId, analysisId, await readJson(req, 16 * 1024)));
+});

@@ -1,0 +1,30 @@
+import { NextResponse } from "next/server";
+import { allows, requireTrialAccess } from "@/lib/auth";
+import { handle } from "@/lib/http";
+import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { loadLookContext } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { lookJson } from "@/app/trials/[trialId]/analyses/_lib/json";
+import { fetchArmCounts, countPatientOutcomes } from "@/db/queries/closed";
+
+export const dynamic = "force-dynamic";
+
+/**
+ * One look. Everyone on the trial gets its open fields; arm-level counts are selected only for
+ * roles that may see closed data (viewClosed) or enter it (enterData).
+ */
+export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
+  const access = await requireTrialAccess(trialId, "viewOpen");
+  const look = await loadLookContext(trialId, analysisId);
+  const body: Record<string, unknown> = {
+    analysis: lookJson(look.analysis),
+    arms: look.arms.map((a) => ({ id: a.id, label: a.label, role: a.arm_role })),
+    safetyRule: look.safetyRule,
+  };
+  if (allows(access.principal, "viewClosed") || allows(access.principal, "enterData")) {
+    const [counts, patientRows] = await Promise.all([fetchArmCounts(analysisId), countPatientOutcomes(analysisId)]);
+    body.counts = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities }));
+    body.patientRows = patientRows;
+  }
+  return NextResponse.json(body);
+});

@@ -1,0 +1,21 @@
+import { NextResponse } from "next/server";
+import { requireTrialAccess } from "@/lib/auth";
+import { handle } from "@/lib/http";
+import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { confirmPatientUpload } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { readCsvUpload } from "@/app/trials/[trialId]/analyses/_lib/read-upload";
+import { uploadConfirmQuerySchema } from "@/app/trials/[trialId]/analyses/_lib/schemas";
+
+export const dynamic = "force-dynamic";
+
+/**
+ * Writes a patient-level CSV: the same checks as the preview run again, then all rows and the
+ * derived counts are written in one transaction, or nothing. Query: ?rowVersion=N&fileName=...
+ */
+export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
+  const { user } = await requireTrialAccess(trialId, "enterData");
+  const q = uploadConfirmQuerySchema.parse(Object.fromEntries(new URL(req.url).searchParams));
+  const bytes = await readCsvUpload(req);
+  return NextResponse.json(await confirmPatientUpload(user, trialId, analysisId, bytes, q));
+});

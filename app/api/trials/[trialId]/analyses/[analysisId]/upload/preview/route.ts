@@ -1,0 +1,19 @@
+import { NextResponse } from "next/server";
+import { requireTrialAccess } from "@/lib/auth";
+import { handle } from "@/lib/http";
+import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { previewPatientUpload } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { readCsvUpload } from "@/app/trials/[trialId]/analyses/_lib/read-upload";
+
+export const dynamic = "force-dynamic";
+
+/**
+ * Checks a patient-level CSV (raw text/csv body, at most 5 MB) against the look and answers with
+ * the derived counts or the row-by-row problems. Writes nothing.
+ */
+export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
+  await requireTrialAccess(trialId, "enterData");
+  const bytes = await readCsvUpload(req);
+  return NextResponse.json(await previewPatientUpload(trialId, analysisId, bytes));
+});

@@ -1,0 +1,16 @@
+import { NextResponse } from "next/server";
+import { requireTrialAccess } from "@/lib/auth";
+import { handle } from "@/lib/http";
+import { fetchAnalysesOpen } from "@/db/queries/analyses";
+import { idFrom } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { lookJson } from "@/app/trials/[trialId]/analyses/_lib/json";
+
+export const dynamic = "force-dynamic";
+
+/** The looks of a trial with their open fields (status, cut-off, pooled enrolment): no arm-level data. */
+export const GET = handle(async (_req: Request, ctx: { params: Promise<{ trialId: string }> }) => {
+  const trialId = idFrom((await ctx.params).trialId, "That trial");
+  const { trial } = await requireTrialAccess(trialId, "viewOpen");
+  const looks = await fetchAnalysesOpen(trial.id);
+  return NextResponse.json({ analyses: looks.map(lookJson) });
+});

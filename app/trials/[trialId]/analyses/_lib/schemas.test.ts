@@ -1,0 +1,62 @@
+import { describe, expect, it } from "vitest";
+import { armCountsSchema, reopenAnalysisSchema, saveCountsSchema } from "./schemas";
+
+const two = { armIds: [11, 12], safetyRule: false };
+const one = { armIds: [5], safetyRule: true };
+const paths = (r: { success: boolean; error?: { issues: Array<{ path: PropertyKey[]; message: string }> } }) =>
+  Object.fromEntries((r.error?.issues ?? []).map((i) => [i.path.join("."), i.message]));
+
+describe("armCountsSchema: the rules of interim counts", () => {
+  it("accepts form text and JSON numbers alike", () => {
+    const r = armCountsSchema(two).parse([
+      { armId: "11", enrolled: "21", evaluable: "20", responders: "9", toxicities: "" },
+      { armId: 12, enrolled: 22, evaluable: 20, responders: 5, toxicities: null },
+    ]);
+    expect(r).toEqual([
+      { armId: 11, enrolled: 21, evaluable: 20, responders: 9, toxicities: null },
+      { armId: 12, enrolled: 22, evaluable: 20, responders: 5, toxicities: null },
+    ]);
+  });
+  it("responders <= evaluable <= enrolled, each reported on its own field", () => {
+    const r = armCountsSchema(two).safeParse([
+      { armId: 11, enrolled: 10, evaluable: 11, responders: 3, toxicities: null },
+      { armId: 12, enrolled: 10, evaluable: 9, responders: 10, toxicities: null },
+    ]);
+    expect(paths(r)).toEqual({ "0.evaluable": "Evaluable (11) cannot exceed enrolled (10).", "1.responders": "Responders (10) cannot exceed evaluable (9)." });
+  });
+  it("whole numbers >= 0 only, and empty is not zero", () => {
+    const r = armCountsSchema(one).safeParse([{ armId: 5, enrolled: "-1", evaluable: "2.5", responders: "", toxicities: "x" }]);
+    expect(paths(r)).toEqual({
+      "0.enrolled": "The number enrolled cannot be negative.",
+      "0.evaluable": "The number evaluable must be a whole number.",
+      "0.responders": "Enter the number of responders as a whole number.",
+      "0.toxicities": "Enter the number with toxicity as a whole number.",
+    });
+  });
+  it("toxicities: required with a safety rule (and <= enrolled), refused without one", () => {
+    expect(paths(armCountsSchema(one).safeParse([{ armId: 5, enrolled: 3, evaluable: 3, responders: 1, toxicities: 4 }]))).toEqual({
+      "0.toxicities": "Patients with toxicity (4) cannot exceed enrolled (3).",
+    });
+    expect(armCountsSchema(two).safeParse([
+      { armId: 11, enrolled: 3, evaluable: 3, responders: 1, toxicities: 1 },
+      { armId: 12, enrolled: 3, evaluable: 3, responders: 1, toxicities: null },
+    ]).success).toBe(false);
+  });
+  it("every arm exactly once", () => {
+    const c = { enrolled: 1, evaluable: 1, responders: 0, toxicities: null };
+    expect(armCountsSchema(two).safeParse([{ armId: 11, ...c }]).success).toBe(false);
+    expect(armCountsSchema(two).safeParse([{ armId: 11, ...c }, { armId: 11, ...c }]).success).toBe(false);
+    expect(armCountsSchema(two).safeParse([{ armId: 12, ...c }, { armId: 11, ...c }]).success).toBe(true);
+  });
+});
+
+describe("request schemas", () => {
+  it("a cut-off must be a real date", () => {
+    const r = saveCountsSchema(one).safeParse({ rowVersion: 1, cutoffDate: "2026-02-30", counts: [{ armId: 5, enrolled: 1, evaluable: 1, responders: 1, toxicities: 0 }] });
+    expect(paths(r)).toEqual({ cutoffDate: "Enter the data cut-off date as a real date (YYYY-MM-DD)." });
+  });
+  it("a correction needs a reason of at least 10 characters", () => {
+    expect(reopenAnalysisSchema.safeParse({ rowVersion: 3, reason: "  typo   " }).success).toBe(false);
+    expect(reopenAnalysisSchema.parse({ rowVersion: "3", reason: "Site 3 miscoded two responders." })).toEqual({ rowVersion: 3, reason: "Site 3 miscoded two responders." });
+  });
+});

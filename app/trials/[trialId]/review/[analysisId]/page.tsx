@@ -1,0 +1,273 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { authorizePage, allows } from "@/lib/auth";
+import { parseId } from "@/lib/route-params";
+import { HttpError } from "@/lib/http";
+import { StatsDomainError } from "@/lib/stats/validate";
+import { loadReview } from "@/lib/review/load-review";
+import { fetchRecommendationsClosed } from "@/db/queries/recommendations";
+import { Card } from "@/components/ui/card";
+import { Badge } from "@/components/ui/badge";
+import { Banner } from "@/components/ui/banner";
+import { buttonClass } from "@/components/ui/button";
+import { DataGrid } from "@/components/grid/data-grid";
+import { BoundaryPlot, CumulativePlot, DifferencePlot, PredictiveOverLooksPlot, ToxicityPlot } from "@/components/review/review-charts";
+import { IntervalQuestion } from "@/components/review/interval-question";
+import { RecommendationForm } from "@/components/review/recommendation-form";
+import { ANALYSIS_STATUS_LABELS, DECISION_LABELS, formatBoundary, formatProbability, formatRate } from "@/lib/format";
+import type { Interval, HpdRegion } from "@/lib/review/posterior-summary";
+import type { Review } from "@/lib/review/compute-review";
+
+export const metadata: Metadata = { title: "Closed review" };
+export const dynamic = "force-dynamic";
+
+const interval = (i: Interval) => `${formatRate(i.lower)} to ${formatRate(i.upper)}`;
+const hpdText = (h: HpdRegion) => h.pieces.map(interval).join(" and ") + (h.note ? ` (${h.note})` : "");
+
+function decisionTone(d: Review["decision"]): "danger" | "warning" | "success" | "info" {
+  if (d.action === "stop") return d.stop === "safety" ? "danger" : "warning";
+  if (d.action === "final") return d.success ? "success" : "warning";
+  return "info";
+}
+
+function decisionTitle(d: Review["decision"]): string {
+  if (d.action === "stop") return `Under the locked rule the data favour stopping for ${d.stop}`;
+  if (d.action === "final") return d.success ? "Final analysis: the success criterion is met" : "Final analysis: the success criterion is not met";
+  return "Under the locked rule the data support continuing";
+}
+
+export default async function ClosedReviewPage({ params }: { params: Promise<{ trialId: string; analysisId: string }> }) {
+  const p = await params;
+  const trialId = parseId(p.trialId);
+  const analysisId = parseId(p.analysisId);
+  const { trial, principal, user } = await authorizePage(trialId, "viewClosed");
+  let loaded;
+  try {
+    loaded = await loadReview(trial, analysisId);
+  } catch (e) {
+    if (e instanceof HttpError && e.status === 409) return <Banner tone="warning" title="Nothing to review yet">{e.message}</Banner>;
+    if (e instanceof StatsDomainError)
+      return (
+        <Banner tone="warning" title="The review cannot be computed from the stored data">
+          {e.message}. The unblinded statistician can reopen the look and correct its data.
+        </Banner>
+      );
+    if (e instanceof HttpError && e.status === 404) {
+      notFound();
+    }
+    throw e;
+  }
+  const { review, analysis, input } = loaded;
+  const recommendations = await fetchRecommendationsClosed(trial.id, analysisId);
+  const current = recommendations.find((r) => r.correctedById === null) ?? null;
+  const design = input.design;
+  const single = review.designKind === "single";
+  const rule = design.rule;
+  const defaultLo = single && design.arms === "single" ? design.p0 : 0.2;
+  const defaultHi = single && design.arms === "single" ? design.p1 : 0.5;
+
+  return (
+    <div className="flex flex-col gap-4">
+      <div className="flex flex-wrap items-center justify-between gap-3">
+        <div>
+          <p className="text-sm text-stone-600">
+            <Link href={`/trials/${trial.id}/review`} className="underline">
+              Closed review
+            </Link>{" "}
+            · Look {review.lookNumber} · data cut-off {review.cutoffDate ?? "—"} · <Badge tone={analysis.status === "reviewed" ? "lichen" : "teal"}>{ANALYSIS_STATUS_LABELS[analysis.status]}</Badge>
+          </p>
+          <h2 className="mt-1 text-xl font-semibold">Interim analysis, look {review.lookNumber}</h2>
+        </div>
+        <a className={buttonClass("secondary")} href={`/api/trials/${trial.id}/analyses/${analysisId}/review/export`} download>
+          Download reproducibility record (JSON)
+        </a>
+      </div>
+
+      <Banner tone={decisionTone(review.decision)} title={decisionTitle(review.decision)}>
+        <p data-testid="decision-reason">{review.decision.reason}</p>
+      </Banner>
+
+      {review.safety?.crossed ? (
+        <Banner tone="danger" title="Safety boundary crossed">
+          P(toxicity rate &gt; {formatRate(review.safety.qmax)}) = {formatProbability(review.safety.probAboveLimit)}, above the safety threshold {review.safety.thetaS}.
+        </Banner>
+      ) : null}
+
+      <div className="grid gap-4 lg:grid-cols-2">
+        <Card title="Posterior response rate" className="lg:col-span-2">
+          <table className="cairn-table" aria-label="Posterior summaries">
+            <thead>
+              <tr>
+                <th>Arm</th>
+                <th>Responders / evaluable</th>
+                <th>Mean</th>
+                <th>Median</th>
+                <th>SD</th>
+                <th>{Math.round(review.credibleLevel * 100)}% equal-tailed</th>
+                <th>{Math.round(review.credibleLevel * 100)}% HPD</th>
+                {single ? <th>P(rate &gt; p0)</th> : null}
+                <th>Clopper-Pearson {Math.round(review.credibleLevel * 100)}%</th>
+              </tr>
+            </thead>
+            <tbody>
+              {review.arms.map((a) => (
+                <tr key={a.armId}>
+                  <td>{a.label}</td>
+                  <td className="tabular-nums">{`${a.responders} / ${a.evaluable}`}</td>
+                  <td>{formatRate(a.summary.mean)}</td>
+                  <td>{formatRate(a.summary.median)}</td>
+                  <td>{formatRate(a.summary.sd)}</td>
+                  <td>{interval(a.summary.equalTailed)}</td>
+                  <td>{hpdText(a.summary.hpd)}</td>
+                  {single ? <td>{formatProbability(a.probAboveP0)}</td> : null}
+                  <td>{interval(a.clopperPearson)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+          <p className="mt-2 text-xs text-stone-500">
+            Clopper-Pearson is the exact frequentist interval, shown for comparison. {single && design.arms === "single" ? `p0 = ${formatRate(design.p0)}.` : ""}
+          </p>
+        </Card>
+
+        <Card title="Ask about an interval" className="lg:col-span-2">
+          <p className="mb-2 text-sm text-stone-600">How likely is the response rate between two values, given the data at this look?</p>
+          <IntervalQuestion trialId={trial.id} analysisId={analysisId} review={{ arms: review.arms, reference: review.reference, credibleLevel: review.credibleLevel }} defaultLo={defaultLo} defaultHi={defaultHi} />
+        </Card>
+
+        <Card title="Cumulative distribution">
+          <CumulativePlot review={review} />
+        </Card>
+
+        {review.difference ? (
+          <Card title="Difference between arms">
+            <p className="text-sm" data-testid="difference-probability">
+              P(pT − pC &gt; {review.difference.delta}) = <strong>{formatProbability(review.difference.probExceeds)}</strong>
+            </p>
+            <DifferencePlot grid={review.difference.grid} delta={review.difference.delta} />
+          </Card>
+        ) : null}
+
+        <Card title={rule.kind === "predictive" ? "Predictive probability of success" : "Posterior monitoring probability"}>
+          <p className="text-sm">
+            Now:{" "}
+            <strong data-testid="current-monitoring-probability">
+              {formatProbability(rule.kind === "predictive" ? review.current.evaluation.predictiveProbability : review.current.evaluation.posteriorProbabilityMonitoring)}
+            </strong>
+            {review.current.evaluation.final ? " (final analysis: the posterior rule applies)" : ""}
+          </p>
+          <PredictiveOverLooksPlot history={review.history} ruleKind={rule.kind} futilityThreshold={rule.futilityThreshold} efficacyThreshold={rule.efficacyStopping ? rule.efficacyThreshold : null} />
+        </Card>
+
+        <Card title="Stopping boundaries" className="lg:col-span-2">
+          <BoundaryPlot boundaries={review.boundaries} observedPath={review.observedPath} twoArms={!single} />
+          <DataGrid
+            label="Boundary table"
+            height={Math.min(420, 60 + 42 * review.boundaries.length)}
+            csvFileName={`${trial.code}-look-${review.lookNumber}-boundaries.csv`}
+            columns={[
+              { field: "look", headerName: "Planned look (n)" },
+              { field: "futility", headerName: "Futility: stop at or below" },
+              { field: "efficacy", headerName: "Efficacy / success: at or above" },
+              { field: "observed", headerName: "Observed responders" },
+              ...(single ? [] : [{ field: "control" as const, headerName: "Read at control responders" }]),
+            ]}
+            rows={review.boundaries.map((b) => {
+              const seen = review.observedPath.find((o) => o.n === b.n);
+              return {
+                look: `${b.n}${b.final ? " (final)" : ""}`,
+                futility: formatBoundary(b.futilityMax),
+                efficacy: formatBoundary(b.efficacyMin),
+                observed: seen ? String(seen.responders) : "—",
+                control: b.controlResponders === undefined ? "" : `${b.controlResponders} (${b.controlBasis})`,
+              };
+            })}
+          />
+        </Card>
+
+        {review.safety ? (
+          <Card title="Safety" className="lg:col-span-2">
+            <p className="text-sm" data-testid="safety-summary">
+              {review.safety.toxicities} toxicities in {review.safety.n} patients. P(toxicity rate &gt; {formatRate(review.safety.qmax)}) = <strong>{formatProbability(review.safety.probAboveLimit)}</strong> (safety threshold {review.safety.thetaS}):{" "}
+              {review.safety.crossed ? <Badge tone="berry">boundary crossed</Badge> : <Badge tone="lichen">boundary not crossed</Badge>}
+            </p>
+            <div className="grid gap-4 lg:grid-cols-2">
+              <ToxicityPlot safety={review.safety} />
+              <table className="cairn-table" aria-label="Safety boundary">
+                <thead>
+                  <tr>
+                    <th>Look (n)</th>
+                    <th>Safety stop at or above</th>
+                    <th>Observed toxicities</th>
+                  </tr>
+                </thead>
+                <tbody>
+                  {review.safety.boundary.map((b) => (
+                    <tr key={b.n}>
+                      <td>{b.n}</td>
+                      <td>{formatBoundary(b.toxicityMin)}</td>
+                      <td>{review.safety!.observedPath.find((o) => o.n === b.n)?.toxicities ?? "—"}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+          </Card>
+        ) : null}
+
+        <Card title="Prior sensitivity" className="lg:col-span-2">
+          <table className="cairn-table" aria-label="Prior sensitivity">
+            <thead>
+              <tr>
+                <th>Prior</th>
+                <th>Arm</th>
+                <th>Posterior mean</th>
+                <th>{Math.round(review.credibleLevel * 100)}% equal-tailed</th>
+                <th>{single ? "P(rate > p0)" : `P(pT − pC > ${review.difference?.delta ?? 0})`}</th>
+                {single ? <th>Predictive probability</th> : null}
+              </tr>
+            </thead>
+            <tbody>
+              {review.sensitivity.flatMap((s) =>
+                s.arms.map((a, k) => (
+                  <tr key={`${s.key}-${a.armId}`}>
+                    <td>{k === 0 ? <><strong>{s.label}</strong><br /><span className="text-xs text-stone-500">{s.description}</span></> : null}</td>
+                    <td>{review.arms.find((x) => x.armId === a.armId)?.label}</td>
+                    <td>{formatRate(a.summary.mean)}</td>
+                    <td>{interval(a.summary.equalTailed)}</td>
+                    <td>{k === 0 ? formatProbability(single ? a.probAboveP0 : s.probDifferenceExceeds) : ""}</td>
+                    {single ? <td>{formatProbability(s.predictiveProbability)}</td> : null}
+                  </tr>
+                )),
+              )}
+            </tbody>
+          </table>
+          <p className="mt-2 text-xs text-stone-500">The sceptical prior is centred on the uninteresting rate with an effective sample size of 10% of the maximum sample size (at least 2 patients).</p>
+        </Card>
+
+        <Card title="DMC recommendation" className="lg:col-span-2">
+          {recommendations.length === 0 ? <p className="mb-3 text-sm text-stone-600">No recommendation has been recorded for this look yet.</p> : null}
+          <ul className="mb-4 flex flex-col gap-3" aria-label="Recorded recommendations">
+            {recommendations.map((r) => (
+              <li key={r.id} className="rounded-md border border-stone-200 p-3" data-testid="recorded-recommendation">
+                <p className="font-semibold">
+                  {DECISION_LABELS[r.decision]} {r.correctedById ? <Badge>corrected by entry {r.correctedById}</Badge> : null} {r.correctsId ? <Badge tone="amber">corrects entry {r.correctsId}</Badge> : null}
+                </p>
+                <p className="mt-1 whitespace-pre-wrap text-sm">{r.rationale}</p>
+                <p className="mt-1 text-xs text-stone-500">
+                  Entry {r.id} · signed by {r.signerName} ({r.signatureMeaning}) on {new Date(r.signedAt).toISOString().slice(0, 16).replace("T", " ")} UTC
+                </p>
+              </li>
+            ))}
+          </ul>
+          {allows(principal, "recordRecommendation") ? (
+            <RecommendationForm trialId={trial.id} analysisId={analysisId} correctsId={current?.id ?? null} signerName={user.name} />
+          ) : (
+            <p className="text-sm text-stone-600">Only a DMC member records the committee&apos;s recommendation.</p>
+          )}
+        </Card>
+      </div>
+    </div>
+  );
+}

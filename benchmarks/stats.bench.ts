@@ -1,0 +1,128 @@
+/**
+ * Benchmarks of the statistics engine: `npm run bench`. Each case builds its inputs outside the
+ * timed loop, checks its result inside it (a wrong answer fails the run), and reports the median
+ * of repeated runs against its target. Targets are ceilings to stay well under, not goals.
+ */
+import {
+  calibrateSingleArm,
+  posteriorSummary,
+  clearTwoArmFinalRuleCache,
+  exactOperatingCharacteristics,
+  exactTwoArmOperatingCharacteristics,
+  simulateBoundaryTable,
+  singleArmBoundaries,
+  twoArmBoundaries,
+  type SingleArmDesign,
+  type TwoArmDesign,
+} from "../lib/stats/index";
+
+type Row = { name: string; median: number; target: number | null; runs: number };
+const rows: Row[] = [];
+
+function check(ok: boolean, what: string): void {
+  if (!ok) throw new Error(`benchmark check failed: ${what}`);
+}
+
+function bench(name: string, target: number | null, runs: number, fn: () => void): number {
+  fn(); // warm-up: compile the hot paths before timing
+  const times: number[] = [];
+  for (let i = 0; i < runs; i++) {
+    const t0 = performance.now();
+    fn();
+    times.push(performance.now() - t0);
+  }
+  times.sort((a, b) => a - b);
+  const median = times[Math.floor(times.length / 2)];
+  rows.push({ name, median, target, runs });
+  return median;
+}
+
+// ---- posterior summaries incl. HPD, one arm ------------------------------------------------
+await benchPosteriorSummaries();
+
+// ---- boundary table + exact OC, single arm, Nmax 200, continuous monitoring from patient 10 --
+const single200: SingleArmDesign = {
+  arms: "single",
+  prior: { family: "beta", a: 0.6, b: 0.4 },
+  p0: 0.2,
+  p1: 0.4,
+  delta: 0,
+  nMax: 200,
+  looks: { kind: "every", first: 10, every: 1 },
+  rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.99 },
+  safety: null,
+};
+let exact200 = 0;
+const exactMs = bench("boundaries + exact OC, 1 arm, Nmax 200, every patient from 10", 20, 21, () => {
+  const b = singleArmBoundaries(single200);
+  const oc = exactOperatingCharacteristics(b.response, 0.3);
+  const total = oc.looks.reduce((s, l) => s + l.pStopFutility + l.pStopEfficacy, 0);
+  check(b.response.length === 191 && Math.abs(total - 1) < 1e-12, "single-arm OC sums to one");
+  exact200 = oc.pDeclareSuccess;
+});
+
+// ---- the same OC by Monte Carlo, 100,000 trials --------------------------------------------
+const table200 = singleArmBoundaries(single200).response;
+const mcMs = bench("same OC by Monte Carlo, 100,000 trials (boundary table given)", null, 5, () => {
+  const sim = simulateBoundaryTable(table200, 0.3, { trials: 100_000, seed: 12345 });
+  check(Math.abs(sim.pDeclareSuccess - exact200) <= 4 * sim.standardErrors.pDeclareSuccess + 1e-12, "Monte Carlo within 4 SE of exact");
+});
+
+// ---- two arms, 100 per arm, a look every 10 per arm, exact OC at one pair -------------------
+const two100: TwoArmDesign = {
+  arms: "two",
+  priorT: { family: "uniform" },
+  priorC: { family: "uniform" },
+  controlRate: 0.3,
+  experimentalRate: 0.5,
+  delta: 0,
+  nMaxPerArm: 100,
+  looks: { kind: "every", first: 10, every: 10 },
+  rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.99 },
+  safety: null,
+};
+bench("boundaries + exact OC, 2 arms, 100 per arm, look every 10 (final table included)", 500, 7, () => {
+  clearTwoArmFinalRuleCache();
+  const b = twoArmBoundaries(two100);
+  const oc = exactTwoArmOperatingCharacteristics(b.response, 0.5, 0.3);
+  const total = oc.looks.reduce((s, l) => s + l.pStopFutility + l.pStopEfficacy, 0);
+  check(Math.abs(total - 1) < 1e-12 && oc.pDeclareSuccess > 0.5, "two-arm OC sums to one");
+});
+
+// ---- calibration, 40 x 40 grid, single arm, Nmax 100, continuous monitoring ----------------
+const calib: SingleArmDesign = { ...single200, nMax: 100, looks: { kind: "every", first: 1, every: 1 }, rule: { ...single200.rule, efficacyStopping: false, efficacyThreshold: null } };
+const grid = (lo: number, hi: number) => Array.from({ length: 40 }, (_, i) => lo + ((hi - lo) * i) / 39);
+const thetaTGrid = grid(0.8, 0.995);
+const thetaLGrid = grid(0, 0.3);
+bench("calibration 40 x 40 grid, 1 arm, Nmax 100, every patient", 2000, 7, () => {
+  const r = calibrateSingleArm(calib, { thetaTGrid, thetaLGrid, typeIErrorLimit: 0.05, powerTarget: 0.8 });
+  check(r.evaluated === 1600 && r.best.length > 0 && r.best[0].typeIError <= 0.05 && r.best[0].power >= 0.8, "calibration finds a feasible design");
+});
+
+const pad = (s: string, n: number) => s + " ".repeat(Math.max(0, n - s.length));
+const w = Math.max(...rows.map((r) => r.name.length));
+console.log(`${pad("case", w)}  ${pad("median ms", 10)}  ${pad("target ms", 9)}  runs  verdict`);
+for (const r of rows)
+  console.log(
+    `${pad(r.name, w)}  ${pad(r.median.toFixed(3), 10)}  ${pad(r.target === null ? "-" : String(r.target), 9)}  ${pad(String(r.runs), 4)}  ${r.target === null ? "" : r.median < r.target ? "ok" : "OVER TARGET"}`,
+  );
+console.log(`Monte Carlo / exact time ratio (Nmax 200 single arm): ${(mcMs / exactMs).toFixed(1)}`);
+if (rows.some((r) => r.target !== null && r.median >= r.target)) process.exitCode = 1;
+
+async function benchPosteriorSummaries(): Promise<void> {
+  const prior = [{ weight: 1, a: 0.6, b: 0.4 }];
+  const cases: [number, number][] = [
+    [7, 23],
+    [16, 23],
+    [2, 40],
+    [30, 60],
+  ];
+  let i = 0;
+  // One summary per timed run (rotating through the cases); 2001 runs give a stable median.
+  bench("posterior summaries incl. HPD, 1 arm (one summary)", 0.2, 2001, () => {
+    const [x, n] = cases[i++ % cases.length];
+    const s = posteriorSummary(prior, x, n, { level: 0.95, p0: 0.2 });
+    const piece = s.hpd.pieces[0];
+    check(piece.lower <= s.median && s.median <= s.hpd.pieces[s.hpd.pieces.length - 1].upper && Math.abs(s.hpd.mass - 0.95) < 1e-9, "HPD holds the median and 95%");
+  });
+}

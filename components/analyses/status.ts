@@ -1,0 +1,8 @@
+import type { AnalysisStatus } from "@/db/types";
+
+export const STATUS_TONES: Record<AnalysisStatus, "neutral" | "amber" | "teal" | "lichen"> = {
+  planned: "neutral",
+  open: "amber",
+  locked: "teal",
+  reviewed: "lichen",
+};

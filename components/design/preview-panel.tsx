@@ -1,0 +1,224 @@
+"use client";
+/**
+ * Boundaries and exact operating characteristics of the design being edited, computed on the
+ * server (POST .../design-preview) after the inputs have been still for 400 ms. The last good
+ * result stays on screen while a new one computes or when a request fails.
+ */
+import { useEffect, useRef, useState } from "react";
+import type { ColDef } from "ag-grid-community";
+import { CairnPlot, CAIRN_COLOURS } from "@/components/charts/plot";
+import { DataGrid } from "@/components/grid/data-grid";
+import { Banner } from "@/components/ui/banner";
+import { formatBoundary, formatProbability } from "@/lib/format";
+import type { DesignPreview, SingleArmPreview, TwoArmPreview } from "@/lib/design/preview";
+import type { Design } from "@/lib/stats/types";
+
+export const PREVIEW_DEBOUNCE_MS = 400;
+
+export function usePreview(trialId: number, design: Design | null) {
+  const [result, setResult] = useState<{ design: Design; preview: DesignPreview } | null>(null);
+  const [computing, setComputing] = useState(false);
+  const [error, setError] = useState<string | null>(null);
+  const key = design ? JSON.stringify(design) : null;
+  const controller = useRef<AbortController | null>(null);
+  useEffect(() => {
+    if (!key) return;
+    const timer = setTimeout(async () => {
+      controller.current?.abort();
+      const c = new AbortController();
+      controller.current = c;
+      setComputing(true);
+      try {
+        const res = await fetch(`/api/trials/${trialId}/design-preview`, { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify({ spec: JSON.parse(key) }), signal: c.signal });
+        const body = await res.json().catch(() => ({}));
+        if (!res.ok) throw new Error(body.error ?? `The server answered ${res.status}.`);
+        setResult({ design: JSON.parse(key) as Design, preview: body.preview as DesignPreview });
+        setError(null);
+      } catch (e) {
+        if ((e as Error).name === "AbortError") return;
+        setError((e as Error).message || "The preview could not be computed.");
+      } finally {
+        if (controller.current === c) setComputing(false);
+      }
+    }, PREVIEW_DEBOUNCE_MS);
+    return () => clearTimeout(timer);
+  }, [trialId, key]);
+  return { result, computing, error };
+}
+
+function Stat({ label, value, testId, note }: { label: string; value: string; testId: string; note?: string }) {
+  return (
+    <div className="rounded-md border border-stone-200 bg-stone-50 px-3 py-2">
+      <dt className="text-xs text-stone-600">{label}</dt>
+      <dd className="text-xl font-semibold tabular-nums" data-testid={testId}>{value}</dd>
+      {note ? <p className="text-[11px] text-stone-500">{note}</p> : null}
+    </div>
+  );
+}
+
+const fmtN = (v: number) => v.toFixed(1);
+
+function OcSummaryBlock({ p, nullLabel, targetLabel }: { p: DesignPreview; nullLabel: string; targetLabel: string }) {
+  return (
+    <dl className="grid grid-cols-2 gap-2 sm:grid-cols-3" aria-label="Operating characteristics">
+      <Stat label={`Type I error (${nullLabel})`} value={formatProbability(p.typeIError)} testId="oc-type-i-error" />
+      <Stat label={`Power (${targetLabel})`} value={formatProbability(p.power)} testId="oc-power" />
+      <Stat label={`Early termination (${nullLabel})`} value={formatProbability(p.atNull.pEarlyTermination)} testId="oc-pet-null" />
+      <Stat label={`Expected sample size (${nullLabel})`} value={fmtN(p.atNull.expectedSampleSize)} testId="oc-en-null" note={p.arms === "two" ? "per arm" : undefined} />
+      <Stat label={`Early termination (${targetLabel})`} value={formatProbability(p.atTarget.pEarlyTermination)} testId="oc-pet-target" />
+      <Stat label={`Expected sample size (${targetLabel})`} value={fmtN(p.atTarget.expectedSampleSize)} testId="oc-en-target" note={p.arms === "two" ? "per arm" : undefined} />
+    </dl>
+  );
+}
+
+type SingleRow = { look: string; n: number; futility: string; efficacy: string; safety: string };
+const SINGLE_COLUMNS: ColDef<SingleRow>[] = [
+  { field: "look", headerName: "Look" },
+  { field: "n", headerName: "Patients" },
+  { field: "futility", headerName: "Futility: stop if responders ≤" },
+  { field: "efficacy", headerName: "Efficacy: stop if responders ≥" },
+  { field: "safety", headerName: "Safety: stop if toxicities ≥" },
+];
+
+function SingleArmResult({ p, design }: { p: SingleArmPreview; design: Extract<Design, { arms: "single" }> }) {
+  const rows: SingleRow[] = p.boundaries.map((b, k) => ({
+    look: b.final ? "Final" : String(k + 1),
+    n: b.n,
+    futility: formatBoundary(b.futilityMax),
+    efficacy: formatBoundary(b.efficacyMin),
+    safety: design.safety ? formatBoundary(b.toxicityMin) : "—",
+  }));
+  const xs = p.boundaries.map((b) => b.n);
+  const step = { shape: "hv" as const };
+  const data: Plotly.Data[] = [
+    { x: xs, y: p.boundaries.map((b) => b.futilityMax), name: "Futility boundary (stop at or below)", mode: "lines+markers", line: { color: CAIRN_COLOURS.futility, ...step }, connectgaps: false },
+    { x: xs, y: p.boundaries.map((b) => b.efficacyMin), name: "Efficacy boundary (stop at or above; final: success)", mode: "lines+markers", line: { color: CAIRN_COLOURS.efficacy, ...step }, connectgaps: false },
+  ];
+  if (design.safety) data.push({ x: xs, y: p.boundaries.map((b) => b.toxicityMin), name: "Safety boundary (toxicities, stop at or above)", mode: "lines+markers", line: { color: CAIRN_COLOURS.safety, dash: "dot", ...step } });
+  return (
+    <>
+      <OcSummaryBlock p={p} nullLabel={`at p0 = ${design.p0}`} targetLabel={`at p1 = ${design.p1}`} />
+      <h3 className="mt-2 text-sm font-semibold">Stopping boundaries</h3>
+      <DataGrid rows={rows} columns={SINGLE_COLUMNS} label="Stopping boundaries" height={Math.min(360, 60 + rows.length * 42)} csvFileName="cairn-boundaries.csv" />
+      <CairnPlot title="Stopping boundaries: cumulative responders against patients enrolled" data={data} layout={{ xaxis: { title: { text: "Patients enrolled" }, range: [0, p.nMax + 1] }, yaxis: { title: { text: "Cumulative responders" }, rangemode: "tozero" } }} fileName="cairn-boundaries" />
+      <OcCurve p={p} xLabel="True response rate" marks={[design.p0, design.p1]} />
+    </>
+  );
+}
+
+type TwoRow = { look: string; n: number; xC: number; futility: string; efficacy: string };
+const TWO_COLUMNS: ColDef<TwoRow>[] = [
+  { field: "look", headerName: "Look" },
+  { field: "n", headerName: "Patients per arm" },
+  { field: "xC", headerName: "Control responders" },
+  { field: "futility", headerName: "Futility: stop if experimental responders ≤" },
+  { field: "efficacy", headerName: "Efficacy: stop if experimental responders ≥" },
+];
+
+function TwoArmResult({ p, design }: { p: TwoArmPreview; design: Extract<Design, { arms: "two" }> }) {
+  const lookIndex = new Map(p.looks.map((n, k) => [n, k]));
+  const rows: TwoRow[] = p.boundaries.map((b) => ({
+    look: b.final ? "Final" : String((lookIndex.get(b.n) ?? 0) + 1),
+    n: b.n,
+    xC: b.xC,
+    futility: formatBoundary(b.futilityMaxT),
+    efficacy: formatBoundary(b.efficacyMinT),
+  }));
+  const data: Plotly.Data[] = p.looks.flatMap((n, k) => {
+    const own = p.boundaries.filter((b) => b.n === n);
+    const final = k === p.looks.length - 1;
+    const label = final ? `final (${n}/arm)` : `look ${k + 1} (${n}/arm)`;
+    return [
+      { x: own.map((b) => b.xC), y: own.map((b) => b.futilityMaxT), name: `Futility, ${label}`, mode: "lines" as const, line: { color: CAIRN_COLOURS.futility, shape: "hv" as const, width: 1 + k }, opacity: 0.5 + (0.5 * (k + 1)) / p.looks.length },
+      { x: own.map((b) => b.xC), y: own.map((b) => b.efficacyMinT), name: `Efficacy, ${label}`, mode: "lines" as const, line: { color: CAIRN_COLOURS.efficacy, shape: "hv" as const, width: 1 + k }, opacity: 0.5 + (0.5 * (k + 1)) / p.looks.length },
+    ];
+  });
+  return (
+    <>
+      <OcSummaryBlock p={p} nullLabel={`both arms at ${design.controlRate}`} targetLabel={`${design.experimentalRate} vs ${design.controlRate}`} />
+      <h3 className="mt-2 text-sm font-semibold">Stopping boundaries (per look, given the control arm&apos;s responders)</h3>
+      <DataGrid rows={rows} columns={TWO_COLUMNS} label="Stopping boundaries" height={320} csvFileName="cairn-boundaries-two-arm.csv" />
+      {p.safety ? (
+        <p className="text-xs text-stone-600">
+          Safety (experimental arm): stop if toxicities ≥ {p.safety.map((s) => `${formatBoundary(s.toxicityMin)} of ${s.n}`).join("; ")}.
+        </p>
+      ) : null}
+      <CairnPlot title="Experimental responders that stop, against control responders, by look" data={data} layout={{ xaxis: { title: { text: "Control responders" } }, yaxis: { title: { text: "Experimental responders" }, rangemode: "tozero" } }} fileName="cairn-boundaries-two-arm" />
+      <OcCurve p={p} xLabel={`True experimental rate (control at ${design.controlRate})`} marks={[design.controlRate, design.experimentalRate]} />
+    </>
+  );
+}
+
+function OcCurve({ p, xLabel, marks }: { p: DesignPreview; xLabel: string; marks: number[] }) {
+  const x = p.curve.map((c) => c.rate);
+  return (
+    <CairnPlot
+      title="P(declare success) and expected sample size over true rates"
+      data={[
+        { x, y: p.curve.map((c) => c.pDeclareSuccess), name: "P(declare success)", mode: "lines", line: { color: CAIRN_COLOURS.efficacy } },
+        { x, y: p.curve.map((c) => c.pEarlyTermination), name: "P(early termination)", mode: "lines", line: { color: CAIRN_COLOURS.futility, dash: "dash" } },
+        { x, y: p.curve.map((c) => c.expectedSampleSize), name: "Expected sample size", mode: "lines", yaxis: "y2", line: { color: CAIRN_COLOURS.control, dash: "dot" } },
+      ]}
+      layout={{
+        xaxis: { title: { text: xLabel }, range: [0, 1] },
+        yaxis: { title: { text: "Probability" }, range: [0, 1] },
+        yaxis2: { title: { text: "Expected sample size" }, overlaying: "y", side: "right", rangemode: "tozero" },
+        margin: { l: 56, r: 56, t: 28, b: 48 },
+        shapes: marks.map((m) => ({ type: "line", x0: m, x1: m, y0: 0, y1: 1, yref: "paper", line: { color: "#bbb", width: 1, dash: "dot" } })),
+      }}
+      fileName="cairn-operating-characteristics"
+    />
+  );
+}
+
+function PriorDensities({ p }: { p: DesignPreview }) {
+  return (
+    <div className="grid gap-2 sm:grid-cols-2">
+      {p.priors.map((pr) => (
+        <div key={pr.label} className="rounded-md border border-stone-200 p-2">
+          <p className="text-sm font-medium">{pr.label}</p>
+          <p className="text-xs text-stone-600">
+            Mean {pr.mean.toFixed(3)} · effective sample size <span data-testid="prior-ess" className="tabular-nums">{pr.ess.toFixed(1)}</span>
+          </p>
+          <CairnPlot
+            title={`Prior density: ${pr.label}`}
+            height={180}
+            data={[{ x: pr.density.x, y: pr.density.y, mode: "lines", line: { color: CAIRN_COLOURS.prior }, fill: "tozeroy", name: "density" }]}
+            layout={{ showlegend: false, margin: { l: 36, r: 8, t: 8, b: 32 }, xaxis: { range: [0, 1] }, yaxis: { rangemode: "tozero", range: [0, Math.min(12, Math.max(...pr.density.y) * 1.05)] } }}
+            fileName="cairn-prior"
+          />
+        </div>
+      ))}
+    </div>
+  );
+}
+
+/** Shows the last result with the design it was computed for (labels and numbers always agree). */
+export function PreviewPanel({ preview, invalid }: { preview: ReturnType<typeof usePreview>; invalid: boolean }) {
+  const { result, computing, error } = preview;
+  const shown = result?.preview ?? null;
+  const design = result?.design ?? null;
+  return (
+    <section aria-label="Boundaries and operating characteristics" aria-busy={computing} className="flex flex-col gap-3">
+      <div className="flex items-center justify-between">
+        <h2 className="text-lg font-semibold">Boundaries and operating characteristics</h2>
+        <span role="status" aria-live="polite" className="text-xs text-stone-500" data-testid="preview-status">
+          {computing ? "computing…" : invalid ? "waiting for valid inputs" : shown ? "up to date" : ""}
+        </span>
+      </div>
+      <p className="text-xs text-stone-500">Exact: forward recursion over the binomial outcomes between looks (no simulation). Rounded on screen; the CSV and API carry full precision.</p>
+      {invalid ? <Banner tone="warning">Fix the highlighted fields to update these results{shown ? "; the last valid design's results are shown." : "."}</Banner> : null}
+      {error ? <Banner tone="danger" title="The preview could not be updated">{error}{shown ? " The last results are kept below." : ""}</Banner> : null}
+      {!shown ? (
+        <p className="text-sm text-stone-600">{computing ? "Computing the first results…" : "Results appear here as soon as the design is valid."}</p>
+      ) : (
+        <div className={`flex flex-col gap-3 transition-opacity ${computing ? "opacity-60" : ""}`}>
+          {shown.arms === "single" && design?.arms === "single" ? <SingleArmResult p={shown} design={design} /> : null}
+          {shown.arms === "two" && design?.arms === "two" ? <TwoArmResult p={shown} design={design} /> : null}
+          <h3 className="text-sm font-semibold">Priors</h3>
+          <PriorDensities p={shown} />
+        </div>
+      )}
+    </section>
+  );
+}

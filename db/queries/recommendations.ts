@@ -1,0 +1,107 @@
+import "server-only";
+/**
+ * CLOSED where marked: the DMC's recommendations. The decision and date are open (blinded roles
+ * read them through fetchRecommendationsOpen in db/queries/open-status.ts); the rationale is
+ * closed and is selected only here, by callers that have passed viewClosed or
+ * recordRecommendation. Rows are never updated or deleted: a correction is a new row whose
+ * corrects_id names the row it corrects.
+ */
+import { db, type Tx } from "../knex";
+import type { AnalysisOpenRow, RecommendationDecision } from "../types";
+import { ANALYSIS_OPEN_COLUMNS } from "./open-status";
+
+export const RECOMMENDATION_DECISIONS: readonly RecommendationDecision[] = ["continue", "continue_modified", "stop_futility", "stop_efficacy", "stop_safety"];
+
+/** CLOSED: a recommendation with its rationale and signature. */
+export type RecommendationClosed = {
+  id: number;
+  trialId: number;
+  analysisId: number;
+  lookNumber: number;
+  decision: RecommendationDecision;
+  rationale: string;
+  correctsId: number | null;
+  /** Id of the later entry that corrects this one, if any. */
+  correctedById: number | null;
+  recordedAt: Date;
+  signatureId: number;
+  signerName: string;
+  signerEmail: string;
+  signatureMeaning: string;
+  signedAt: Date;
+  recordHash: string;
+};
+
+function closedQuery(tx: Tx) {
+  return tx("recommendations as r")
+    .join("analyses as a", "a.id", "r.analysis_id")
+    .join("signatures as s", "s.id", "r.signature_id")
+    .leftJoin("recommendations as c", "c.corrects_id", "r.id")
+    .select(
+      "r.id",
+      "r.trial_id as trialId",
+      "r.analysis_id as analysisId",
+      "a.look_number as lookNumber",
+      "r.decision",
+      "r.rationale",
+      "r.corrects_id as correctsId",
+      "c.id as correctedById",
+      "r.created_at as recordedAt",
+      "r.signature_id as signatureId",
+      "s.signer_name as signerName",
+      "s.signer_email as signerEmail",
+      "s.meaning as signatureMeaning",
+      "s.signed_at as signedAt",
+      "s.record_hash as recordHash",
+    );
+}
+
+/** CLOSED: every recommendation of a trial (optionally one analysis), newest first. */
+export async function fetchRecommendationsClosed(trialId: number, analysisId?: number, tx: Tx = db): Promise<RecommendationClosed[]> {
+  const q = closedQuery(tx).where("r.trial_id", trialId).orderBy("r.id", "desc");
+  if (analysisId !== undefined) q.where("r.analysis_id", analysisId);
+  return q;
+}
+
+export async function fetchRecommendationClosed(id: number, tx: Tx = db): Promise<RecommendationClosed | undefined> {
+  return closedQuery(tx).where("r.id", id).first();
+}
+
+/** The analysis row locked for the duration of a recording transaction, so two signers queue. */
+export async function fetchAnalysisForUpdate(tx: Tx, analysisId: number): Promise<AnalysisOpenRow | undefined> {
+  return tx("analyses").where({ id: analysisId }).forUpdate().first(ANALYSIS_OPEN_COLUMNS);
+}
+
+/** Ids of the recommendations of an analysis that no later entry corrects (normally at most one). */
+export async function fetchCurrentRecommendationIds(tx: Tx, analysisId: number): Promise<number[]> {
+  const rows: { id: number }[] = await tx("recommendations as r")
+    .where("r.analysis_id", analysisId)
+    .whereNotExists(tx("recommendations as c").whereRaw("c.corrects_id = r.id"))
+    .select("r.id");
+  return rows.map((r) => r.id);
+}
+
+export type NewRecommendation = {
+  trialId: number;
+  analysisId: number;
+  decision: RecommendationDecision;
+  rationale: string;
+  correctsId: number | null;
+  signatureId: number;
+  createdBy: number;
+  createdAt: Date;
+};
+
+export async function insertRecommendation(tx: Tx, r: NewRecommendation): Promise<number> {
+  const [id] = await tx("recommendations").insert({
+    trial_id: r.trialId,
+    analysis_id: r.analysisId,
+    decision: r.decision,
+    rationale: r.rationale,
+    corrects_id: r.correctsId,
+    signature_id: r.signatureId,
+    created_by: r.createdBy,
+    created_at: r.createdAt,
+  });
+  return id;
+}

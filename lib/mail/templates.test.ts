@@ -1,0 +1,60 @@
+import { describe, expect, it } from "vitest";
+import { CAUTION_TEXT } from "@/components/caution";
+import { closedNoticeMail, oneLine, openPacketMail, reminderMail } from "./templates";
+
+const ctx = {
+  trialCode: "CRN-T9",
+  trialTitle: "An invented trial <b>bold</b>",
+  meetingWhen: "Tuesday 20 October 2026, 15:00 Europe/Oslo (UTC+02:00)",
+  lookNumber: 2,
+  recipientName: "Ada Example",
+  senderName: "Cora Ordinator",
+};
+
+describe("openPacketMail", () => {
+  const m = openPacketMail({ ...ctx, packetVersion: 3, attachmentName: "CRN-T9-open-report-v3.pdf" });
+  it("says what it is in the subject: trial, open report, version, look", () => {
+    expect(m.subject).toBe("[CRN-T9] DMC meeting packet, open report v3 (look 2)");
+  });
+  it("names the attachment, the meeting and carries the caution", () => {
+    expect(m.text).toContain("attached as CRN-T9-open-report-v3.pdf (PDF)");
+    expect(m.text).toContain(ctx.meetingWhen);
+    expect(m.text).toContain(CAUTION_TEXT);
+    expect(m.text).toContain("It holds no arm-level or outcome data.");
+  });
+  it("keeps a title with markup as literal text", () => {
+    expect(m.text).toContain("An invented trial <b>bold</b>");
+  });
+});
+
+describe("closedNoticeMail", () => {
+  const m = closedNoticeMail({ ...ctx, packetVersion: 2, link: "http://localhost:3000/trials/4/meetings/9#packets" });
+  it("links to the closed report instead of carrying it", () => {
+    expect(m.subject).toBe("[CRN-T9] DMC meeting packet: closed report v2 ready in Cairn (look 2)");
+    expect(m.text).toContain("Read it here: http://localhost:3000/trials/4/meetings/9#packets");
+    expect(m.text).toContain("it is not attached");
+    expect(m.text).toContain(CAUTION_TEXT);
+  });
+  it("has no slot for results: the body is the same whatever the closed data", () => {
+    expect(closedNoticeMail({ ...ctx, packetVersion: 2, link: "L" }).text).toBe(closedNoticeMail({ ...ctx, packetVersion: 2, link: "L" }).text);
+    expect(m.text).not.toMatch(/posterior|responders|predictive probability/i);
+  });
+});
+
+describe("reminderMail", () => {
+  it("says it is a reminder, when, how far ahead, with the open agenda and the caution", () => {
+    const m = reminderMail({ ...ctx, daysBefore: 1, link: "L", openAgenda: "1. Accrual" });
+    expect(m.subject).toBe(`[CRN-T9] Reminder: DMC meeting on ${ctx.meetingWhen}`);
+    expect(m.text).toContain("sent 1 day ahead");
+    expect(m.text).toContain("1. Accrual");
+    expect(m.text).toContain(CAUTION_TEXT);
+    expect(reminderMail({ ...ctx, daysBefore: 3, link: "L", openAgenda: "" }).text).toContain("sent 3 days ahead");
+  });
+});
+
+describe("oneLine", () => {
+  it("removes line breaks so a subject cannot inject a header", () => {
+    expect(oneLine("Hello\r\nBcc: x@example.com")).toBe("Hello Bcc: x@example.com");
+    expect(oneLine("a".repeat(300)).length).toBe(250);
+  });
+});

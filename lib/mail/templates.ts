@@ -1,0 +1,65 @@
+/**
+ * E-mail templates as plain functions: data in, subject and plain-text body out. Plain text only,
+ * so nothing a user typed (a trial title, an agenda) can become markup in a mail client. Every
+ * message says what it is, who it is for, and carries the caution. No template takes closed data:
+ * DMC members get a link to the closed report in Cairn, never its content.
+ */
+import { CAUTION_TEXT } from "@/components/caution";
+
+export type MailContent = { subject: string; text: string };
+
+export type PacketMailContext = {
+  trialCode: string;
+  trialTitle: string;
+  meetingWhen: string;
+  lookNumber: number;
+  recipientName: string;
+  senderName: string;
+};
+
+const FOOTER = (why: string) =>
+  `\n\n--\nCaution. ${CAUTION_TEXT}\n\n${why} This message was sent by Cairn, the trial's interim-monitoring system; replies are not read.`;
+
+/** One line, no control characters: a subject cannot carry a header break. */
+export function oneLine(s: string, max = 250): string {
+  const flat = s.replace(/[\r\n\t\u0000-\u001f\u007f]+/g, " ").replace(/\s+/g, " ").trim();
+  return flat.length > max ? `${flat.slice(0, max - 1)}…` : flat;
+}
+
+export function openPacketMail(c: PacketMailContext & { packetVersion: number; attachmentName: string }): MailContent {
+  return {
+    subject: oneLine(`[${c.trialCode}] DMC meeting packet, open report v${c.packetVersion} (look ${c.lookNumber})`),
+    text:
+      `Dear ${c.recipientName},\n\n` +
+      `This is the open report of the meeting packet for the DMC meeting of ${c.trialCode} (${c.trialTitle}).\n\n` +
+      `Meeting: ${c.meetingWhen}\nLook reviewed: look ${c.lookNumber}\nOpen report: version ${c.packetVersion}, attached as ${c.attachmentName} (PDF)\n\n` +
+      `The open report holds accrual, the look schedule, data timeliness and the recommendations recorded so far. It holds no arm-level or outcome data.\n\n` +
+      `Sent by ${c.senderName} through Cairn.` +
+      FOOTER("You receive this because you are on this trial as sponsor or trial coordinator."),
+  };
+}
+
+export function closedNoticeMail(c: PacketMailContext & { packetVersion: number; link: string }): MailContent {
+  return {
+    subject: oneLine(`[${c.trialCode}] DMC meeting packet: closed report v${c.packetVersion} ready in Cairn (look ${c.lookNumber})`),
+    text:
+      `Dear ${c.recipientName},\n\n` +
+      `The closed report for the DMC meeting of ${c.trialCode} (${c.trialTitle}) is ready. For confidentiality it is not attached: sign in to Cairn to read it.\n\n` +
+      `Meeting: ${c.meetingWhen}\nLook reviewed: look ${c.lookNumber}\nClosed report: version ${c.packetVersion}\nRead it here: ${c.link}\n\n` +
+      `Only DMC members and the unblinded statistician can open the closed report. Please do not forward this message.\n\n` +
+      `Sent by ${c.senderName} through Cairn.` +
+      FOOTER("You receive this because you are a DMC member or the unblinded statistician on this trial."),
+  };
+}
+
+export function reminderMail(c: Omit<PacketMailContext, "senderName"> & { daysBefore: number; link: string; openAgenda: string }): MailContent {
+  return {
+    subject: oneLine(`[${c.trialCode}] Reminder: DMC meeting on ${c.meetingWhen}`),
+    text:
+      `Dear ${c.recipientName},\n\n` +
+      `This is a reminder of the DMC meeting of ${c.trialCode} (${c.trialTitle}), sent ${c.daysBefore} day${c.daysBefore === 1 ? "" : "s"} ahead as planned.\n\n` +
+      `Meeting: ${c.meetingWhen}\nLook reviewed: look ${c.lookNumber}\nMeeting page: ${c.link}\n\n` +
+      `Open session agenda:\n${c.openAgenda.trim() || "(none entered)"}` +
+      FOOTER("You receive this because you are invited to this meeting."),
+  };
+}

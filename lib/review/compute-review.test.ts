@@ -1,0 +1,188 @@
+/**
+ * The closed review, checked against a published worked example (Lee & Liu 2008), the @stdlib
+ * reference distributions (independent of lib/stats) and exact identities.
+ */
+import { describe, expect, it } from "vitest";
+import stdlibBetaCdf from "@stdlib/stats-base-dists-beta-cdf";
+import stdlibBetaPdf from "@stdlib/stats-base-dists-beta-pdf";
+import { armPosterior, computeReview, intervalProbabilityOf, reproducibilityRecord, scepticalPrior, type ReviewInput } from "./compute-review";
+import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
+import { ENGINE_VERSION } from "@/lib/stats/version";
+import { StatsDomainError } from "@/lib/stats/validate";
+
+const close = (actual: number, expected: number, tol: number) => {
+  expect(Math.abs(actual - expected), `expected ${expected}, got ${actual}, tolerance ${tol}`).toBeLessThanOrEqual(tol);
+};
+
+// An invented single-arm design shaped like Cairn's demo trial (Beta(0.6, 0.4) prior, p0 = 0.2).
+const SINGLE: SingleArmDesign = {
+  arms: "single",
+  prior: { family: "beta", a: 0.6, b: 0.4 },
+  p0: 0.2,
+  p1: 0.4,
+  delta: 0,
+  nMax: 40,
+  looks: { kind: "list", sizes: [10, 20, 30, 40] },
+  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
+  safety: { qmax: 0.3, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
+};
+
+const singleInput = (over: Partial<ReviewInput> = {}): ReviewInput => ({
+  design: SINGLE,
+  arms: [{ id: 7, label: "Arm A", role: "single" }],
+  looks: [
+    { analysisId: 101, lookNumber: 1, cutoffDate: "2026-01-31", counts: [{ armId: 7, enrolled: 11, evaluable: 10, responders: 3, toxicities: 1 }] },
+    { analysisId: 102, lookNumber: 2, cutoffDate: "2026-03-31", counts: [{ armId: 7, enrolled: 21, evaluable: 20, responders: 6, toxicities: 3 }] },
+  ],
+  analysisId: 102,
+  generatedAt: "2026-04-02T09:00:00.000Z",
+  ...over,
+});
+
+describe("single arm", () => {
+  const r = computeReview(singleInput());
+
+  it("the posterior after x of n is Beta(a + x, b + n - x) (conjugacy, exact identity)", () => {
+    expect(r.arms[0].posterior).toHaveLength(1);
+    close(r.arms[0].posterior[0].a, 0.6 + 6, 1e-14);
+    close(r.arms[0].posterior[0].b, 0.4 + 14, 1e-14);
+    close(r.arms[0].summary.mean, 6.6 / 21, 1e-15);
+  });
+
+  it("P(p > p0 | data) equals 1 - F(p0) with @stdlib's Beta CDF", () => {
+    close(r.arms[0].probAboveP0 as number, 1 - stdlibBetaCdf(0.2, 6.6, 14.4), 1e-10);
+  });
+
+  it("the density and cumulative curves on the grid match @stdlib's Beta pdf and CDF", () => {
+    const c = r.arms[0].curves;
+    expect(c.p).toHaveLength(201);
+    for (const i of [20, 60, 100, 150]) {
+      close(c.density[i] as number, stdlibBetaPdf(c.p[i], 6.6, 14.4), 1e-9);
+      close(c.cdf[i], stdlibBetaCdf(c.p[i], 6.6, 14.4), 1e-10);
+    }
+  });
+
+  it("keeps the history of looks up to the reviewed one, each with its predictive probability", () => {
+    expect(r.history.map((h) => h.lookNumber)).toEqual([1, 2]);
+    for (const h of r.history) expect(h.evaluation.predictiveProbability).toBeGreaterThan(0);
+    expect(r.observedPath).toEqual([
+      { lookNumber: 1, n: 10, responders: 3 },
+      { lookNumber: 2, n: 20, responders: 6 },
+    ]);
+    const first = computeReview(singleInput({ analysisId: 101 }));
+    expect(first.history).toHaveLength(1);
+    expect(first.current.n).toBe(10);
+  });
+
+  it("the boundary table has one row per planned look and the observed counts are not in the futility region when the decision is to continue", () => {
+    expect(r.boundaries.map((b) => b.n)).toEqual([10, 20, 30, 40]);
+    expect(r.decision.action).toBe("continue");
+    const row = r.boundaries.find((b) => b.n === 20)!;
+    expect(row.futilityMax === null || 6 > row.futilityMax).toBe(true);
+  });
+
+  it("safety: P(q > qmax | t of n) is 1 - F(qmax) under Beta(0.6 + t, 1.4 + n - t) (@stdlib) and is flagged only when above thetaS", () => {
+    close(r.safety!.probAboveLimit, 1 - stdlibBetaCdf(0.3, 3.6, 18.4), 1e-10);
+    expect(r.safety!.crossed).toBe(false);
+    const toxic = computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, evaluable: 20, responders: 6, toxicities: 11 }] }] }));
+    expect(toxic.safety!.crossed).toBe(true);
+    expect(toxic.decision).toMatchObject({ action: "stop", stop: "safety" });
+  });
+
+  it("prior sensitivity: design, uniform and sceptical priors side by side; the sceptical prior is centred at p0 with ESS 10% of nMax", () => {
+    expect(r.sensitivity.map((s) => s.key)).toEqual(["design", "uniform", "sceptical"]);
+    expect(scepticalPrior(0.2, 40)).toEqual({ family: "informative", mean: 0.2, ess: 4 });
+    close(r.sensitivity[1].arms[0].summary.mean, 7 / 22, 1e-15); // Beta(1 + 6, 1 + 14)
+    close(r.sensitivity[2].arms[0].summary.mean, 6.8 / 24, 1e-15); // Beta(0.8 + 6, 3.2 + 14)
+    // The sceptical prior pulls towards p0, so the estimate and P(p > p0) fall.
+    expect(r.sensitivity[2].arms[0].probAboveP0!).toBeLessThan(r.sensitivity[1].arms[0].probAboveP0!);
+  });
+
+  it("the interval question: P(lo < p <= hi) = F(hi) - F(lo) with @stdlib, and lo >= hi is refused", () => {
+    const post = armPosterior(SINGLE, singleInput().arms, singleInput().looks[1], 7);
+    close(intervalProbabilityOf(post, 0.2, 0.4), stdlibBetaCdf(0.4, 6.6, 14.4) - stdlibBetaCdf(0.2, 6.6, 14.4), 1e-12);
+    expect(() => intervalProbabilityOf(post, 0.4, 0.4)).toThrow(StatsDomainError);
+    expect(() => armPosterior(SINGLE, singleInput().arms, singleInput().looks[1], 99)).toThrow(StatsDomainError);
+  });
+});
+
+describe("predictive probability against the published example", () => {
+  it("Lee & Liu (2008, Clinical Trials 5:93-106), worked example: Beta(0.6, 0.4) prior, p0 = 0.6, thetaT = 0.9, 16 responders of 23, Nmax = 40 gives PP = 0.5656", () => {
+    const design: SingleArmDesign = { ...SINGLE, p0: 0.6, p1: 0.8, looks: { kind: "list", sizes: [23] }, safety: null };
+    const r = computeReview({
+      design,
+      arms: [{ id: 1, label: "A", role: "single" }],
+      looks: [{ analysisId: 1, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 23, evaluable: 23, responders: 16, toxicities: null }] }],
+      analysisId: 1,
+      generatedAt: "2026-01-01T00:00:00.000Z",
+    });
+    close(r.current.evaluation.predictiveProbability as number, 0.5656, 5e-5);
+    expect(r.decision.action).toBe("continue");
+  });
+});
+
+describe("two arms", () => {
+  const TWO: TwoArmDesign = {
+    arms: "two",
+    priorT: { family: "uniform" },
+    priorC: { family: "uniform" },
+    controlRate: 0.3,
+    experimentalRate: 0.5,
+    delta: 0,
+    nMaxPerArm: 30,
+    looks: { kind: "list", sizes: [15, 30] },
+    rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
+    safety: null,
+  };
+  const input: ReviewInput = {
+    design: TWO,
+    arms: [
+      { id: 1, label: "E", role: "experimental" },
+      { id: 2, label: "C", role: "control" },
+    ],
+    looks: [{ analysisId: 5, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 15, evaluable: 15, responders: 8, toxicities: null }, { armId: 2, enrolled: 15, evaluable: 15, responders: 4, toxicities: null }] }],
+    analysisId: 5,
+    generatedAt: "2026-01-01T00:00:00.000Z",
+  };
+  const r = computeReview(input);
+
+  it("P(pT - pC > 0) matches a direct quadrature of f_T(x) F_C(x) with @stdlib's pdf and CDF (20000-point midpoint rule)", () => {
+    let s = 0;
+    const N = 20000;
+    for (let i = 0; i < N; i++) {
+      const x = (i + 0.5) / N;
+      s += stdlibBetaPdf(x, 9, 8) * stdlibBetaCdf(x, 5, 12);
+    }
+    close(r.difference!.probExceeds, s / N, 1e-7);
+  });
+
+  it("the difference density integrates to 1 over [-1, 1] and the control posterior is the plot's reference", () => {
+    const { d, density } = r.difference!.grid;
+    const step = d[1] - d[0];
+    close(density.reduce((a, b) => a + b, 0) * step, 1, 1e-2);
+    expect(r.reference).toEqual({ kind: "control", armId: 2 });
+  });
+
+  it("boundary rows are read at the observed control count where the look happened, projected otherwise", () => {
+    expect(r.boundaries[0]).toMatchObject({ n: 15, controlResponders: 4, controlBasis: "observed" });
+    expect(r.boundaries[1]).toMatchObject({ n: 30, controlResponders: 8, controlBasis: "projected", final: true });
+  });
+
+  it("a missing count row is a clear domain error, not a crash", () => {
+    expect(() => computeReview({ ...input, looks: [{ ...input.looks[0], counts: [input.looks[0].counts[0]] }] })).toThrow(/no row for the arm "C"/);
+  });
+});
+
+describe("reproducibility record", () => {
+  it("carries the engine version, the time given and the inputs; recomputing from its inputs gives identical outputs", () => {
+    const input = singleInput();
+    const rec = reproducibilityRecord(input);
+    expect(rec.engineVersion).toBe(ENGINE_VERSION);
+    expect(rec.generatedAt).toBe("2026-04-02T09:00:00.000Z");
+    const again = computeReview({ ...rec.inputs, generatedAt: rec.generatedAt });
+    expect(JSON.parse(JSON.stringify(again))).toEqual(JSON.parse(JSON.stringify(rec.outputs)));
+  });
+  it("an analysis id that is not among the looks is refused", () => {
+    expect(() => computeReview(singleInput({ analysisId: 999 }))).toThrow(StatsDomainError);
+  });
+});

@@ -1,0 +1,68 @@
+import "server-only";
+/**
+ * CLOSED: loads what computeReview needs for one analysis from the database. Callers must have
+ * passed requireTrialAccess(..., "viewClosed") (or authorizePage with it) first.
+ */
+import { fetchAnalysesOpen } from "@/db/queries/analyses";
+import { fetchArmCountsForTrial } from "@/db/queries/closed";
+import { fetchDesign } from "@/db/queries/designs";
+import { fetchArms } from "@/db/queries/trials";
+import type { AnalysisOpenRow, TrialRow } from "@/db/types";
+import { notFoundError, conflict } from "@/lib/http";
+import { armPosterior, computeReview, reproducibilityRecord, type ReviewInput, type ReviewLook } from "./compute-review";
+
+export type ReviewContext = { input: ReviewInput; analysis: AnalysisOpenRow; looks: AnalysisOpenRow[] };
+
+const REVIEWABLE = new Set(["locked", "reviewed"]);
+
+function cutoffText(v: unknown): string | null {
+  if (v === null || v === undefined) return null;
+  if (v instanceof Date) return `${v.getFullYear()}-${String(v.getMonth() + 1).padStart(2, "0")}-${String(v.getDate()).padStart(2, "0")}`;
+  return String(v);
+}
+
+/** @throws HttpError 404 when the analysis is not this trial's, 409 when it is not locked yet. */
+export async function loadReviewInput(trial: TrialRow, analysisId: number, now: Date = new Date()): Promise<ReviewContext> {
+  const looks = await fetchAnalysesOpen(trial.id);
+  const analysis = looks.find((l) => l.id === analysisId);
+  if (!analysis) throw notFoundError("That analysis");
+  if (!REVIEWABLE.has(analysis.status)) throw conflict("This look has not been locked yet, so there is nothing to review.");
+  const [design, arms, counts] = await Promise.all([fetchDesign(analysis.design_id), fetchArms(trial.id), fetchArmCountsForTrial(trial.id)]);
+  if (!design) throw notFoundError("The design of that analysis");
+  const locked = looks.filter((l) => REVIEWABLE.has(l.status) && l.look_number <= analysis.look_number);
+  const reviewLooks: ReviewLook[] = locked.map((l) => ({
+    analysisId: l.id,
+    lookNumber: l.look_number,
+    cutoffDate: cutoffText(l.cutoff_date),
+    counts: counts
+      .filter((c) => c.analysis_id === l.id)
+      .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
+  }));
+  return {
+    analysis,
+    looks,
+    input: {
+      design: design.spec,
+      arms: arms.map((a) => ({ id: a.id, label: a.label, role: a.arm_role })),
+      looks: reviewLooks,
+      analysisId,
+      generatedAt: now.toISOString(),
+    },
+  };
+}
+
+export async function loadReview(trial: TrialRow, analysisId: number) {
+  const ctx = await loadReviewInput(trial, analysisId);
+  return { ...ctx, review: computeReview(ctx.input) };
+}
+
+export async function loadReproducibilityRecord(trial: TrialRow, analysisId: number) {
+  const ctx = await loadReviewInput(trial, analysisId);
+  return { ...reproducibilityRecord(ctx.input), trial: { id: trial.id, code: trial.code } };
+}
+
+export async function loadArmPosterior(trial: TrialRow, analysisId: number, armId: number) {
+  const ctx = await loadReviewInput(trial, analysisId);
+  const look = ctx.input.looks.find((l) => l.analysisId === analysisId)!;
+  return armPosterior(ctx.input.design, ctx.input.arms, look, armId);
+}

@@ -1,0 +1,27 @@
+/** The one schema for recording a recommendation, shared by the server action and the route handler. */
+import { z } from "zod";
+
+export const RECOMMENDATION_DECISION_VALUES = ["continue", "continue_modified", "stop_futility", "stop_efficacy", "stop_safety"] as const;
+
+export const recommendationSchema = z.object({
+  decision: z.enum(RECOMMENDATION_DECISION_VALUES, { message: "Choose the committee's recommendation." }),
+  rationale: z
+    .string({ message: "Give the committee's rationale." })
+    .trim()
+    .min(10, "Give the committee's rationale (at least 10 characters).")
+    .max(4000, "Keep the rationale under 4000 characters."),
+  /** The entry this one corrects; empty for a first recommendation. */
+  correctsId: z
+    .union([z.literal("").transform(() => null), z.null(), z.coerce.number().int("Not a valid entry.").positive("Not a valid entry.").max(2_147_483_647)])
+    .optional()
+    .transform((v) => v ?? null),
+  password: z.string({ message: "Enter your password to sign." }).min(1, "Enter your password to sign.").max(200, "That password is too long."),
+});
+
+export type RecommendationInput = z.infer<typeof recommendationSchema>;
+
+export type RecommendationFormState = {
+  ok?: string;
+  error?: string;
+  fieldErrors?: Partial<Record<"decision" | "rationale" | "correctsId" | "password", string[]>>;
+};

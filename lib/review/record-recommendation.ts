@@ -1,0 +1,67 @@
+import "server-only";
+/**
+ * Records the DMC's recommendation for a locked analysis with an electronic signature, in one
+ * transaction: signature, recommendation row, analysis marked reviewed, one audit row. Shared by
+ * the server action and the route handler; both have already called requireTrialAccess(...,
+ * "recordRecommendation").
+ */
+import { db } from "@/db/knex";
+import { appendAudit } from "@/db/audit";
+import { insertSignature } from "@/db/queries/signatures";
+import { updateAnalysisOpenFields } from "@/db/queries/analyses";
+import { fetchAnalysisForUpdate, fetchCurrentRecommendationIds, insertRecommendation } from "@/db/queries/recommendations";
+import type { TrialAccess } from "@/lib/auth";
+import { confirmSigner } from "@/lib/auth/signature";
+import { conflict, HttpError, notFoundError } from "@/lib/http";
+import { recommendationSchema } from "./recommendation-schema";
+
+export type RecordedRecommendation = { id: number; analysisId: number; decision: string; correctsId: number | null; signatureId: number; recordedAt: string };
+
+/**
+ * @throws ZodError for invalid input (422), HttpError 422 for a wrong password, 404 when the
+ *   analysis is not this trial's, 409 when the analysis is not locked, when a first recommendation
+ *   already exists (record a correction instead), or when the corrected entry is not the current one.
+ */
+export async function recordRecommendation(access: TrialAccess, analysisId: number, raw: unknown): Promise<RecordedRecommendation> {
+  const input = recommendationSchema.parse(raw);
+  await confirmSigner(access.user, input.password);
+  const now = new Date();
+  return db.transaction(async (tx) => {
+    const analysis = await fetchAnalysisForUpdate(tx, analysisId);
+    if (!analysis || analysis.trial_id !== access.trial.id) throw notFoundError("That analysis");
+    if (analysis.status !== "locked" && analysis.status !== "reviewed")
+      throw conflict("Only a locked analysis can be reviewed: this look has not been locked yet.");
+    const current = await fetchCurrentRecommendationIds(tx, analysisId);
+    if (input.correctsId === null && current.length > 0)
+      throw conflict("A recommendation is already recorded for this look. Recorded recommendations are never edited: record a correction instead.");
+    if (input.correctsId !== null && !current.includes(input.correctsId))
+      throw new HttpError(409, "Only the current recommendation of this look can be corrected; it may have been corrected already. Reload the page.", { field: "correctsId" });
+    const record = { analysisId, decision: input.decision, rationale: input.rationale, correctsId: input.correctsId };
+    const signature = await insertSignature(tx, {
+      userId: access.user.id,
+      signerName: access.user.name,
+      signerEmail: access.user.email,
+      meaning: "recommendation recorded",
+      entityType: "analysis",
+      entityId: analysisId,
+      record,
+    });
+    const id = await insertRecommendation(tx, { trialId: access.trial.id, analysisId, decision: input.decision, rationale: input.rationale, correctsId: input.correctsId, signatureId: signature.id, createdBy: access.user.id, createdAt: now });
+    if (analysis.status === "locked") {
+      const ok = await updateAnalysisOpenFields(tx, analysisId, analysis.row_version, { status: "reviewed", reviewed_at: now });
+      if (!ok) throw conflict("The analysis changed while the recommendation was being recorded; nothing was saved. Reload and try again.");
+    }
+    // The rationale is closed, so it stays out of the audit row; the signature's hash covers it.
+    await appendAudit(tx, {
+      actorUserId: access.user.id,
+      actorEmail: access.user.email,
+      trialId: access.trial.id,
+      action: input.correctsId === null ? "recommendation_recorded" : "recommendation_corrected",
+      entityType: "recommendation",
+      entityId: id,
+      visibility: "open",
+      newValues: { analysisId, lookNumber: analysis.look_number, decision: input.decision, correctsId: input.correctsId, signatureId: signature.id },
+    });
+    return { id, analysisId, decision: input.decision, correctsId: input.correctsId, signatureId: signature.id, recordedAt: now.toISOString() };
+  });
+}

@@ -1,0 +1,116 @@
+/**
+ * DMC meetings as the trial coordinator runs them on the demo trial CRN-201 (its look 2 is locked
+ * in the seed): schedule a meeting, generate the packet, send it, watch delivery; then the
+ * administrator finds the caught messages. The meeting is created here, so no other spec's state
+ * is relied on.
+ */
+import { expect, test, type Page } from "@playwright/test";
+import { signIn } from "./support/accounts";
+
+test.describe.configure({ mode: "serial" });
+
+const OPEN_SUBJECT = "[CRN-201] DMC meeting packet, open report v1 (look 2)";
+let meetingPath = "";
+let openPacketUrl = "";
+
+async function openTrial(page: Page, code: string): Promise<string> {
+  await page.goto("/trials");
+  await page.getByRole("link", { name: code, exact: true }).click();
+  await expect(page).toHaveURL(/\/trials\/\d+$/);
+  return new URL(page.url()).pathname;
+}
+
+test("the coordinator schedules a meeting, generates and sends the packet, and sees delivery", async ({ page }) => {
+  // PDF generation and background delivery on a busy 2-core machine: allow more than the default minute.
+  test.setTimeout(150_000);
+  await signIn(page, "coordinator");
+  const base = await openTrial(page, "CRN-201");
+  await page.getByRole("link", { name: "Meetings" }).click();
+  await expect(page).toHaveURL(`${base}/meetings`);
+  const form = page.getByRole("form", { name: "Schedule a DMC meeting" });
+
+  // Bad input: a date in the past gets a message next to the field and nothing is scheduled.
+  const look2 = await form.getByLabel("Analysis reviewed").locator("option", { hasText: "Look 2 " }).getAttribute("value");
+  await form.getByLabel("Analysis reviewed").selectOption(look2!);
+  await form.getByLabel("Date and time").fill("2020-01-06T10:00");
+  await form.getByLabel("Time zone").selectOption("Europe/Oslo");
+  await form.getByRole("button", { name: "Schedule meeting" }).click();
+  await expect(form.getByText("Choose a time in the future.")).toBeVisible();
+  // What was typed stays in the form after a refusal.
+  await expect(form.getByLabel("Time zone")).toHaveValue("Europe/Oslo");
+
+  await form.getByLabel("Date and time").fill("2027-03-15T14:30");
+  await form.getByLabel("Open session agenda").fill("1. Accrual and data timeliness\n2. <b>Questions</b> from the sponsor");
+  await form.getByLabel("Closed session agenda").fill("3. Closed review of look 2");
+  await form.getByLabel("Reminder (days before)").fill("2");
+  await form.getByRole("button", { name: "Schedule meeting" }).click();
+  await expect(page).toHaveURL(new RegExp(`${base}/meetings/\\d+$`));
+  meetingPath = new URL(page.url()).pathname;
+  await expect(page.getByTestId("meeting-when")).toHaveText("Monday 15 March 2027, 14:30 Europe/Oslo (UTC+01:00)");
+  await expect(page.getByText("2. <b>Questions</b> from the sponsor")).toBeVisible();
+
+  await page.getByRole("button", { name: "Generate packet" }).click();
+  await expect(page.getByText("Open report: version 1 (new). Closed report: version 1 (new).")).toBeVisible({ timeout: 60_000 });
+  const openLink = page.getByRole("link", { name: "Open report v1" });
+  await expect(openLink).toBeVisible();
+  // The coordinator is blinded: the closed report is listed without a link.
+  await expect(page.getByRole("list", { name: "Closed report versions" })).toContainText("only unblinded roles can open it");
+  await expect(page.getByRole("link", { name: /Closed report v/ })).toHaveCount(0);
+
+  openPacketUrl = (await openLink.getAttribute("href"))!;
+  const pdf = await page.request.get(openPacketUrl);
+  expect(pdf.status()).toBe(200);
+  expect(pdf.headers()["content-type"]).toBe("application/pdf");
+  expect((await pdf.body()).subarray(0, 5).toString()).toBe("%PDF-");
+  // The closed packet was generated right after the open one; a blinded role asking for it is refused.
+  const closedUrl = openPacketUrl.replace(/\/(\d+)$/, (_m, id) => `/${Number(id) + 1}`);
+  expect((await page.request.get(closedUrl)).status()).toBe(403);
+
+  await page.getByRole("button", { name: "Send packet by e-mail" }).click();
+  await expect(page.getByText(/Sending 5 messages to 5 people \(open report v1, closed report v1 by link\)/)).toBeVisible();
+  const rows = page.getByTestId("email-row");
+  await expect(rows).toHaveCount(5);
+  await expect(rows.filter({ hasText: "sent" })).toHaveCount(5, { timeout: 60_000 });
+  await expect(rows.filter({ hasText: "Open report (attached) v1" })).toHaveCount(2);
+  await expect(rows.filter({ hasText: "Closed report (link) v1" })).toHaveCount(3);
+});
+
+test("a DMC member opens the closed report from the meeting page", async ({ page }) => {
+  await signIn(page, "dmc");
+  await page.goto(meetingPath);
+  const closed = page.getByRole("link", { name: "Closed report v1" });
+  await expect(closed).toBeVisible();
+  const res = await page.request.get((await closed.getAttribute("href"))!);
+  expect(res.status()).toBe(200);
+  expect(res.headers()["content-type"]).toBe("application/pdf");
+});
+
+test("the sponsor may download the open report but not the closed one", async ({ page }) => {
+  await signIn(page, "sponsor");
+  expect((await page.request.get(openPacketUrl)).status()).toBe(200);
+  const closedUrl = openPacketUrl.replace(/\/(\d+)$/, (_m, id) => `/${Number(id) + 1}`);
+  const res = await page.request.get(closedUrl);
+  expect(res.status()).toBe(403);
+  expect(res.headers()["content-type"]).toContain("application/json");
+});
+
+test("the administrator sees the caught mail with its PDF attachment", async ({ page }) => {
+  await signIn(page, "admin");
+  await page.goto("/admin/mail");
+  await expect(page.getByRole("heading", { name: "Caught e-mail" })).toBeVisible();
+  const mail = page.getByTestId("caught-message").filter({ hasText: OPEN_SUBJECT }).filter({ hasText: "coordinator@cairn.example" }).first();
+  await expect(mail).toBeVisible();
+  await expect(mail).toContainText("CRN-201-open-report-v1.pdf");
+  await expect(mail).toContainText("application/pdf");
+  const notice = page.getByTestId("caught-message").filter({ hasText: "closed report v1 ready in Cairn" }).filter({ hasText: "dmc@cairn.example" }).first();
+  await expect(notice).toContainText("none");
+  const eml = await page.request.get((await mail.getByRole("link", { name: ".eml" }).getAttribute("href"))!);
+  expect(eml.status()).toBe(200);
+  expect(await eml.text()).toContain("Content-Type: application/pdf");
+});
+
+test("someone who is not an administrator cannot open the caught mail", async ({ page }) => {
+  await signIn(page, "coordinator");
+  const res = await page.goto("/admin/mail");
+  expect(res?.status()).toBe(403);
+});

@@ -1,0 +1,375 @@
+/**
+ * Interim data against the real database: every write appends exactly one audit row (with the
+ * right visibility) and the chain verifies; a stale or concurrent save is a 409, never a lost
+ * update; bad input and bad CSVs write nothing; a connection killed in the middle of an upload
+ * leaves nothing behind.
+ */
+import { beforeAll, describe, expect, it } from "vitest";
+import { ZodError } from "zod";
+import { verifyAuditChain } from "@/db/audit";
+import { insertDesignVersion, markDesignLocked } from "@/db/queries/designs";
+import { insertSignature, recordHash } from "@/db/queries/signatures";
+import { createPlannedLooks } from "@/db/queries/analyses";
+import { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN } from "@/db/seeds/demo";
+import { expandLooks } from "@/lib/stats/looks";
+import type { Design } from "@/lib/stats/types";
+import { HttpError, errorResponse } from "@/lib/http";
+import type { AuditEventRow, PublicUser } from "@/db/types";
+import {
+  confirmPatientUpload,
+  lockAnalysis,
+  openLookForEntry,
+  previewPatientUpload,
+  reopenAnalysis,
+  saveArmCounts,
+} from "@/app/trials/[trialId]/analyses/_lib/service";
+import { db, giveRole, makeTrial, makeUser, ownerKnex, resetDatabase } from "./support/db";
+
+type Statistician = PublicUser & { password: string };
+let stat: Statistician;
+
+async function trialWithLockedDesign(design: Design, designType: "single" | "two") {
+  const trialId = await makeTrial({ designType });
+  await giveRole(stat.id, trialId, "unblinded_statistician");
+  await db.transaction(async (tx) => {
+    const d = await insertDesignVersion(tx, { trialId, spec: design, createdBy: stat.id, amendmentReason: null });
+    const sig = await insertSignature(tx, { userId: stat.id, signerName: stat.name, signerEmail: stat.email, meaning: "design approved", entityType: "design", entityId: d.id, record: design });
+    await markDesignLocked(tx, d.id, sig.id);
+    const nMax = design.arms === "single" ? design.nMax : design.nMaxPerArm;
+    await createPlannedLooks(tx, trialId, d.id, expandLooks(design.looks, nMax));
+  });
+  const arms = await db("arms").where({ trial_id: trialId }).orderBy("sort_order");
+  const looks = await db("analyses").where({ trial_id: trialId }).orderBy("look_number");
+  return { trialId, arms: arms as Array<{ id: number; label: string; arm_role: string }>, lookIds: looks.map((l: { id: number }) => l.id) as number[] };
+}
+
+const auditCount = async () => Number((await db("audit_events").count({ n: "*" }).first())?.n ?? 0);
+const lastAudit = async (): Promise<AuditEventRow> => db("audit_events").orderBy("id", "desc").first();
+const look = async (id: number) => db("analyses").where({ id }).first();
+const patientRows = async (id: number) => Number((await db("patient_outcomes").where({ analysis_id: id }).count({ n: "*" }).first())?.n ?? 0);
+
+/** Runs a write and checks it appended exactly one audit row, of the given visibility, with an intact chain. */
+async function expectOneAuditRow<T>(visibility: "open" | "closed", action: string, write: () => Promise<T>): Promise<T> {
+  const before = await auditCount();
+  const out = await write();
+  expect(await auditCount()).toBe(before + 1);
+  const row = await lastAudit();
+  expect(row.visibility).toBe(visibility);
+  expect(row.action).toBe(action);
+  expect(row.actor_user_id).toBe(stat.id);
+  expect((await verifyAuditChain(db)).ok).toBe(true);
+  return out;
+}
+
+/** Runs a write that must fail and checks that nothing at all changed. */
+async function expectNothingWritten(analysisId: number, write: () => Promise<unknown>, status?: number): Promise<unknown> {
+  const [audits, before, rows, counts] = await Promise.all([auditCount(), look(analysisId), patientRows(analysisId), db("analysis_arm_counts").where({ analysis_id: analysisId })]);
+  const err = await write().then(
+    () => null,
+    (e) => e,
+  );
+  expect(err, "the write should have been refused").not.toBeNull();
+  if (status !== undefined) {
+    expect(err).toBeInstanceOf(HttpError);
+    expect((err as HttpError).status).toBe(status);
+  }
+  expect(await auditCount()).toBe(audits);
+  expect(await look(analysisId)).toEqual(before);
+  expect(await patientRows(analysisId)).toBe(rows);
+  expect(await db("analysis_arm_counts").where({ analysis_id: analysisId })).toEqual(counts);
+  return err;
+}
+
+const enc = (s: string) => new TextEncoder().encode(s);
+const HEADER = "subject_id,arm,enrolment_date,evaluable,response,toxicity";
+
+beforeAll(async () => {
+  await resetDatabase();
+  stat = await makeUser({ name: "Test Statistician" });
+});
+
+describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
+  let t: Awaited<ReturnType<typeof trialWithLockedDesign>>;
+  let a1: number;
+  beforeAll(async () => {
+    t = await trialWithLockedDesign(TWO_ARM_DEMO_DESIGN, "two");
+    a1 = t.lookIds[0];
+  });
+  const counts = (e: [number, number, number], c: [number, number, number]) => [
+    { armId: t.arms[0].id, enrolled: e[0], evaluable: e[1], responders: e[2], toxicities: null },
+    { armId: t.arms[1].id, enrolled: c[0], evaluable: c[1], responders: c[2], toxicities: null },
+  ];
+
+  it("creates one planned look per design look", async () => {
+    expect(t.lookIds).toHaveLength(expandLooks(TWO_ARM_DEMO_DESIGN.looks, TWO_ARM_DEMO_DESIGN.nMaxPerArm).length);
+    expect((await look(a1)).status).toBe("planned");
+  });
+
+  it("saving counts on a planned look is refused (409) and writes nothing", async () => {
+    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-05-31", counts: counts([10, 9, 4], [10, 9, 2]) }), 409);
+  });
+
+  it("opening a look writes one open audit row", async () => {
+    await expectOneAuditRow("open", "analysis_opened", () => openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-05-31" }));
+    expect(await look(a1)).toMatchObject({ status: "open", cutoff_date: "2026-05-31", row_version: 2 });
+  });
+
+  it("invalid counts are refused with field paths and write nothing", async () => {
+    const err = await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([10, 11, 4], [10, 9, 10]) }));
+    expect(err).toBeInstanceOf(ZodError);
+    const paths = (err as ZodError).issues.map((i) => i.path.join("."));
+    expect(paths).toEqual(expect.arrayContaining(["counts.0.evaluable", "counts.1.responders"]));
+    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([-1, 0, 0], [2.5, 1, 0]) }));
+    // An arm missing, and a toxicity count on a design without a safety rule.
+    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([3, 3, 1], [3, 3, 1]).slice(0, 1) }));
+    await expectNothingWritten(a1, () =>
+      saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([3, 3, 1], [3, 3, 1]).map((c) => ({ ...c, toxicities: 1 })) }),
+    );
+  });
+
+  it("saving counts writes the counts, the pooled total and one closed audit row", async () => {
+    const out = await expectOneAuditRow("closed", "counts_entered", () =>
+      saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([21, 20, 9], [22, 20, 5]) }),
+    );
+    expect(out.enrolledTotal).toBe(43);
+    expect(await look(a1)).toMatchObject({ enrolled_total: 43, row_version: 3 });
+    const stored = await db("analysis_arm_counts").where({ analysis_id: a1 }).orderBy("arm_id");
+    expect(stored.map((c: { enrolled: number; evaluable: number; responders: number }) => [c.enrolled, c.evaluable, c.responders])).toEqual([
+      [21, 20, 9],
+      [22, 20, 5],
+    ]);
+  });
+
+  it("two concurrent saves from the same version: exactly one wins, the other gets 409, no lost update", async () => {
+    const before = await auditCount();
+    const results = await Promise.allSettled([
+      saveArmCounts(stat, t.trialId, a1, { rowVersion: 3, cutoffDate: "2026-05-31", counts: counts([24, 22, 10], [23, 21, 6]) }),
+      saveArmCounts(stat, t.trialId, a1, { rowVersion: 3, cutoffDate: "2026-05-31", counts: counts([25, 23, 11], [25, 22, 7]) }),
+    ]);
+    const won = results.filter((r) => r.status === "fulfilled");
+    const lost = results.filter((r): r is PromiseRejectedResult => r.status === "rejected");
+    expect(won).toHaveLength(1);
+    expect(lost).toHaveLength(1);
+    expect(lost[0].reason).toBeInstanceOf(HttpError);
+    expect(lost[0].reason.status).toBe(409);
+    expect(lost[0].reason.message).toMatch(/Someone else saved look 1/);
+    expect(errorResponse(lost[0].reason).status).toBe(409);
+    expect(await auditCount()).toBe(before + 1);
+    // What is stored is exactly the winner's counts.
+    const winner = (won[0] as PromiseFulfilledResult<{ counts: Array<{ enrolled: number }> }>).value;
+    const stored = await db("analysis_arm_counts").where({ analysis_id: a1 }).orderBy("arm_id");
+    expect(stored.map((c: { enrolled: number }) => c.enrolled)).toEqual(winner.counts.map((c) => c.enrolled));
+    expect((await look(a1)).row_version).toBe(4);
+    expect((await verifyAuditChain(db)).ok).toBe(true);
+  });
+
+  it("a save from a stale version is refused with 409 and writes nothing", async () => {
+    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 3, cutoffDate: "2026-05-31", counts: counts([1, 1, 1], [1, 1, 1]) }), 409);
+  });
+
+  it("locking needs the right password; a wrong one writes nothing", async () => {
+    const err = await expectNothingWritten(a1, () => lockAnalysis(stat, t.trialId, a1, { rowVersion: 4, password: "not-my-password" }), 422);
+    expect((err as Error).message).toMatch(/password is not correct/);
+  });
+
+  it("locking signs the counts ('analysis locked') and writes one open audit row", async () => {
+    const stored = await db("analysis_arm_counts").where({ analysis_id: a1 }).orderBy("arm_id");
+    const out = await expectOneAuditRow("open", "analysis_locked", () => lockAnalysis(stat, t.trialId, a1, { rowVersion: 4, password: stat.password }));
+    const l = await look(a1);
+    expect(l).toMatchObject({ status: "locked", lock_signature_id: out.signatureId });
+    expect(l.locked_at).not.toBeNull();
+    const sig = await db("signatures").where({ id: out.signatureId }).first();
+    expect(sig).toMatchObject({ meaning: "analysis locked", entity_type: "analysis", entity_id: a1, user_id: stat.id });
+    // The signature is bound to exactly the counts that were locked.
+    const record = {
+      trialId: t.trialId,
+      analysisId: a1,
+      lookNumber: 1,
+      amendment: 0,
+      cutoffDate: "2026-05-31",
+      counts: stored.map((c: { arm_id: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null }) => ({
+        armId: c.arm_id,
+        enrolled: c.enrolled,
+        evaluable: c.evaluable,
+        responders: c.responders,
+        toxicities: c.toxicities,
+      })),
+    };
+    expect(sig.record_hash).toBe(recordHash(record));
+    // Blinded readers of the audit trail cannot see the counts: the lock row carries none.
+    expect(JSON.stringify((await lastAudit()).new_values)).not.toMatch(/responders/);
+  });
+
+  it("a locked look cannot change (409): counts, upload, open, lock again", async () => {
+    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 5, cutoffDate: "2026-05-31", counts: counts([1, 1, 1], [1, 1, 1]) }), 409);
+    await expectNothingWritten(a1, () => confirmPatientUpload(stat, t.trialId, a1, enc(`${HEADER}\nS-1,control,2026-05-01,yes,no,\n`), { rowVersion: 5 }), 409);
+    await expectNothingWritten(a1, () => openLookForEntry(stat, t.trialId, a1, { rowVersion: 5, cutoffDate: "2026-05-31" }), 409);
+    await expectNothingWritten(a1, () => lockAnalysis(stat, t.trialId, a1, { rowVersion: 5, password: stat.password }), 409);
+  });
+
+  it("a correction needs a reason; reopening is an amendment and the old counts stay in the audit trail", async () => {
+    const err = await expectNothingWritten(a1, () => reopenAnalysis(stat, t.trialId, a1, { rowVersion: 5, reason: "typo" }));
+    expect(err).toBeInstanceOf(ZodError);
+    const reason = "Two responders in the control arm were miscoded at site 3.";
+    await expectOneAuditRow("open", "analysis_reopened_for_amendment", () => reopenAnalysis(stat, t.trialId, a1, { rowVersion: 5, reason }));
+    expect(await look(a1)).toMatchObject({ status: "open", amendment_count: 1, locked_at: null, lock_signature_id: null });
+    expect((await lastAudit()).reason).toBe(reason);
+    const oldCounts = (await db("analysis_arm_counts").where({ analysis_id: a1 }).orderBy("arm_id")).map((c: { enrolled: number }) => c.enrolled);
+    await expectOneAuditRow("closed", "counts_entered", () =>
+      saveArmCounts(stat, t.trialId, a1, { rowVersion: 6, cutoffDate: "2026-05-31", counts: counts([24, 22, 10], [23, 21, 4]), reason }),
+    );
+    const row = await lastAudit();
+    const oldValues = JSON.parse(row.old_values!);
+    const newValues = JSON.parse(row.new_values!);
+    expect(oldValues.counts.map((c: { enrolled: number }) => c.enrolled)).toEqual(oldCounts);
+    expect(newValues.counts[1].responders).toBe(4);
+    expect(newValues.amendment).toBe(1);
+    expect(row.reason).toBe(reason);
+  });
+
+  it("a cut-off not after the previous look's is refused", async () => {
+    const a2 = t.lookIds[1];
+    const err = await expectNothingWritten(a2, () => openLookForEntry(stat, t.trialId, a2, { rowVersion: 1, cutoffDate: "2026-05-31" }), 422);
+    expect((err as Error).message).toMatch(/after the previous look's cut-off \(2026-05-31\)/);
+  });
+
+  it("a look of another trial is a 404", async () => {
+    const other = await trialWithLockedDesign(TWO_ARM_DEMO_DESIGN, "two");
+    await expectNothingWritten(other.lookIds[0], () => openLookForEntry(stat, t.trialId, other.lookIds[0], { rowVersion: 1, cutoffDate: "2026-05-31" }), 404);
+  });
+});
+
+describe("patient-level upload", () => {
+  let t: Awaited<ReturnType<typeof trialWithLockedDesign>>;
+  let a1: number;
+  beforeAll(async () => {
+    t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
+    a1 = t.lookIds[0];
+    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+  });
+  const good = [
+    HEADER,
+    "P-01,single,2026-03-02,yes,yes,no",
+    "P-02,Arm A,2026-03-09,yes,no,yes",
+    "P-03,single,2026-04-01,no,,no",
+    "P-04,single,2026-06-30,1,1,0",
+  ].join("\n");
+
+  it("preview writes nothing and reports the derived counts", async () => {
+    const before = await auditCount();
+    const p = await previewPatientUpload(t.trialId, a1, enc(good));
+    expect(p).toMatchObject({ ok: true, rowCount: 4, counts: [{ armId: t.arms[0].id, enrolled: 4, evaluable: 3, responders: 2, toxicities: 1 }] });
+    expect(await auditCount()).toBe(before);
+    expect(await patientRows(a1)).toBe(0);
+  });
+
+  const BAD: Array<[string, string, RegExp]> = [
+    ["unknown arm", `${HEADER}\nP-01,placebo,2026-03-02,yes,yes,no\n`, /Unknown arm/],
+    ["response on a non-evaluable patient", `${HEADER}\nP-01,single,2026-03-02,no,yes,no\n`, /not evaluable/],
+    ["a date after the cut-off", `${HEADER}\nP-01,single,2026-07-01,yes,yes,no\n`, /after the data cut-off/],
+    ["duplicate subject", `${HEADER}\nP-01,single,2026-03-02,yes,yes,no\nP-01,single,2026-03-03,yes,no,no\n`, /already appears on line 2/],
+    ["missing column", "subject_id,arm,enrolment_date,evaluable,response\nP-01,single,2026-03-02,yes,yes\n", /"toxicity" is missing/],
+    ["missing toxicity under a safety rule", `${HEADER}\nP-01,single,2026-03-02,yes,yes,\n`, /safety rule/],
+  ];
+  for (const [what, text, message] of BAD) {
+    it(`a CSV with ${what} is reported by line and writes nothing on confirm`, async () => {
+      const p = await previewPatientUpload(t.trialId, a1, enc(text));
+      expect(p.ok).toBe(false);
+      if (!p.ok) expect(p.issues.map((i) => i.message).join(" | ")).toMatch(message);
+      const v = (await look(a1)).row_version;
+      const err = await expectNothingWritten(a1, () => confirmPatientUpload(stat, t.trialId, a1, enc(text), { rowVersion: v }), 422);
+      expect(((err as HttpError).details as { issues: unknown[] }).issues.length).toBeGreaterThan(0);
+    });
+  }
+
+  it("a file that is not CSV (binary) writes nothing", async () => {
+    const png = new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13, 0x49, 0x48, 0x44, 0x52]);
+    const p = await previewPatientUpload(t.trialId, a1, png);
+    expect(p).toMatchObject({ ok: false, issues: [{ line: null, message: expect.stringMatching(/not a CSV file/) }] });
+    await expectNothingWritten(a1, () => confirmPatientUpload(stat, t.trialId, a1, png, { rowVersion: 2 }), 422);
+  });
+
+  it("confirm writes every row and the derived counts in one transaction, with one closed audit row", async () => {
+    const out = await expectOneAuditRow("closed", "patient_data_uploaded", () => confirmPatientUpload(stat, t.trialId, a1, enc(good), { rowVersion: 2, fileName: "look1.csv" }));
+    expect(out.patientRows).toBe(4);
+    expect(await patientRows(a1)).toBe(4);
+    expect(await look(a1)).toMatchObject({ enrolled_total: 4, row_version: 3 });
+    const c = await db("analysis_arm_counts").where({ analysis_id: a1 }).first();
+    expect(c).toMatchObject({ enrolled: 4, evaluable: 3, responders: 2, toxicities: 1 });
+    const nv = JSON.parse((await lastAudit()).new_values!);
+    expect(nv).toMatchObject({ fileName: "look1.csv", patientRows: 4, enrolledTotal: 4 });
+    expect(nv.fileSha256).toMatch(/^[0-9a-f]{64}$/);
+  });
+
+  it("a connection killed in the middle of an upload leaves nothing behind, and the error is surfaced", async () => {
+    const v = (await look(a1)).row_version;
+    const before = { audits: await auditCount(), rows: await patientRows(a1), counts: await db("analysis_arm_counts").where({ analysis_id: a1 }), look: await look(a1) };
+    const lines = [HEADER];
+    for (let i = 1; i <= 1200; i++) lines.push(`K-${String(i).padStart(4, "0")},single,2026-0${1 + (i % 6)}-1${i % 10},yes,${i % 3 ? "no" : "yes"},${i % 7 ? "no" : "yes"}`);
+    const owner = ownerKnex();
+    // The owner holds the audit chain head, so the upload inserts all its rows and then waits
+    // inside its transaction at appendAudit: a known point in the middle of the transaction.
+    const hold = await owner.transaction();
+    try {
+      await hold("audit_chain_head").where({ id: 1 }).forUpdate();
+      const upload = confirmPatientUpload(stat, t.trialId, a1, enc(lines.join("\n")), { rowVersion: v }).then(
+        () => null,
+        (e: unknown) => e,
+      );
+      // Find the blocked connection (same account may see and kill its own threads).
+      let victim: number | undefined;
+      for (let i = 0; i < 200 && victim === undefined; i++) {
+        const [procs] = await db.raw("SELECT ID, INFO FROM information_schema.PROCESSLIST WHERE INFO LIKE '%audit_chain_head%for update%' AND ID <> CONNECTION_ID()");
+        victim = (procs as Array<{ ID: number }>)[0]?.ID;
+        if (victim === undefined) await new Promise((r) => setTimeout(r, 50));
+      }
+      expect(victim, "the upload should be waiting inside its transaction").toBeDefined();
+      // Mid-transaction: the rows are there, uncommitted (read uncommitted sees them).
+      const peek = await owner.transaction(async (trx) => trx("patient_outcomes").where({ analysis_id: a1 }).where("subject_id", "like", "K-%").count({ n: "*" }).first(), {
+        isolationLevel: "read uncommitted",
+      });
+      expect(Number(peek?.n)).toBe(1200);
+      await db.raw(`KILL ${Number(victim)}`);
+      const err = await upload;
+      expect(err, "the failure must reach the caller").toBeInstanceOf(HttpError);
+      expect((err as HttpError).status).toBe(503);
+      expect((err as HttpError).message).toMatch(/nothing was saved/);
+    } finally {
+      await hold.rollback().catch(() => undefined);
+      await owner.destroy();
+    }
+    expect(await auditCount()).toBe(before.audits);
+    expect(await patientRows(a1)).toBe(before.rows);
+    expect(await db("patient_outcomes").where({ analysis_id: a1 }).where("subject_id", "like", "K-%").count({ n: "*" }).first()).toEqual({ n: 0 });
+    expect(await db("analysis_arm_counts").where({ analysis_id: a1 })).toEqual(before.counts);
+    expect(await look(a1)).toEqual(before.look);
+    expect((await verifyAuditChain(db)).ok).toBe(true);
+  });
+
+  it("after the failure the same upload goes through", async () => {
+    const v = (await look(a1)).row_version;
+    await expectOneAuditRow("closed", "patient_data_uploaded", () => confirmPatientUpload(stat, t.trialId, a1, enc(good), { rowVersion: v }));
+  });
+});
+
+describe("audit chain verification script", () => {
+  it("exits 0 on an intact chain and 1 naming the broken row after tampering", async () => {
+    const { spawnSync } = await import("node:child_process");
+    const run = () => spawnSync(process.execPath, ["node_modules/tsx/dist/cli.mjs", "--conditions=react-server", "scripts/verify-audit-chain.ts"], { encoding: "utf8", env: process.env });
+    const ok = run();
+    expect(ok.status, ok.stderr).toBe(0);
+    expect(ok.stdout).toMatch(/audit chain verified: \d+ rows/);
+    const owner = ownerKnex();
+    try {
+      const target = await owner("audit_events").orderBy("id").offset(2).first("id");
+      await owner.raw("DROP TRIGGER audit_events_refuse_update");
+      await owner("audit_events").where({ id: target.id }).update({ reason: "rewritten later" });
+      const broken = run();
+      expect(broken.status).toBe(1);
+      expect(broken.stderr).toContain(`BROKEN at row id ${target.id}`);
+    } finally {
+      await owner.destroy();
+      await resetDatabase();
+    }
+  }, 120_000);
+});

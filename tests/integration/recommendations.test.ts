@@ -1,0 +1,173 @@
+/**
+ * Recording the DMC's recommendation against the real database: e-signature bound to the record,
+ * the analysis marked reviewed, exactly one audit row without the (closed) rationale, never edited
+ * (a correction is a new linked entry), and nothing written when anything is wrong.
+ */
+import { beforeAll, describe, expect, it } from "vitest";
+import { ZodError } from "zod";
+import { checkTrialAccess } from "@/lib/auth";
+import { HttpError } from "@/lib/http";
+import { recordRecommendation } from "@/lib/review/record-recommendation";
+import { fetchRecommendationsClosed } from "@/db/queries/recommendations";
+import { fetchRecommendationsOpen } from "@/db/queries/open-status";
+import { insertDesignVersion, markDesignLocked } from "@/db/queries/designs";
+import { insertSignature, recordHash } from "@/db/queries/signatures";
+import { createPlannedLooks } from "@/db/queries/analyses";
+import { replaceArmCounts } from "@/db/queries/closed";
+import type { SingleArmDesign } from "@/lib/stats/types";
+import type { PublicUser } from "@/db/types";
+import { db, giveRole, makeTrial, makeUser, resetDatabase } from "./support/db";
+
+const DESIGN: SingleArmDesign = {
+  arms: "single",
+  prior: { family: "uniform" },
+  p0: 0.2,
+  p1: 0.4,
+  delta: 0,
+  nMax: 30,
+  looks: { kind: "list", sizes: [10, 20, 30] },
+  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
+  safety: null,
+};
+
+let trialId: number;
+let otherTrialId: number;
+let dmc: PublicUser & { password: string };
+let sponsor: PublicUser & { password: string };
+let lockedLook: number;
+let plannedLook: number;
+let otherTrialLook: number;
+
+async function setUpTrial(owner: PublicUser, lockFirst: boolean): Promise<{ id: number; looks: number[] }> {
+  const id = await makeTrial();
+  const looks = await db.transaction(async (tx) => {
+    const design = await insertDesignVersion(tx, { trialId: id, spec: DESIGN, createdBy: null, amendmentReason: null });
+    const sig = await insertSignature(tx, { userId: owner.id, signerName: owner.name, signerEmail: owner.email, meaning: "design approved", entityType: "design", entityId: design.id, record: DESIGN });
+    await markDesignLocked(tx, design.id, sig.id);
+    await createPlannedLooks(tx, id, design.id, [10, 20, 30]);
+    const rows = await tx("analyses").where({ trial_id: id }).orderBy("look_number");
+    if (lockFirst) {
+      const arm = await tx("arms").where({ trial_id: id }).first();
+      await replaceArmCounts(tx, rows[0].id, [{ armId: arm.id, enrolled: 10, evaluable: 10, responders: 4, toxicities: null }]);
+      await tx("analyses").where({ id: rows[0].id }).update({ status: "locked", cutoff_date: "2026-05-01", enrolled_total: 10, locked_at: new Date() });
+    }
+    return rows.map((r: { id: number }) => r.id);
+  });
+  return { id, looks };
+}
+
+async function counts() {
+  const [r, s, a] = await Promise.all([db("recommendations").count({ n: "*" }).first(), db("signatures").count({ n: "*" }).first(), db("audit_events").count({ n: "*" }).first()]);
+  return { recommendations: Number(r?.n), signatures: Number(s?.n), audit: Number(a?.n) };
+}
+
+async function statusOf(p: Promise<unknown>): Promise<number | "zod"> {
+  try {
+    await p;
+    return 200;
+  } catch (e) {
+    if (e instanceof ZodError) return "zod";
+    if (e instanceof HttpError) return e.status;
+    throw e;
+  }
+}
+
+beforeAll(async () => {
+  await resetDatabase();
+  dmc = await makeUser({ name: "Invented DMC member" });
+  sponsor = await makeUser({ name: "Invented sponsor" });
+  const t = await setUpTrial(dmc, true);
+  trialId = t.id;
+  lockedLook = t.looks[0];
+  plannedLook = t.looks[1];
+  const o = await setUpTrial(dmc, true);
+  otherTrialId = o.id;
+  otherTrialLook = o.looks[0];
+  await giveRole(dmc.id, trialId, "dmc_member");
+  await giveRole(dmc.id, otherTrialId, "dmc_member");
+  await giveRole(sponsor.id, trialId, "sponsor");
+});
+
+const good = { decision: "continue", rationale: "Predictive probability comfortably above the futility threshold.", password: "" };
+
+describe("recording a recommendation", () => {
+  it("a sponsor may not record one (403), before any input is read", async () => {
+    expect(await statusOf(checkTrialAccess(sponsor, trialId, "recordRecommendation"))).toBe(403);
+  });
+
+  it("a wrong password signs nothing and writes nothing (422)", async () => {
+    const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
+    const before = await counts();
+    expect(await statusOf(recordRecommendation(access, lockedLook, { ...good, password: "wrong-password" }))).toBe(422);
+    expect(await counts()).toEqual(before);
+  });
+
+  it("invalid input is refused by the schema and writes nothing", async () => {
+    const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
+    const before = await counts();
+    expect(await statusOf(recordRecommendation(access, lockedLook, { decision: "pause", rationale: "", password: dmc.password }))).toBe("zod");
+    expect(await counts()).toEqual(before);
+  });
+
+  it("a look that is not locked cannot be reviewed (409), and another trial's analysis is not found (404)", async () => {
+    const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
+    const before = await counts();
+    expect(await statusOf(recordRecommendation(access, plannedLook, { ...good, password: dmc.password }))).toBe(409);
+    expect(await statusOf(recordRecommendation(access, otherTrialLook, { ...good, password: dmc.password }))).toBe(404);
+    expect(await counts()).toEqual(before);
+  });
+
+  it("records the recommendation with a signature bound to {analysisId, decision, rationale, correctsId}, marks the analysis reviewed and appends one open audit row without the rationale", async () => {
+    const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
+    const before = await counts();
+    const rec = await recordRecommendation(access, lockedLook, { ...good, password: dmc.password });
+    const after = await counts();
+    expect(after).toEqual({ recommendations: before.recommendations + 1, signatures: before.signatures + 1, audit: before.audit + 1 });
+
+    const sig = await db("signatures").where({ id: rec.signatureId }).first();
+    expect(sig).toMatchObject({ user_id: dmc.id, signer_name: dmc.name, meaning: "recommendation recorded", entity_type: "analysis", entity_id: lockedLook });
+    expect(sig.record_hash).toBe(recordHash({ analysisId: lockedLook, decision: "continue", rationale: good.rationale, correctsId: null }));
+
+    const analysis = await db("analyses").where({ id: lockedLook }).first();
+    expect(analysis.status).toBe("reviewed");
+    expect(analysis.reviewed_at).not.toBeNull();
+
+    const audit = await db("audit_events").orderBy("id", "desc").first();
+    expect(audit).toMatchObject({ action: "recommendation_recorded", visibility: "open", trial_id: trialId, entity_type: "recommendation", entity_id: String(rec.id) });
+    expect(audit.new_values).not.toContain("futility threshold");
+    expect(audit.new_values).not.toContain("rationale");
+  });
+
+  it("a second first-recommendation is refused (409): recorded entries are never edited", async () => {
+    const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
+    const before = await counts();
+    expect(await statusOf(recordRecommendation(access, lockedLook, { ...good, decision: "stop_futility", password: dmc.password }))).toBe(409);
+    expect(await counts()).toEqual(before);
+  });
+
+  it("a correction is a new entry linked by corrects_id; the original stays unchanged, and it cannot be corrected twice", async () => {
+    const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
+    const [original] = await fetchRecommendationsClosed(trialId, lockedLook);
+    const rawBefore = await db("recommendations").where({ id: original.id }).first();
+    const fix = await recordRecommendation(access, lockedLook, { decision: "continue_modified", rationale: "Corrected: continue with the amended visit schedule.", correctsId: String(original.id), password: dmc.password });
+    expect(fix.correctsId).toBe(original.id);
+    expect(await db("recommendations").where({ id: original.id }).first()).toEqual(rawBefore);
+    const list = await fetchRecommendationsClosed(trialId, lockedLook);
+    expect(list.map((r) => [r.id, r.correctsId, r.correctedById])).toEqual([
+      [fix.id, original.id, null],
+      [original.id, null, fix.id],
+    ]);
+    expect(await statusOf(recordRecommendation(access, lockedLook, { ...good, correctsId: original.id, password: dmc.password }))).toBe(409);
+    const audit = await db("audit_events").orderBy("id", "desc").first();
+    expect(audit.action).toBe("recommendation_corrected");
+  });
+
+  it("the open query gives decision and date only: no rationale", async () => {
+    const open = await fetchRecommendationsOpen(trialId);
+    expect(open).toHaveLength(2);
+    for (const r of open) {
+      expect(Object.keys(r).sort()).toEqual(["analysisId", "correctsId", "decision", "id", "lookNumber", "recordedAt", "signerName"]);
+      expect(JSON.stringify(r)).not.toContain("amended visit schedule");
+    }
+  });
+});
