@@ -24,7 +24,8 @@ const nextConfig = {
   // scripts/test runs `tsc --noEmit` over the whole project (app, lib, db, tests) as its own step;
   // checking again inside the build would only repeat it.
   typescript: { ignoreBuildErrors: true },
-  experimental: { authInterrupts: true },
+  // The proxy buffers request bodies; CSV uploads are refused above 5 MB, so buffer no more than that.
+  experimental: { authInterrupts: true, middlewareClientMaxBodySize: "6mb" },
   async headers() {
     return [
       {

@@ -8,6 +8,8 @@ const baseURL = `http://localhost:${port}`;
 
 export default defineConfig({
   testDir: "tests/e2e",
+  // Per port, so parallel runs on one machine do not delete each other's traces.
+  outputDir: `test-results/e2e-${port}`,
   fullyParallel: false,
   workers: 1,
   retries: 0,

@@ -7,6 +7,8 @@
 import { readFileSync } from "node:fs";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
+import fc from "fast-check";
+import jstat from "jstat";
 import {
   betaBinomialPmfs,
   betaCdf,
@@ -71,6 +73,33 @@ describe("against stdlib-js fixtures", () => {
   });
   it("binomialPmfs: relative 5000 EPS", () => {
     compare(load("binomial-pmf.json"), (r) => binomialPmfs(r.m as number, r.p as number)[r.k as number], () => 5000);
+  });
+});
+
+describe("cross-library check against jstat 1.9.6", () => {
+  // jstat's incomplete beta stops its continued fraction at a relative change of 3e-7 or after 100
+  // terms, so agreement is asked only to 1e-6 (absolute), and only for shapes up to 300, where 100
+  // terms suffice. A wrong branch, tail or prefactor in betaCdf would show far above that.
+  const { jStat } = jstat;
+  const shape = fc.oneof(fc.double({ min: 0.2, max: 5, noNaN: true }), fc.double({ min: 5, max: 300, noNaN: true }));
+  it("betaCdf agrees with jStat.ibeta to 1e-6 over seeded random shapes and points", () => {
+    fc.assert(
+      fc.property(shape, shape, fc.double({ min: 1e-6, max: 1 - 1e-6, noNaN: true }), (a, b, p) => {
+        const ours = betaCdf(p, a, b);
+        const theirs = jStat.ibeta(p, a, b) as number;
+        return Math.abs(ours - theirs) <= 1e-6;
+      }),
+      { seed: 196, numRuns: 2000 },
+    );
+  });
+  it("betaQuantile agrees with jStat.ibetainv (its starting point) to 1e-6", () => {
+    for (const [a, b, q] of [
+      [7.6, 23.4, 0.025],
+      [7.6, 23.4, 0.975],
+      [2.6, 38.4, 0.5],
+      [30.6, 30.4, 0.9],
+    ])
+      expect(Math.abs(betaQuantile(q, a, b) - (jStat.ibetainv(q, a, b) as number))).toBeLessThanOrEqual(1e-6);
   });
 });
 

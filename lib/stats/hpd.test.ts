@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
-import { hpdRegion } from "./hpd";
-import { betaPdf, betaQuantile } from "./distributions";
+import { hpdRegion, hpdRegionByLevelSet, singleBetaHpd } from "./hpd";
+import { betaPdf, betaQuantile, logBeta } from "./distributions";
 import { mixtureCdf } from "./priors";
 import { StatsDomainError } from "./validate";
 import type { MixtureBeta } from "./types";
@@ -31,6 +31,31 @@ describe("HPD properties over random single Betas (seeded)", () => {
         return true;
       }),
       { seed: 8675309, numRuns: 300 },
+    );
+  });
+});
+
+describe("single-Beta HPD solver against the general level-set search (seeded)", () => {
+  // Two independent methods for the same region: Newton on the lower end versus bisection on the
+  // density level over a grid. They must agree in every end and in the mass.
+  const above1 = fc.double({ min: 1.001, max: 500, noNaN: true });
+  const below1 = fc.double({ min: 0.05, max: 0.999, noNaN: true });
+  const shapes = fc.oneof(fc.tuple(above1, above1), fc.tuple(below1, below1));
+  const level = fc.double({ min: 0.5, max: 0.995, noNaN: true });
+  it("converges, and its ends and mass match the level-set search", () => {
+    fc.assert(
+      fc.property(shapes, level, ([a, b], lv) => {
+        const fast = singleBetaHpd(a, b, lv, logBeta(a, b));
+        const slow = hpdRegionByLevelSet([{ weight: 1, a, b }], lv);
+        // The solver may decline (null) only where an end lies below 1e-290, at the edge of doubles.
+        if (fast === null) return slow.pieces.some((p) => [p.lower, p.upper].some((e) => e > 0 && e < 1e-290));
+        if (fast.pieces.length !== slow.pieces.length) return false;
+        if (Math.abs(fast.mass - lv) > 1e-10) return false;
+        return fast.pieces.every(
+          (p, i) => Math.abs(p.lower - slow.pieces[i].lower) < 1e-9 && Math.abs(p.upper - slow.pieces[i].upper) < 1e-9,
+        );
+      }),
+      { seed: 20261202, numRuns: 400 },
     );
   });
 });

@@ -2,8 +2,8 @@
  * Posterior summaries for one response (or toxicity) rate under a mixture-of-Betas prior.
  */
 import type { MixtureBeta } from "./types";
-import { betaPdfUnchecked, logBetaUnchecked } from "./distributions";
-import { hpdRegion, mixtureQuantileUnchecked, type CredibleRegion } from "./hpd";
+import { betaPdfUnchecked, betaQuantileUnchecked, logBetaUnchecked } from "./distributions";
+import { hpdRegionUnchecked, mixtureQuantileUnchecked, type CredibleRegion } from "./hpd";
 import { mixtureCdf, mixtureMean, mixtureSurvival, requireMixture, updateMixture } from "./priors";
 import { requireCount, requireData, requireFinite, requireProbability, StatsDomainError } from "./validate";
 
@@ -165,16 +165,27 @@ export function posteriorSummary(
   const sd = Math.sqrt(Math.max(0, second - mean * mean));
   const alpha = 1 - level;
   const { mode, note } = modeOf(components);
+  const live = components.filter((c) => c.weight > 0);
+  // One component (the usual case): ln B once, Beta quantiles directly, and the equal-tailed ends
+  // handed to the HPD solver as its starting point. Inputs are validated above, so the unchecked
+  // forms skip a second round of validation.
+  let quantile: (q: number) => number;
+  if (live.length === 1) {
+    const { a, b } = live[0];
+    const lb = logBetaUnchecked(a, b);
+    quantile = (q) => betaQuantileUnchecked(q, a, b, lb);
+  } else quantile = (q) => mixtureQuantileUnchecked(components, q);
+  const equalTailed = { lower: quantile(alpha / 2), upper: quantile(1 - alpha / 2) };
   const summary: PosteriorSummary = {
     components,
     level,
     mean,
-    median: mixtureQuantileUnchecked(components, 0.5),
+    median: quantile(0.5),
     mode,
     ...(note ? { modeNote: note } : {}),
     sd,
-    equalTailed: { lower: mixtureQuantileUnchecked(components, alpha / 2), upper: mixtureQuantileUnchecked(components, 1 - alpha / 2) },
-    hpd: hpdRegion(components, level),
+    equalTailed,
+    hpd: hpdRegionUnchecked(components, level, live.length === 1 ? equalTailed : undefined),
   };
   if (opts.p0 !== undefined) summary.probAboveP0 = mixtureSurvival(components, opts.p0);
   return summary;
