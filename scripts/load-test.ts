@@ -25,19 +25,16 @@ function percentile(sorted: number[], p: number): number {
 }
 
 async function findTargets(cookie: string) {
-  const trials = [1, 2];
-  const targets: { name: string; path: string }[] = [{ name: "trial overview page", path: `/trials/${trials[0]}` }];
-  // The latest locked analysis of the first demo trial.
-  const open = (await (await fetch(`${base}/api/trials/1/open-status`, { headers: { cookie } })).json()) as {
-    looks: { lookNumber: number; status: string }[];
+  const targets: { name: string; path: string }[] = [{ name: "trial overview page", path: "/trials/1" }];
+  // The latest locked (or reviewed) analysis of the first demo trial, and its arm.
+  const list = (await (await fetch(`${base}/api/trials/1/analyses`, { headers: { cookie } })).json()) as {
+    analyses: { id: number; status: string }[];
   };
-  const list = (await (await fetch(`${base}/api/trials/1/analyses`, { headers: { cookie } })).json().catch(() => null)) as
-    | { analyses?: { id: number; status: string }[] }
-    | null;
-  const locked = list?.analyses?.filter((a) => a.status === "locked" || a.status === "reviewed").at(-1);
-  const analysisId = locked?.id ?? open.looks.filter((l) => l.status !== "planned").length;
-  targets.push({ name: "closed review data", path: `/api/trials/1/analyses/${analysisId}/review` });
-  targets.push({ name: "interval question", path: `/api/trials/1/analyses/${analysisId}/interval?lo=0.2&hi=0.4` });
+  const done = list.analyses.filter((a) => a.status === "locked" || a.status === "reviewed").at(-1);
+  if (!done) throw new Error("the first demo trial has no locked analysis");
+  const one = (await (await fetch(`${base}/api/trials/1/analyses/${done.id}`, { headers: { cookie } })).json()) as { arms: { id: number }[] };
+  targets.push({ name: "closed review data", path: `/api/trials/1/analyses/${done.id}/review` });
+  targets.push({ name: "interval question", path: `/api/trials/1/analyses/${done.id}/interval?arm=${one.arms[0].id}&lo=0.2&hi=0.4` });
   return targets;
 }
 
@@ -70,18 +67,51 @@ async function run(name: string, path: string, cookie: string) {
 const cookie = await signInCookie(base, "dmc@cairn.example", "demo-dmc-pass");
 const targets = await findTargets(cookie);
 let calibration: Promise<unknown> | null = null;
+let loadFinished = false;
 if (duringCalibration) {
+  // A 40 x 40 grid of (thetaT, thetaL) on the trial's locked design, started before the load and polled until done.
   const statCookie = await signInCookie(base, "statistician@cairn.example", "demo-stat-pass");
-  const res = await fetch(`${base}/api/trials/1/calibrations`, {
+  const designs = (await (await fetch(`${base}/api/trials/1/designs`, { headers: { cookie: statCookie } })).json()) as { designs: { status: string; spec: unknown }[] };
+  const locked = designs.designs.find((d) => d.status === "locked")?.spec as Record<string, unknown>;
+  // Heavier than the demo design: Nmax 100 with continuous monitoring from patient 10.
+  const spec = { ...locked, nMax: 100, looks: { kind: "every", first: 10, every: 1 } };
+  const startOne = () => fetch(`${base}/api/trials/1/calibrations`, {
     method: "POST",
     headers: { cookie: statCookie, "content-type": "application/json" },
-    body: JSON.stringify({ typeIErrorLimit: 0.1, powerTarget: 0.8, gridSize: 40 }),
+    body: JSON.stringify({
+      spec,
+      typeIErrorLimit: 0.1,
+      powerTarget: 0.8,
+      thetaT: { from: 0.8, to: 0.995, step: 0.005 },
+      thetaL: { from: 0.005, to: 0.2, step: 0.005 },
+      thetaU: null,
+    }),
   });
-  console.log(`calibration started: HTTP ${res.status}`);
-  calibration = Promise.resolve();
+  // Calibrations back to back for as long as the load runs, so the server is never without one.
+  calibration = (async () => {
+    let runs = 0;
+    let designsEvaluated = 0;
+    const t0 = Date.now();
+    while (!loadFinished) {
+      const res = await startOne();
+      const { job } = (await res.json()) as { job?: { id: string } };
+      if (!job) throw new Error(`calibration refused: HTTP ${res.status}`);
+      for (;;) {
+        const r = (await (await fetch(`${base}/api/trials/1/calibrations/${job.id}`, { headers: { cookie: statCookie } })).json()) as { job: { status: string; evaluated: number } };
+        if (r.job.status !== "running") {
+          runs++;
+          designsEvaluated += r.job.evaluated;
+          break;
+        }
+        await new Promise((done) => setTimeout(done, 200));
+      }
+    }
+    console.log(`${runs} calibrations (40 x 40, Nmax 100, continuous) ran during the load: ${designsEvaluated} designs in ${((Date.now() - t0) / 1000).toFixed(0)} s`);
+  })();
 }
 const rows = [];
 for (const t of targets) rows.push(await run(t.name, t.path, cookie));
+loadFinished = true;
 await calibration;
 console.log(`\nLoad test ${new Date().toISOString()} · ${connections} connections · ${seconds} s per route${duringCalibration ? " · during a calibration" : ""}`);
 console.table(rows);

@@ -4,6 +4,11 @@
  * variable from a 32-bit generator (mulberry32), and asks the design's own decision at each planned
  * look (memoised per state), so the check covers the boundary table as well as the recursion.
  * The seed is recorded in the result so a run can be repeated exactly.
+ *
+ * jstat 1.9.6 is not used for the draws: it has no binomial sampler (jStat.binomial offers pdf and
+ * cdf only), the true rates here are fixed so its Beta sampler has nothing to draw, and
+ * jStat.setRandom replaces one process-wide generator, which would tie every caller's stream
+ * to whichever request set it last.
  */
 import type { SingleArmDesign, TwoArmDesign } from "./types";
 import type { ResponseBoundary } from "./boundaries";
