@@ -5,6 +5,8 @@
  * for a monotone (J-shaped) one, two pieces [0, l] and [u, 1] for a U-shaped one (both shape
  * parameters below 1), and possibly several pieces for a multimodal mixture. A flat posterior
  * (Beta(1, 1)) has no unique HPD region; the equal-tailed interval is returned with a note.
+ * A single Beta (the usual posterior) is solved directly: closed form when monotone, one Newton
+ * equation otherwise (singleBetaHpd); only mixtures need the general level-set search.
  */
 import type { MixtureBeta } from "./types";
 import {
@@ -21,7 +23,7 @@ import { requireProbability } from "./validate";
 export type CredibleRegion = {
   /** Disjoint intervals in increasing order. */
   pieces: Array<{ lower: number; upper: number }>;
-  /** Posterior mass of the region (equals the level to about 1e-12). */
+  /** Posterior mass of the region (equals the level to about 1e-12; 1e-11 for extreme shapes). */
   mass: number;
   note?: string;
 };

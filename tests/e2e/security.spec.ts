@@ -1,0 +1,93 @@
+/**
+ * Attacks a browser can make: HTML in names shown as text, security headers, cookie flags, a
+ * tampered session, cross-site writes to the API, and a removed role taking effect at once.
+ */
+import { expect, test } from "@playwright/test";
+import { signIn } from "./support/accounts";
+
+const HOSTILE = `<img src=x onerror="window.__pwned=1">Trial "quoted" & <b>bold</b>`;
+
+test("HTML typed into a trial title and arm label is shown as text, never run", async ({ page }) => {
+  let dialogs = 0;
+  page.on("dialog", async (d) => {
+    dialogs++;
+    await d.dismiss();
+  });
+  await signIn(page, "statistician");
+  await page.goto("/trials/new");
+  await page.getByLabel("Trial code").fill(`SEC-${Date.now() % 100000}`);
+  await page.getByLabel("Title").fill(HOSTILE);
+  await page.getByLabel("Sponsor").fill("<script>alert(1)</script> Invented sponsor");
+  await page.getByLabel("Arm label").fill("<svg onload=alert(2)>");
+  await page.getByLabel("Endpoint", { exact: true }).fill("Response");
+  await page.getByLabel("Target enrolment").fill("40");
+  await page.getByRole("button", { name: /create/i }).click();
+  await expect(page).toHaveURL(/\/trials\/\d+\/design/);
+  await expect(page.getByRole("heading", { level: 1, name: HOSTILE })).toBeVisible();
+  expect(await page.evaluate(() => (window as unknown as { __pwned?: number }).__pwned)).toBeUndefined();
+  await page.goto("/trials");
+  await expect(page.getByText(HOSTILE)).toBeVisible();
+  expect(dialogs).toBe(0);
+});
+
+test("responses carry the security headers", async ({ request }) => {
+  const res = await request.get("/signin");
+  const h = res.headers();
+  expect(h["content-security-policy"]).toContain("frame-ancestors 'none'");
+  expect(h["content-security-policy"]).not.toContain("unsafe-eval");
+  expect(h["x-content-type-options"]).toBe("nosniff");
+  expect(h["referrer-policy"]).toBe("same-origin");
+  expect(h["x-powered-by"]).toBeUndefined();
+});
+
+test("the session cookie is httpOnly and SameSite; a tampered or missing one is refused", async ({ page, context }) => {
+  await signIn(page, "sponsor");
+  const cookies = await context.cookies();
+  const session = cookies.find((c) => c.name.includes("session-token"));
+  expect(session).toBeDefined();
+  expect(session!.httpOnly).toBe(true);
+  expect(session!.sameSite).toBe("Lax");
+  // Flip characters in the signed token: the server must not accept it.
+  const tampered = session!.value.slice(0, -6) + (session!.value.endsWith("AAAAAA") ? "BBBBBB" : "AAAAAA");
+  await context.addCookies([{ ...session!, value: tampered }]);
+  await page.goto("/trials");
+  await expect(page).toHaveURL(/\/signin$/);
+  const api = await page.request.get("/api/trials/1/open-status");
+  expect(api.status()).toBe(401);
+});
+
+test("a cross-site write to the API is refused before it reaches the route", async ({ page }) => {
+  await signIn(page, "dmc");
+  const res = await page.request.post("/api/trials/1/analyses/1/recommendations", {
+    headers: { origin: "https://elsewhere.example", "content-type": "application/json" },
+    data: { decision: "stop_efficacy", rationale: "Cross-site attempt, must be refused.", password: "demo-dmc-pass" },
+  });
+  expect(res.status()).toBe(403);
+  expect(await res.text()).toContain("Cross-site");
+});
+
+test("a person removed from a trial loses access at the next request", async ({ browser }) => {
+  const adminCtx = await browser.newContext();
+  const admin = await adminCtx.newPage();
+  await signIn(admin, "admin");
+  const personCtx = await browser.newContext();
+  const person = await personCtx.newPage();
+  await signIn(person, "coordinator");
+  expect((await person.request.get("/api/trials/2/open-status")).status()).toBe(200);
+
+  await admin.goto("/admin");
+  const row = admin.getByRole("row").filter({ hasText: "CRN-305" }).filter({ hasText: "coordinator@cairn.example" });
+  await row.getByRole("button", { name: /^Remove/ }).click();
+  await expect(row).toHaveCount(0);
+  expect((await person.request.get("/api/trials/2/open-status")).status()).toBe(404);
+  // Put the role back for the specs that run after this one.
+  const give = admin.getByRole("form", { name: "Give a role on a trial" });
+  await give.getByLabel("Person").selectOption({ label: "Tomas Brandt-Oye <coordinator@cairn.example>" });
+  await give.getByLabel("Trial").selectOption({ label: "CRN-305: TLM-417 plus standard care versus standard care alone: a randomised phase II study" });
+  await give.getByLabel("Role").selectOption("coordinator");
+  await give.getByRole("button", { name: "Give role" }).click();
+  await expect(admin.getByText(/is now coordinator on CRN-305/)).toBeVisible();
+  expect((await person.request.get("/api/trials/2/open-status")).status()).toBe(200);
+  await adminCtx.close();
+  await personCtx.close();
+});
