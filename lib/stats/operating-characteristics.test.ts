@@ -28,6 +28,8 @@ const simon: ResponseBoundary[] = [
 ];
 
 describe("exact recursion on a frequentist two-stage rule", () => {
+  // Published values recalled from memory (the table is widely reproduced); the next test checks the
+  // design's own constraints exactly, which does not depend on memory.
   it("Simon (1989) optimal design 1/10, 5/29 at p0 = 0.1: EN = 15.0 and PET = 0.74 as published", () => {
     const oc = exactOperatingCharacteristics(simon, 0.1);
     expect(oc.expectedSampleSize).toBeCloseTo(15.0, 1);
