@@ -114,23 +114,7 @@ export function exactOperatingCharacteristics(boundaries: ResponseBoundary[], p:
     }
     looks.push({ n: b.n, pStopFutility: fut, pStopEfficacy: eff, pContinue: b.final ? 0 : cont });
   }
-  const interim = looks.slice(0, -1);
-  const last = looks[looks.length - 1];
-  const pEarlyFutility = interim.reduce((s, l) => s + l.pStopFutility, 0);
-  const pEarlyEfficacy = interim.reduce((s, l) => s + l.pStopEfficacy, 0);
-  const sampleSizeDistribution = looks.map((l) => ({ n: l.n, probability: l.pStopFutility + l.pStopEfficacy }));
-  return {
-    p,
-    looks,
-    pEarlyFutility,
-    pEarlyEfficacy,
-    pEarlyTermination: pEarlyFutility + pEarlyEfficacy,
-    pSuccessAtEnd: last.pStopEfficacy,
-    pNoSuccessAtEnd: last.pStopFutility,
-    pDeclareSuccess: last.pStopEfficacy + pEarlyEfficacy,
-    expectedSampleSize: sampleSizeDistribution.reduce((s, d) => s + d.n * d.probability, 0),
-    sampleSizeDistribution,
-  };
+  return { p, ...summariseLooks(looks) };
 }
 
 /** Exact operating characteristics of a single-arm design at true rate p (0 <= p <= 1). */
@@ -293,24 +277,7 @@ export function exactTwoArmOperatingCharacteristics(boundaries: TwoArmBoundary[]
     }
     looks.push({ n, pStopFutility: fut, pStopEfficacy: eff, pContinue: b.final ? 0 : cont });
   });
-  const interim = looks.slice(0, -1);
-  const last = looks[looks.length - 1];
-  const pEarlyFutility = interim.reduce((s, l) => s + l.pStopFutility, 0);
-  const pEarlyEfficacy = interim.reduce((s, l) => s + l.pStopEfficacy, 0);
-  const sampleSizeDistribution = looks.map((l) => ({ n: l.n, probability: l.pStopFutility + l.pStopEfficacy }));
-  return {
-    pT,
-    pC,
-    looks,
-    pEarlyFutility,
-    pEarlyEfficacy,
-    pEarlyTermination: pEarlyFutility + pEarlyEfficacy,
-    pSuccessAtEnd: last.pStopEfficacy,
-    pNoSuccessAtEnd: last.pStopFutility,
-    pDeclareSuccess: last.pStopEfficacy + pEarlyEfficacy,
-    expectedSampleSize: sampleSizeDistribution.reduce((s, d) => s + d.n * d.probability, 0),
-    sampleSizeDistribution,
-  };
+  return { pT, pC, ...summariseLooks(looks) };
 }
 
 /** Exact two-arm operating characteristics of a design at (pT, pC). */
@@ -346,4 +313,28 @@ export function safetyOperatingCharacteristics(design: Design, q: number): Safet
   if (!design.safety) return null;
   const looks = expandLooks(design.looks, design.arms === "single" ? design.nMax : design.nMaxPerArm);
   return exactSafetyOperatingCharacteristics(safetyBoundaries(design.safety, looks), q);
+}
+
+/**
+ * The summaries shared by the single- and two-arm recursions, from the per-look stopping
+ * probabilities. Early termination counts stops before the last look; type I error and power count
+ * success at the end plus early efficacy stops; the expected sample size counts patients at the stop.
+ */
+function summariseLooks<L extends { n: number; pStopFutility: number; pStopEfficacy: number }>(looks: L[]) {
+  const interim = looks.slice(0, -1);
+  const last = looks[looks.length - 1];
+  const pEarlyFutility = interim.reduce((s, l) => s + l.pStopFutility, 0);
+  const pEarlyEfficacy = interim.reduce((s, l) => s + l.pStopEfficacy, 0);
+  const sampleSizeDistribution = looks.map((l) => ({ n: l.n, probability: l.pStopFutility + l.pStopEfficacy }));
+  return {
+    looks,
+    pEarlyFutility,
+    pEarlyEfficacy,
+    pEarlyTermination: pEarlyFutility + pEarlyEfficacy,
+    pSuccessAtEnd: last.pStopEfficacy,
+    pNoSuccessAtEnd: last.pStopFutility,
+    pDeclareSuccess: last.pStopEfficacy + pEarlyEfficacy,
+    expectedSampleSize: sampleSizeDistribution.reduce((s, d) => s + d.n * d.probability, 0),
+    sampleSizeDistribution,
+  };
 }
