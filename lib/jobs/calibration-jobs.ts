@@ -1,16 +1,17 @@
 import "server-only";
 /**
- * In-memory registry of calibration searches (lib/stats/calibration.ts). A job runs in this
- * process, one thetaT value at a time, yielding to the event loop with setImmediate between
- * chunks, so requests (progress polls, cancel, other pages) are answered while it runs; a cancel
- * takes effect at the next chunk. Jobs live only as long as the server process: a restart loses
+ * In-memory registry of calibration searches (lib/stats/calibration.ts). A job runs one thetaT
+ * value at a time, each slice in a worker thread (lib/jobs/pool.ts; in process when the worker
+ * bundle is missing), so requests (progress polls, cancel, other pages) are answered while it
+ * runs; a cancel takes effect at the next chunk. Jobs live only as long as the server process: a restart loses
  * them (the caller starts again). The registry sits on globalThis because route bundles may load
  * this module more than once.
  */
 import { randomUUID } from "node:crypto";
-import { calibrateSingleArm, type CalibratedDesign } from "@/lib/stats/calibration";
+import type { CalibratedDesign } from "@/lib/stats/calibration";
 import type { SingleArmDesign } from "@/lib/stats/types";
 import { runChunkedCalibration, type ChunkedCalibrationInput } from "./chunked-calibration";
+import { runCalibrationSlice } from "./pool";
 
 export type CalibrationJobStatus = "running" | "done" | "cancelled" | "failed";
 
@@ -71,7 +72,7 @@ export function startCalibrationJob(args: { trialId: number; userId: number; des
   void runChunkedCalibration(
     { design: args.design, thetaTGrid: args.thetaTGrid, thetaLGrid: args.thetaLGrid, thetaUGrid: args.thetaUGrid, typeIErrorLimit: args.typeIErrorLimit, powerTarget: args.powerTarget, keep: args.keep },
     {
-      calibrate: calibrateSingleArm,
+      calibrate: (design, options) => runCalibrationSlice({ design, options }),
       shouldCancel: () => job.cancelRequested,
       onChunk: (s) => {
         job.progress = s.progress;

@@ -1,7 +1,9 @@
 /**
  * Runs the grid search of lib/stats/calibration.ts in chunks of one thetaT value, yielding to the
- * event loop between chunks, and merges the chunks' best designs. Pure apart from the timer, so it
- * can be unit-tested against one call over the whole grid.
+ * event loop between chunks, and merges the chunks' best designs. The chunk itself may run in a
+ * worker thread (lib/jobs/pool.ts) or in process; progress and cancel are handled here between
+ * chunks either way. Pure apart from the timer, so it can be unit-tested against one call over the
+ * whole grid.
  */
 import type { CalibratedDesign, CalibrationOptions, CalibrationResult } from "@/lib/stats/calibration";
 import type { SingleArmDesign } from "@/lib/stats/types";
@@ -31,7 +33,7 @@ const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resol
 export async function runChunkedCalibration(
   input: ChunkedCalibrationInput,
   hooks: {
-    calibrate: (design: SingleArmDesign, options: CalibrationOptions) => CalibrationResult;
+    calibrate: (design: SingleArmDesign, options: CalibrationOptions) => CalibrationResult | Promise<CalibrationResult>;
     shouldCancel: () => boolean;
     onChunk?: (p: ChunkedProgress) => void;
   },
@@ -44,7 +46,7 @@ export async function runChunkedCalibration(
       state.cancelled = true;
       return state;
     }
-    const r = hooks.calibrate(input.design, {
+    const r = await hooks.calibrate(input.design, {
       thetaTGrid: [input.thetaTGrid[i]],
       thetaLGrid: input.thetaLGrid,
       thetaUGrid: input.thetaUGrid,

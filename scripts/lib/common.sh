@@ -150,14 +150,23 @@ start_daemon() {
   (cd "$ROOT" && setsid "$@" </dev/null >"$RUN_DIR/$name.log" 2>&1 & echo $! >"$RUN_DIR/$name.pid")
 }
 
+# Every descendant of a pid, deepest first (next start forks a server that may leave the process group).
+descendants() {
+  local child
+  for child in $(pgrep -P "$1" 2>/dev/null); do descendants "$child"; echo "$child"; done
+}
+
 stop_daemon() {
-  local name="$1" pidfile="$RUN_DIR/$1.pid" pid
+  local name="$1" pidfile="$RUN_DIR/$1.pid" pid pids
   [ -f "$pidfile" ] || return 0
   pid=$(cat "$pidfile")
   if kill -0 "$pid" 2>/dev/null; then
-    kill -- "-$pid" 2>/dev/null || kill "$pid" 2>/dev/null || true
+    pids="$(descendants "$pid") $pid"
+    kill -- "-$pid" 2>/dev/null || true
+    kill $pids 2>/dev/null || true
     for _ in $(seq 1 50); do kill -0 "$pid" 2>/dev/null || break; sleep 0.1; done
     kill -9 -- "-$pid" 2>/dev/null || true
+    kill -9 $pids 2>/dev/null || true
   fi
   rm -f "$pidfile"
 }

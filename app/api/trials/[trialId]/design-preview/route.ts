@@ -21,6 +21,6 @@ export const POST = handle(async (req: Request, ctx: Ctx) => {
   const arms = await fetchArms(trial.id);
   const label = (role: string) => arms.find((a) => a.arm_role === role)?.label;
   const started = performance.now();
-  const preview = cachedDesignPreview(design, { arm: label("single"), experimental: label("experimental"), control: label("control") });
+  const preview = await cachedDesignPreview(design, { arm: label("single"), experimental: label("experimental"), control: label("control") });
   return NextResponse.json({ preview, computeMs: Math.round(performance.now() - started) });
 });

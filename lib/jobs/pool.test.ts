@@ -1,0 +1,86 @@
+import { execFileSync } from "node:child_process";
+import { mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { calibrateSingleArm } from "@/lib/stats/calibration";
+import { StatsDomainError } from "@/lib/stats/validate";
+import { designPreview } from "@/lib/design/preview";
+import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
+import { runChunkedCalibration } from "./chunked-calibration";
+import { closeWorkerPools, runCalibrationSlice, runDesignPreview, workerBundlePresent, workerTasksCompleted } from "./pool";
+
+// Builds the worker bundles exactly as `npm run build` does, into a folder of this test's own,
+// and checks that work sent to the threads gives the same answers as the in-process functions.
+const design: SingleArmDesign = {
+  arms: "single",
+  prior: { family: "beta", a: 0.6, b: 0.4 },
+  p0: 0.2,
+  p1: 0.4,
+  delta: 0,
+  nMax: 30,
+  looks: { kind: "every", first: 10, every: 5 },
+  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.99 },
+  safety: null,
+};
+const grid = { thetaTGrid: [0.8, 0.85, 0.9, 0.95], thetaLGrid: [0, 0.05, 0.1], thetaUGrid: [0.95, 0.99], typeIErrorLimit: 0.15, powerTarget: 0.75, keep: 4 };
+
+let outDir = "";
+const previousDir = process.env.CAIRN_WORKERS_DIR;
+
+beforeAll(() => {
+  outDir = mkdtempSync(path.join(tmpdir(), "cairn-workers-"));
+  execFileSync(process.execPath, [path.resolve("scripts/build-workers.mjs"), "--out", outDir], { stdio: "pipe" });
+  process.env.CAIRN_WORKERS_DIR = outDir;
+}, 60_000);
+
+afterAll(async () => {
+  await closeWorkerPools();
+  if (previousDir === undefined) delete process.env.CAIRN_WORKERS_DIR;
+  else process.env.CAIRN_WORKERS_DIR = previousDir;
+  rmSync(outDir, { recursive: true, force: true });
+});
+
+describe("worker-thread pools", () => {
+  it("the chunked search through the calibration thread finds the same best designs as one in-process search", async () => {
+    expect(workerBundlePresent("calibration")).toBe(true);
+    const before = workerTasksCompleted("calibration");
+    const whole = calibrateSingleArm(design, grid);
+    const viaWorker = await runChunkedCalibration(
+      { design, ...grid },
+      { calibrate: (d, options) => runCalibrationSlice({ design: d, options }), shouldCancel: () => false },
+    );
+    expect(whole.best.length).toBeGreaterThan(0);
+    expect(viaWorker.best).toEqual(whole.best);
+    expect(viaWorker.evaluated).toBe(whole.evaluated);
+    expect(viaWorker.feasible).toBe(whole.feasible);
+    // One task per thetaT slice ran in a thread, not the in-process fallback.
+    expect(workerTasksCompleted("calibration") - before).toBe(grid.thetaTGrid.length);
+  });
+
+  it("the preview thread returns the in-process preview, single arm and two arms", async () => {
+    const before = workerTasksCompleted("preview");
+    expect(await runDesignPreview({ design, labels: { arm: "Invented arm" } })).toEqual(designPreview(design, { arm: "Invented arm" }));
+    const two: TwoArmDesign = {
+      arms: "two",
+      priorT: { family: "beta", a: 1, b: 1 },
+      priorC: { family: "beta", a: 1, b: 1 },
+      controlRate: 0.3,
+      experimentalRate: 0.5,
+      delta: 0,
+      nMaxPerArm: 20,
+      looks: { kind: "every", first: 10, every: 10 },
+      rule: { kind: "posterior", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
+      safety: null,
+    };
+    expect(await runDesignPreview({ design: two, labels: {} })).toEqual(designPreview(two, {}));
+    expect(workerTasksCompleted("preview") - before).toBe(2);
+  });
+
+  it("a domain error thrown in a thread arrives as a StatsDomainError (so the API answers 422, not 500)", async () => {
+    const bad = { ...design, p0: 1.5 };
+    const err = await runDesignPreview({ design: bad, labels: {} }).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(StatsDomainError);
+    expect((err as StatsDomainError).argument).toBe("p0");
+  });
+});
