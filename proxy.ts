@@ -5,7 +5,7 @@ import { getToken } from "next-auth/jwt";
  * First gate only: no session means a redirect to sign-in (pages) or 401 (API). The real checks,
  * role by trial, happen on the server in lib/auth for every page, route and action.
  */
-const PUBLIC = [/^\/signin$/, /^\/api\/auth\//, /^\/api\/health$/, /^\/_next\//, /^\/favicon/];
+const PUBLIC = [/^\/signin$/, /^\/api\/auth\//, /^\/api\/health$/, /^\/_next\//, /^\/favicon/, /^\/icon/];
 
 export async function proxy(req: NextRequest) {
   const { pathname } = req.nextUrl;

@@ -27,17 +27,22 @@ const grid = { thetaTGrid: [0.8, 0.85, 0.9, 0.95], thetaLGrid: [0, 0.05, 0.1], t
 
 let outDir = "";
 const previousDir = process.env.CAIRN_WORKERS_DIR;
+const previousMode = process.env.CAIRN_WORKERS;
 
 beforeAll(() => {
   outDir = mkdtempSync(path.join(tmpdir(), "cairn-workers-"));
   execFileSync(process.execPath, [path.resolve("scripts/build-workers.mjs"), "--out", outDir], { stdio: "pipe" });
   process.env.CAIRN_WORKERS_DIR = outDir;
+  // Outside production the pool runs in process unless asked; this test is about the threads.
+  process.env.CAIRN_WORKERS = "on";
 }, 60_000);
 
 afterAll(async () => {
   await closeWorkerPools();
   if (previousDir === undefined) delete process.env.CAIRN_WORKERS_DIR;
   else process.env.CAIRN_WORKERS_DIR = previousDir;
+  if (previousMode === undefined) delete process.env.CAIRN_WORKERS;
+  else process.env.CAIRN_WORKERS = previousMode;
   rmSync(outDir, { recursive: true, force: true });
 });
 

@@ -5,8 +5,10 @@ import "server-only";
  *
  * The worker files are the bundles scripts/build-workers.mjs writes to .workers/ before
  * `next build` (Turbopack bundles server code, and a worker thread needs a file plain Node can
- * load). When a bundle is missing (unit and integration tests, `next dev` before a build) the same
- * function runs in this process instead, with one log line, so results never depend on the path.
+ * load). Threads are used in production (`next start`) or with CAIRN_WORKERS=on; under `next dev`
+ * and the test runners the same function runs in this process, because a bundle left by an
+ * earlier build would silently run yesterday's lib/stats. A production server whose bundle is
+ * missing also falls back, with one log line; CAIRN_WORKERS=off forces the in-process path.
  */
 import { existsSync } from "node:fs";
 import path from "node:path";
@@ -36,7 +38,8 @@ const state: PoolState = ((globalThis as unknown as { cairnWorkerPools?: PoolSta
 
 /** The pool for a worker kind, or null when its bundle is missing or workers are switched off. */
 function poolFor(kind: WorkerKind): Piscina | null {
-  if (process.env.CAIRN_WORKERS === "off") return null;
+  const mode = process.env.CAIRN_WORKERS;
+  if (mode === "off" || (mode !== "on" && process.env.NODE_ENV !== "production")) return null;
   const filename = path.join(workersDir(), `${kind}.worker.mjs`);
   const existing = state.pools.get(filename);
   if (existing) return existing;
