@@ -24,7 +24,7 @@ const nextConfig = {
   // scripts/test runs `tsc --noEmit` over the whole project (app, lib, db, tests) as its own step;
   // checking again inside the build would only repeat it.
   typescript: { ignoreBuildErrors: true },
-  // The proxy buffers request bodies; CSV uploads are refused above 5 MB, so buffer no more than that.
+  // The proxy (pages and their server actions) buffers request bodies; nothing Cairn accepts there is near 6 MB.
   experimental: { authInterrupts: true, middlewareClientMaxBodySize: "6mb" },
   async headers() {
     return [

@@ -19,6 +19,30 @@ export async function fetchArmCountsForTrial(trialId: number, tx: Tx = db): Prom
     .orderBy(["a.look_number", "c.arm_id"]);
 }
 
+/** One arm's stored counts at one look with the look's status and design: what a single posterior needs, in one round trip. */
+export type ArmAtLookRow = {
+  status: string;
+  look_number: number;
+  cutoff_date: Date | string | null;
+  spec: string;
+  arm_id: number | null;
+  arm_label: string | null;
+  arm_role: "single" | "experimental" | "control" | null;
+  enrolled: number | null;
+  evaluable: number | null;
+  responders: number | null;
+  toxicities: number | null;
+};
+
+export async function fetchArmAtLook(trialId: number, analysisId: number, armId: number, tx: Tx = db): Promise<ArmAtLookRow | undefined> {
+  return tx("analyses as a")
+    .join("designs as d", "d.id", "a.design_id")
+    .leftJoin("arms as r", (j) => j.onVal("r.id", "=", armId).andOn("r.trial_id", "=", "a.trial_id"))
+    .leftJoin("analysis_arm_counts as c", (j) => j.on("c.analysis_id", "=", "a.id").andOn("c.arm_id", "=", "r.id"))
+    .where({ "a.id": analysisId, "a.trial_id": trialId })
+    .first(["a.status", "a.look_number", "a.cutoff_date", "d.spec", "r.id as arm_id", "r.label as arm_label", "r.arm_role", "c.enrolled", "c.evaluable", "c.responders", "c.toxicities"]);
+}
+
 export type ArmCountsInput = { armId: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null };
 
 /** Replaces the counts of an analysis (all arms at once). */

@@ -6,8 +6,13 @@ import type { Design } from "@/lib/stats/types";
 
 export type DesignRecord = Omit<DesignRow, "spec"> & { spec: Design };
 
+/** A design as stored (JSON text), checked against the design schema again on the way out. */
+export function parseStoredDesign(spec: string): Design {
+  return parseDesign(JSON.parse(spec));
+}
+
 function toRecord(r: DesignRow): DesignRecord {
-  return { ...r, spec: parseDesign(JSON.parse(r.spec)) };
+  return { ...r, spec: parseStoredDesign(r.spec) };
 }
 
 export async function fetchDesigns(trialId: number, tx: Tx = db): Promise<DesignRecord[]> {

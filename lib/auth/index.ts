@@ -4,12 +4,11 @@ import "server-only";
  * The session only says who someone is; what they may do is read from the database on every
  * request, so a removed role or deactivated account takes effect at the next request.
  */
-import { getServerSession } from "next-auth";
 import { notFound, redirect, forbidden } from "next/navigation";
-import { authOptions } from "./options";
+import { sessionUserId } from "./session";
 import { fetchUserById, toPublicUser } from "@/db/queries/users";
-import { fetchAnyRoleHeld, fetchRolesOnTrial } from "@/db/queries/memberships";
-import { fetchTrial } from "@/db/queries/trials";
+import { fetchAnyRoleHeld } from "@/db/queries/memberships";
+import { fetchAccessFacts, type AccessFacts } from "@/db/queries/trials";
 import type { PublicUser, TrialRole, TrialRow } from "@/db/types";
 import { allows, isUnblinded, type Capability, type Principal } from "./permissions";
 import { HttpError, forbiddenError, notFoundError, unauthorized } from "@/lib/http";
@@ -20,8 +19,7 @@ export type TrialAccess = { user: PublicUser; trial: TrialRow; roles: TrialRole[
 
 /** The signed-in, active user, or null. */
 export async function currentUser(): Promise<PublicUser | null> {
-  const session = await getServerSession(authOptions);
-  const id = (session?.user as { id?: number } | undefined)?.id;
+  const id = await sessionUserId();
   if (!id) return null;
   const row = await fetchUserById(id);
   if (!row || !row.is_active) return null;
@@ -51,15 +49,23 @@ export async function mayCreateTrial(u: PublicUser): Promise<boolean> {
  * is not revealed), 403 when on it without the capability.
  */
 export async function requireTrialAccess(trialId: number, cap: Capability): Promise<TrialAccess> {
-  return checkTrialAccess(await requireUser(), trialId, cap);
+  const id = await sessionUserId();
+  if (!id) throw unauthorized();
+  const facts = await fetchAccessFacts(id, validTrialId(trialId));
+  if (!facts.user || !facts.user.isActive) throw unauthorized();
+  return decideTrialAccess(facts.user, facts, cap);
 }
 
 /** The trial-level decision for a known user; separated from the session so it can be tested against the database. */
 export async function checkTrialAccess(user: PublicUser, trialId: number, cap: Capability): Promise<TrialAccess> {
-  if (!Number.isInteger(trialId) || trialId <= 0) throw notFoundError("That trial");
-  const trial = await fetchTrial(trialId);
+  return decideTrialAccess(user, await fetchAccessFacts(user.id, validTrialId(trialId)), cap);
+}
+
+// 0 matches no trial, so a malformed id answers 404 like a missing one.
+const validTrialId = (trialId: number) => (Number.isInteger(trialId) && trialId > 0 ? trialId : 0);
+
+function decideTrialAccess(user: PublicUser, { trial, roles }: AccessFacts, cap: Capability): TrialAccess {
   if (!trial) throw notFoundError("That trial");
-  const roles = await fetchRolesOnTrial(user.id, trialId);
   const principal: Principal = { isAdmin: user.isAdmin, roles };
   if (roles.length === 0 && !user.isAdmin) throw notFoundError("That trial");
   if (!allows(principal, cap)) throw forbiddenError(describe(cap));

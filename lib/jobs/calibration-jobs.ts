@@ -12,6 +12,7 @@ import type { CalibratedDesign } from "@/lib/stats/calibration";
 import type { SingleArmDesign } from "@/lib/stats/types";
 import { runChunkedCalibration, type ChunkedCalibrationInput } from "./chunked-calibration";
 import { runCalibrationSlice } from "./pool";
+import { eventLoopWatcher, pauseBeforeNextSlice } from "./back-off";
 
 export type CalibrationJobStatus = "running" | "done" | "cancelled" | "failed";
 
@@ -69,11 +70,13 @@ export function startCalibrationJob(args: { trialId: number; userId: number; des
     cancelRequested: false,
   };
   registry.set(job.id, job);
+  const requestThreadUtilization = eventLoopWatcher();
   void runChunkedCalibration(
     { design: args.design, thetaTGrid: args.thetaTGrid, thetaLGrid: args.thetaLGrid, thetaUGrid: args.thetaUGrid, typeIErrorLimit: args.typeIErrorLimit, powerTarget: args.powerTarget, keep: args.keep },
     {
       calibrate: (design, options) => runCalibrationSlice({ design, options }),
       shouldCancel: () => job.cancelRequested,
+      pauseAfter: (chunkMs) => pauseBeforeNextSlice(requestThreadUtilization(), chunkMs),
       onChunk: (s) => {
         job.progress = s.progress;
         job.evaluated = s.evaluated;

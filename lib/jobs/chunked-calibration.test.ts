@@ -36,4 +36,13 @@ describe("runChunkedCalibration", () => {
     // Two thetaT chunks of 3 thetaL x 2 thetaU points (every thetaU here is above every thetaL).
     expect(r.evaluated).toBe(2 * 3 * 2);
   });
+
+  it("waits the pause asked for between chunks, and none after the last", async () => {
+    const asked: number[] = [];
+    const t0 = performance.now();
+    await runChunkedCalibration({ design, ...grid }, { calibrate: calibrateSingleArm, shouldCancel: () => false, pauseAfter: (ms) => (asked.push(ms), 40) });
+    expect(asked).toHaveLength(grid.thetaTGrid.length - 1);
+    expect(asked.every((ms) => ms >= 0)).toBe(true);
+    expect(performance.now() - t0).toBeGreaterThanOrEqual(3 * 40 - 5);
+  });
 });

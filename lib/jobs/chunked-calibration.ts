@@ -2,7 +2,7 @@
  * Runs the grid search of lib/stats/calibration.ts in chunks of one thetaT value, yielding to the
  * event loop between chunks, and merges the chunks' best designs. The chunk itself may run in a
  * worker thread (lib/jobs/pool.ts) or in process; progress and cancel are handled here between
- * chunks either way. Pure apart from the timer, so it can be unit-tested against one call over the
+ * chunks either way, and so is the pause that lets requests go first (pauseAfter). Pure apart from the timers, so it can be unit-tested against one call over the
  * whole grid.
  */
 import type { CalibratedDesign, CalibrationOptions, CalibrationResult } from "@/lib/stats/calibration";
@@ -36,6 +36,8 @@ export async function runChunkedCalibration(
     calibrate: (design: SingleArmDesign, options: CalibrationOptions) => CalibrationResult | Promise<CalibrationResult>;
     shouldCancel: () => boolean;
     onChunk?: (p: ChunkedProgress) => void;
+    /** Milliseconds to wait before the next chunk, given how long this one took (lib/jobs/back-off.ts). */
+    pauseAfter?: (chunkMs: number) => number;
   },
 ): Promise<ChunkedProgress> {
   const state: ChunkedProgress = { progress: 0, evaluated: 0, feasible: 0, best: [], cancelled: false };
@@ -46,6 +48,7 @@ export async function runChunkedCalibration(
       state.cancelled = true;
       return state;
     }
+    const started = performance.now();
     const r = await hooks.calibrate(input.design, {
       thetaTGrid: [input.thetaTGrid[i]],
       thetaLGrid: input.thetaLGrid,
@@ -59,6 +62,8 @@ export async function runChunkedCalibration(
     state.best = mergeBest([state.best, r.best], input.keep);
     state.progress = (i + 1) / n;
     hooks.onChunk?.({ ...state });
+    const pause = i + 1 < n ? (hooks.pauseAfter?.(performance.now() - started) ?? 0) : 0;
+    if (pause > 0) await new Promise<void>((resolve) => setTimeout(resolve, pause));
   }
   return state;
 }

@@ -1,5 +1,5 @@
 import { execFileSync } from "node:child_process";
-import { mkdtempSync, rmSync } from "node:fs";
+import { mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -8,6 +8,7 @@ import { StatsDomainError } from "@/lib/stats/validate";
 import { designPreview } from "@/lib/design/preview";
 import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { runChunkedCalibration } from "./chunked-calibration";
+import { WORKER_NICENESS } from "./workers/lower-priority";
 import { closeWorkerPools, runCalibrationSlice, runDesignPreview, workerBundlePresent, workerTasksCompleted } from "./pool";
 
 // Builds the worker bundles exactly as `npm run build` does, into a folder of this test's own,
@@ -80,6 +81,16 @@ describe("worker-thread pools", () => {
     };
     expect(await runDesignPreview({ design: two, labels: {} })).toEqual(designPreview(two, {}));
     expect(workerTasksCompleted("preview") - before).toBe(2);
+  });
+
+  it.runIf(process.platform === "linux")("statistics threads run at the lowest scheduling priority, the request thread at its own", async () => {
+    await runDesignPreview({ design, labels: {} });
+    // /proc/self/task/<tid>/stat: field 19 is the thread's nice value (proc(5)). Threads stay alive
+    // for the pool's idle timeout, so the preview thread is still there to read.
+    const niceOf = (tid: string) => Number(readFileSync(`/proc/self/task/${tid}/stat`, "utf8").replace(/^.*\) /, "").split(" ")[16]);
+    const nices = readdirSync("/proc/self/task").map(niceOf);
+    expect(niceOf(String(process.pid))).toBeLessThan(WORKER_NICENESS);
+    expect(nices).toContain(WORKER_NICENESS);
   });
 
   it("a domain error thrown in a thread arrives as a StatsDomainError (so the API answers 422, not 500)", async () => {

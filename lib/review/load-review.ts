@@ -4,8 +4,8 @@ import "server-only";
  * passed requireTrialAccess(..., "viewClosed") (or authorizePage with it) first.
  */
 import { fetchAnalysesOpen } from "@/db/queries/analyses";
-import { fetchArmCountsForTrial } from "@/db/queries/closed";
-import { fetchDesign } from "@/db/queries/designs";
+import { fetchArmAtLook, fetchArmCountsForTrial } from "@/db/queries/closed";
+import { fetchDesign, parseStoredDesign } from "@/db/queries/designs";
 import { fetchArms } from "@/db/queries/trials";
 import type { AnalysisOpenRow, TrialRow } from "@/db/types";
 import { notFoundError, conflict } from "@/lib/http";
@@ -14,6 +14,7 @@ import { armPosterior, computeReview, reproducibilityRecord, type ReviewInput, t
 export type ReviewContext = { input: ReviewInput; analysis: AnalysisOpenRow; looks: AnalysisOpenRow[] };
 
 const REVIEWABLE = new Set(["locked", "reviewed"]);
+const NOT_LOCKED = "This look has not been locked yet, so there is nothing to review.";
 
 function cutoffText(v: unknown): string | null {
   if (v === null || v === undefined) return null;
@@ -26,7 +27,7 @@ export async function loadReviewInput(trial: TrialRow, analysisId: number, now: 
   const looks = await fetchAnalysesOpen(trial.id);
   const analysis = looks.find((l) => l.id === analysisId);
   if (!analysis) throw notFoundError("That analysis");
-  if (!REVIEWABLE.has(analysis.status)) throw conflict("This look has not been locked yet, so there is nothing to review.");
+  if (!REVIEWABLE.has(analysis.status)) throw conflict(NOT_LOCKED);
   const [design, arms, counts] = await Promise.all([fetchDesign(analysis.design_id), fetchArms(trial.id), fetchArmCountsForTrial(trial.id)]);
   if (!design) throw notFoundError("The design of that analysis");
   const locked = looks.filter((l) => REVIEWABLE.has(l.status) && l.look_number <= analysis.look_number);
@@ -61,8 +62,16 @@ export async function loadReproducibilityRecord(trial: TrialRow, analysisId: num
   return { ...reproducibilityRecord(ctx.input), trial: { id: trial.id, code: trial.code } };
 }
 
+/** One arm's posterior at one look; a single query, because the interval question asks it at typing speed. */
 export async function loadArmPosterior(trial: TrialRow, analysisId: number, armId: number) {
-  const ctx = await loadReviewInput(trial, analysisId);
-  const look = ctx.input.looks.find((l) => l.analysisId === analysisId)!;
-  return armPosterior(ctx.input.design, ctx.input.arms, look, armId);
+  const row = await fetchArmAtLook(trial.id, analysisId, armId);
+  if (!row) throw notFoundError("That analysis");
+  if (!REVIEWABLE.has(row.status)) throw conflict(NOT_LOCKED);
+  const arms = row.arm_id === null ? [] : [{ id: row.arm_id, label: row.arm_label!, role: row.arm_role! }];
+  const counts =
+    row.arm_id === null || row.evaluable === null
+      ? []
+      : [{ armId: row.arm_id, enrolled: row.enrolled!, evaluable: row.evaluable, responders: row.responders!, toxicities: row.toxicities }];
+  const look: ReviewLook = { analysisId, lookNumber: row.look_number, cutoffDate: cutoffText(row.cutoff_date), counts };
+  return armPosterior(parseStoredDesign(row.spec), arms, look, armId);
 }

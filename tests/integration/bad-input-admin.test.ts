@@ -6,7 +6,7 @@ import { beforeAll, describe, expect, it, vi } from "vitest";
 import fc from "fast-check";
 import { actAs, currentSession } from "./support/as-user";
 
-vi.mock("next-auth", async (orig) => ({ ...(await orig<typeof import("next-auth")>()), getServerSession: vi.fn(async () => currentSession()) }));
+vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null) }));
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }));
 // Hashing is not what is under test; a cheap stand-in keeps 1,000 runs quick.
 vi.mock("bcryptjs", () => ({ default: { hash: async (p: string) => `test-hash:${p.length}`, compare: async () => false, hashSync: (p: string) => `test-hash:${p.length}` } }));

@@ -94,6 +94,7 @@ describe.skipIf(!built)("database outage", () => {
     sh("start_mariadb");
     const recoveredIn = await waitFor(async () => (await fetch(`${base}/api/trials/1/open-status`, { headers: { cookie } })).status === 200, 10_000);
     expect(recoveredIn).toBeLessThan(10_000);
+    console.log(`[faults] answered again ${recoveredIn} ms after MariaDB came back (limit 10,000 ms)`);
   }, 60_000);
 
   it("after an unclean stop (kill -9), the start function brings the same data back", async () => {

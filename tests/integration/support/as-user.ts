@@ -1,6 +1,6 @@
 /**
  * Lets integration tests call route handlers and server actions directly, as a chosen user: the
- * test file mocks next-auth's getServerSession to return `currentSession()`. Everything after the
+ * test file mocks lib/auth/session's sessionUserId to return `currentSession()`'s user id. Everything after the
  * session (lib/auth's role checks, zod, the database) runs for real.
  */
 let session: { user: { id: number; email?: string; name?: string } } | null = null;
