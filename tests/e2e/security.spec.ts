@@ -1,9 +1,26 @@
 /**
  * Attacks a browser can make: HTML in names shown as text, security headers, cookie flags, a
- * tampered session, cross-site writes to the API, and a removed role taking effect at once.
+ * tampered session, cross-site writes to the API, a removed role taking effect at once, and
+ * password guessing (sign-in throttled per account and per address).
  */
-import { expect, test } from "@playwright/test";
-import { signIn } from "./support/accounts";
+import { expect, test, type APIRequestContext } from "@playwright/test";
+import { ACCOUNTS, signIn } from "./support/accounts";
+
+/**
+ * One sign-in attempt through next-auth's credentials callback, from a given client address
+ * (documentation range 203.0.113.0/24, so no other test shares its counter). Returns the error
+ * the sign-in form would show, or null when the attempt signed in.
+ */
+async function attemptSignIn(request: APIRequestContext, address: string, email: string, password: string): Promise<string | null> {
+  const { csrfToken } = (await (await request.get("/api/auth/csrf")).json()) as { csrfToken: string };
+  const res = await request.post("/api/auth/callback/credentials", {
+    headers: { "x-forwarded-for": address },
+    form: { email, password, csrfToken, json: "true", callbackUrl: "/trials" },
+    maxRedirects: 0,
+  });
+  const { url } = (await res.json()) as { url: string };
+  return new URL(url, "http://localhost").searchParams.get("error");
+}
 
 const HOSTILE = `<img src=x onerror="window.__pwned=1">Trial "quoted" & <b>bold</b>`;
 
@@ -90,4 +107,19 @@ test("a person removed from a trial loses access at the next request", async ({ 
   expect((await person.request.get("/api/trials/2/open-status")).status()).toBe(200);
   await adminCtx.close();
   await personCtx.close();
+});
+
+test("password guessing is throttled per account and per address, with a clear message", async ({ playwright, baseURL }) => {
+  const request = await playwright.request.newContext({ baseURL });
+  // Per account: five wrong passwords for one (unregistered) account, then even the sixth is refused unread.
+  const account = `guess-target-${Date.now()}@cairn.example`;
+  for (let i = 0; i < 5; i++) expect(await attemptSignIn(request, "203.0.113.10", account, `wrong-${i}`)).toBe("CredentialsSignin");
+  expect(await attemptSignIn(request, "203.0.113.11", account, "wrong-again")).toMatch(/^Too many failed sign-in attempts\. Try again in \d+ minutes?\.$/);
+
+  // Per address: thirty failures on thirty accounts from one address block that address, even for a right password...
+  for (let i = 0; i < 30; i++) expect(await attemptSignIn(request, "203.0.113.20", `spray-${i}-${Date.now()}@cairn.example`, "wrong")).toBe("CredentialsSignin");
+  expect(await attemptSignIn(request, "203.0.113.20", ACCOUNTS.sponsor.email, ACCOUNTS.sponsor.password)).toMatch(/^Too many failed sign-in attempts/);
+  // ...while the same account from another address still signs in.
+  expect(await attemptSignIn(request, "203.0.113.21", ACCOUNTS.sponsor.email, ACCOUNTS.sponsor.password)).toBeNull();
+  await request.dispose();
 });
