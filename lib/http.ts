@@ -21,11 +21,18 @@ export const forbiddenError = (what = "this") => new HttpError(403, `Your role o
 export const notFoundError = (what = "That record") => new HttpError(404, `${what} was not found.`);
 export const conflict = (message: string) => new HttpError(409, message);
 
-function isDatabaseDown(e: unknown): boolean {
+/** The database could not be reached, or the connection broke under a statement (mysql2 marks that fatal). */
+export function isDatabaseDown(e: unknown): boolean {
+  if (e instanceof HttpError) return false;
   const code = (e as { code?: string })?.code ?? "";
   return ["ECONNREFUSED", "PROTOCOL_CONNECTION_LOST", "ETIMEDOUT", "ECONNRESET", "ER_CON_COUNT_ERROR"].includes(code) ||
+    (e as { fatal?: boolean })?.fatal === true ||
     (e instanceof Error && /Knex: Timeout acquiring a connection/.test(e.message));
 }
+
+/** What a write answers when the connection was lost before its transaction committed. */
+export const writeNotSaved = () =>
+  new HttpError(503, "The database connection was lost before the change was committed, so nothing was saved. Try again in a moment.");
 
 /**
  * invalid input 422 with the issues; no session 401; wrong role 403; missing 404; conflict 409;

@@ -3,7 +3,7 @@ import bcrypt from "bcryptjs";
 import { revalidatePath } from "next/cache";
 import { requireAdmin } from "@/lib/auth";
 import { BCRYPT_ROUNDS } from "@/lib/auth/options";
-import { db } from "@/db/knex";
+import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { fetchUserByEmail, fetchUserById, insertUser } from "@/db/queries/users";
 import { deleteMembership, fetchMembershipById, insertMembership } from "@/db/queries/memberships";
@@ -31,7 +31,7 @@ export async function createAccount(_prev: FormState, form: FormData): Promise<F
   if (await fetchUserByEmail(email)) return { error: "Check the highlighted fields.", fieldErrors: { email: ["An account with this e-mail address already exists."] }, values };
   const passwordHash = await bcrypt.hash(password, BCRYPT_ROUNDS);
   try {
-    await db.transaction(async (tx) => {
+    await writeTransaction(async (tx) => {
       const id = await insertUser(tx, { email, name, passwordHash, isAdmin });
       await appendAudit(tx, {
         actorUserId: admin.id,
@@ -67,7 +67,7 @@ export async function assignRole(_prev: FormState, form: FormData): Promise<Form
   if (!user) return { fieldErrors: { userId: ["That person no longer exists."] }, error: "Check the highlighted fields." };
   if (!trial) return { fieldErrors: { trialId: ["That trial no longer exists."] }, error: "Check the highlighted fields." };
   try {
-    await db.transaction(async (tx) => {
+    await writeTransaction(async (tx) => {
       const id = await insertMembership(tx, { trialId, userId, role: role as TrialRole });
       await appendAudit(tx, {
         actorUserId: admin.id,
@@ -99,7 +99,7 @@ export async function removeRole(_prev: FormState, form: FormData): Promise<Form
   if (!parsed.success) return { error: "That role assignment is not valid." };
   const m = await fetchMembershipById(parsed.data.membershipId);
   if (!m) return { error: "That role assignment no longer exists." };
-  await db.transaction(async (tx) => {
+  await writeTransaction(async (tx) => {
     await deleteMembership(tx, m.id);
     await appendAudit(tx, {
       actorUserId: admin.id,

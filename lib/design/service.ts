@@ -5,7 +5,7 @@ import "server-only";
  * checkTrialAccess), and the capability is checked again here so no caller can skip it. Every
  * write is one transaction that appends exactly one (open) audit row: a design is not outcome data.
  */
-import { db } from "@/db/knex";
+import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import {
   fetchDesign,
@@ -57,7 +57,7 @@ export async function createTrial(user: PublicUser, input: NewTrialInput): Promi
   if (!user.isAdmin && !isStatistician) throw new HttpError(403, "Only an administrator or an unblinded statistician may create a trial.");
   if (await trialCodeTaken(input.code)) return { ok: false, fieldErrors: { code: ["A trial with this code already exists."] } };
   try {
-    const trialId = await db.transaction(async (tx) => {
+    const trialId = await writeTransaction(async (tx) => {
       const id = await insertTrial(tx, {
         code: input.code,
         title: input.title,
@@ -106,7 +106,7 @@ export async function createDraftDesign(access: TrialAccess, specInput: unknown)
   need(access, "editDesign");
   const spec = parseDesignForTrial(specInput, access.trial.design_type);
   const { user, trial } = access;
-  const id = await db.transaction(async (tx) => {
+  const id = await writeTransaction(async (tx) => {
     await lockTrialRow(tx, trial.id);
     const versions = await fetchDesignStatusesForUpdate(tx, trial.id);
     const draft = versions.find((v) => v.status === "draft");
@@ -137,7 +137,7 @@ export async function updateDraftDesign(access: TrialAccess, designId: number, r
   await designOfTrial(access, designId);
   const spec = parseDesignForTrial(specInput, access.trial.design_type);
   const { user, trial } = access;
-  await db.transaction(async (tx) => {
+  await writeTransaction(async (tx) => {
     const current = await fetchDesignForUpdate(tx, designId);
     if (!current) throw notFoundError("That design version");
     if (current.status !== "draft")
@@ -174,7 +174,7 @@ export async function lockDesign(access: TrialAccess, designId: number, rowVersi
   const password = signingPasswordSchema.parse(passwordInput);
   const { user, trial } = access;
   await confirmSigner(user, password);
-  await db.transaction(async (tx) => {
+  await writeTransaction(async (tx) => {
     await lockTrialRow(tx, trial.id);
     const current = await fetchDesignForUpdate(tx, designId);
     if (!current) throw notFoundError("That design version");
@@ -228,7 +228,7 @@ export async function amendDesign(access: TrialAccess, designId: number, reasonI
   await designOfTrial(access, designId);
   const reason = amendBodySchema.shape.reason.parse(reasonInput);
   const { user, trial } = access;
-  const id = await db.transaction(async (tx) => {
+  const id = await writeTransaction(async (tx) => {
     await lockTrialRow(tx, trial.id);
     const versions = await fetchDesignStatusesForUpdate(tx, trial.id);
     const draft = versions.find((v) => v.status === "draft");

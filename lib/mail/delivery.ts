@@ -6,7 +6,7 @@ import "server-only";
  * twice, and a sender that dies mid-attempt leaves a row that becomes due again when its lease ends.
  * Nothing here blocks a page: callers start delivery after responding (next/server `after`).
  */
-import { db } from "@/db/knex";
+import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { claimEmail, fetchDueEmailIds, fetchEmail, markEmailAttemptFailed, markEmailSent } from "@/db/queries/emails";
 import { fetchPacketPdf } from "@/db/queries/packets";
@@ -20,7 +20,7 @@ export const DEFAULT_RETRY: RetryPolicy = { maxAttempts: 3, delaysMs: [5_000, 30
 export type AttemptOutcome = "sent" | "retry" | "failed" | "skipped";
 
 async function record(id: number, trialId: number, action: string, values: Record<string, unknown>, write: (tx: import("knex").Knex.Transaction) => Promise<void>) {
-  await db.transaction(async (tx) => {
+  await writeTransaction(async (tx) => {
     await write(tx);
     await appendAudit(tx, { actorUserId: null, actorEmail: "cairn-mail", trialId, action, entityType: "email_message", entityId: id, visibility: "open", newValues: values });
   });
@@ -28,7 +28,7 @@ async function record(id: number, trialId: number, action: string, values: Recor
 
 /** One attempt at one message, if it is due. Returns what happened; schedules nothing by itself. */
 export async function attemptDelivery(id: number, policy: RetryPolicy = DEFAULT_RETRY, now = new Date()): Promise<AttemptOutcome> {
-  const attempt = await db.transaction((tx) => claimEmail(tx, id, now, new Date(now.getTime() + policy.leaseMs)));
+  const attempt = await writeTransaction((tx) => claimEmail(tx, id, now, new Date(now.getTime() + policy.leaseMs)));
   if (attempt === null) return "skipped";
   const msg = await fetchEmail(id);
   if (!msg) return "skipped";

@@ -4,7 +4,7 @@ import "server-only";
  * with its audit row. Delivery is separate (delivery.ts), so a page can respond before any SMTP
  * conversation starts.
  */
-import { db } from "@/db/knex";
+import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import type { PublicUser, TrialRow } from "@/db/types";
 import { fetchTrialRecipients, insertEmails, type NewEmail } from "@/db/queries/emails";
@@ -62,7 +62,7 @@ export async function queuePacketMail(trial: TrialRow, meetingId: number, sender
     }
   }
   if (emails.length === 0) throw new HttpError(409, "Nobody on this trial holds a role that receives the packet.");
-  const ids = await db.transaction(async (tx) => {
+  const ids = await writeTransaction(async (tx) => {
     const ids = await insertEmails(tx, emails, now);
     await appendAudit(tx, {
       actorUserId: sender.id,
@@ -93,7 +93,7 @@ export async function queueDueReminders(opts: { now?: Date; trialId?: number; ac
     if (!trial || !full) continue;
     const attendees = await fetchAttendees(m.id);
     const when = formatMeetingTime(new Date(m.scheduled_at), m.time_zone);
-    const ids = await db.transaction(async (tx) => {
+    const ids = await writeTransaction(async (tx) => {
       if (!(await claimReminder(tx, m.id, now))) return [];
       const emails: NewEmail[] = attendees.map((a) => {
         const c = reminderMail({ trialCode: trial.code, trialTitle: trial.title, meetingWhen: when, lookNumber: full.lookNumber, recipientName: a.name, daysBefore: m.reminder_days_before, link: meetingLink(trial.id, m.id), openAgenda: m.open_agenda });

@@ -5,7 +5,7 @@ import "server-only";
  * decided by the download route (unblinded roles only). A blinded organiser can trigger the
  * generation but gets back only version numbers, never closed content or its hash.
  */
-import { db } from "@/db/knex";
+import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import type { PacketAudience, PublicUser, TrialRow } from "@/db/types";
 import { fetchAttendees, fetchMeeting } from "@/db/queries/meetings";
@@ -117,7 +117,7 @@ async function storeIfChanged(trial: TrialRow, meetingId: number, doc: PacketDoc
   // Rendering is the slow part: done before the transaction, which then only re-checks and inserts.
   const nextVersion = (latest?.version ?? 0) + 1;
   let rendered = await renderPacketPdf(doc, { version: nextVersion, contentHash, engineVersion: ENGINE_VERSION, generatedAt: now, generatedBy: user.name });
-  return db.transaction(async (tx) => {
+  return writeTransaction(async (tx) => {
     await lockMeetingRow(tx, meetingId);
     const again = await fetchLatestPacket(meetingId, doc.audience, tx);
     if (again && again.content_hash === contentHash && again.engine_version === ENGINE_VERSION)

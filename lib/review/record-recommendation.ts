@@ -5,7 +5,7 @@ import "server-only";
  * the server action and the route handler; both have already called requireTrialAccess(...,
  * "recordRecommendation").
  */
-import { db } from "@/db/knex";
+import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { insertSignature } from "@/db/queries/signatures";
 import { updateAnalysisOpenFields } from "@/db/queries/analyses";
@@ -26,7 +26,7 @@ export async function recordRecommendation(access: TrialAccess, analysisId: numb
   const input = recommendationSchema.parse(raw);
   await confirmSigner(access.user, input.password);
   const now = new Date();
-  return db.transaction(async (tx) => {
+  return writeTransaction(async (tx) => {
     const analysis = await fetchAnalysisForUpdate(tx, analysisId);
     if (!analysis || analysis.trial_id !== access.trial.id) throw notFoundError("That analysis");
     if (analysis.status !== "locked" && analysis.status !== "reviewed")

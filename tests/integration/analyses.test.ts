@@ -23,7 +23,7 @@ import {
   reopenAnalysis,
   saveArmCounts,
 } from "@/app/trials/[trialId]/analyses/_lib/service";
-import { db, giveRole, makeTrial, makeUser, ownerKnex, resetDatabase } from "./support/db";
+import { db, giveRole, killMidTransaction, makeTrial, makeUser, ownerKnex, resetDatabase } from "./support/db";
 
 type Statistician = PublicUser & { password: string };
 let stat: Statistician;
@@ -306,38 +306,22 @@ describe("patient-level upload", () => {
     const before = { audits: await auditCount(), rows: await patientRows(a1), counts: await db("analysis_arm_counts").where({ analysis_id: a1 }), look: await look(a1) };
     const lines = [HEADER];
     for (let i = 1; i <= 1200; i++) lines.push(`K-${String(i).padStart(4, "0")},single,2026-0${1 + (i % 6)}-1${i % 10},yes,${i % 3 ? "no" : "yes"},${i % 7 ? "no" : "yes"}`);
-    const owner = ownerKnex();
-    // The owner holds the audit chain head, so the upload inserts all its rows and then waits
-    // inside its transaction at appendAudit: a known point in the middle of the transaction.
-    const hold = await owner.transaction();
-    try {
-      await hold("audit_chain_head").where({ id: 1 }).forUpdate();
-      const upload = confirmPatientUpload(stat, t.trialId, a1, enc(lines.join("\n")), { rowVersion: v }).then(
-        () => null,
-        (e: unknown) => e,
-      );
-      // Find the blocked connection (same account may see and kill its own threads).
-      let victim: number | undefined;
-      for (let i = 0; i < 200 && victim === undefined; i++) {
-        const [procs] = await db.raw("SELECT ID, INFO FROM information_schema.PROCESSLIST WHERE INFO LIKE '%audit_chain_head%for update%' AND ID <> CONNECTION_ID()");
-        victim = (procs as Array<{ ID: number }>)[0]?.ID;
-        if (victim === undefined) await new Promise((r) => setTimeout(r, 50));
-      }
-      expect(victim, "the upload should be waiting inside its transaction").toBeDefined();
-      // Mid-transaction: the rows are there, uncommitted (read uncommitted sees them).
-      const peek = await owner.transaction(async (trx) => trx("patient_outcomes").where({ analysis_id: a1 }).where("subject_id", "like", "K-%").count({ n: "*" }).first(), {
-        isolationLevel: "read uncommitted",
-      });
-      expect(Number(peek?.n)).toBe(1200);
-      await db.raw(`KILL ${Number(victim)}`);
-      const err = await upload;
-      expect(err, "the failure must reach the caller").toBeInstanceOf(HttpError);
-      expect((err as HttpError).status).toBe(503);
-      expect((err as HttpError).message).toMatch(/nothing was saved/);
-    } finally {
-      await hold.rollback().catch(() => undefined);
-      await owner.destroy();
-    }
+    // The upload inserts all its rows, then waits inside its transaction for the audit chain head.
+    let peeked = -1;
+    const err = await killMidTransaction(
+      () => confirmPatientUpload(stat, t.trialId, a1, enc(lines.join("\n")), { rowVersion: v }),
+      async (owner) => {
+        // Mid-transaction: the rows are there, uncommitted (read uncommitted sees them).
+        const peek = await owner.transaction(async (trx) => trx("patient_outcomes").where({ analysis_id: a1 }).where("subject_id", "like", "K-%").count({ n: "*" }).first(), {
+          isolationLevel: "read uncommitted",
+        });
+        peeked = Number(peek?.n);
+      },
+    );
+    expect(peeked).toBe(1200);
+    expect(err, "the failure must reach the caller").toBeInstanceOf(HttpError);
+    expect((err as HttpError).status).toBe(503);
+    expect((err as HttpError).message).toMatch(/nothing was saved/);
     expect(await auditCount()).toBe(before.audits);
     expect(await patientRows(a1)).toBe(before.rows);
     expect(await db("patient_outcomes").where({ analysis_id: a1 }).where("subject_id", "like", "K-%").count({ n: "*" }).first()).toEqual({ n: 0 });

@@ -78,8 +78,12 @@ afterAll(() => {
 describe.skipIf(!built)("database outage", () => {
   it("requests fail with a clear 503 while MariaDB is down, and the app recovers within 10 s of it coming back", async () => {
     const cookie = await signInCookie(base, "sponsor@cairn.example", "demo-sponsor-pass");
+    const dmcCookie = await signInCookie(base, "dmc@cairn.example", "demo-dmc-pass");
+    const statCookie = await signInCookie(base, "statistician@cairn.example", "demo-stat-pass");
     const before = await fetch(`${base}/api/trials/1/open-status`, { headers: { cookie } });
     expect(before.status).toBe(200);
+    const rowCounts = () => sh("mysql_root -N -e 'SELECT (SELECT COUNT(*) FROM cairn_fault.recommendations), (SELECT COUNT(*) FROM cairn_fault.signatures), (SELECT COUNT(*) FROM cairn_fault.patient_outcomes), (SELECT COUNT(*) FROM cairn_fault.audit_events)'").trim();
+    const countsBefore = rowCounts();
 
     sh("stop_mariadb");
     const health = await fetch(`${base}/api/health`);
@@ -90,10 +94,26 @@ describe.skipIf(!built)("database outage", () => {
     const body = await during.text();
     expect(body).toMatch(/database is not reachable/i);
     expect(body).not.toMatch(/ECONNREFUSED|stack|at .*\.js/);
+    // A recommendation and an upload sent while it is down: a clear 503 each, and (below) nothing written.
+    const recommendation = await fetch(`${base}/api/trials/1/analyses/1/recommendations`, {
+      method: "POST",
+      headers: { cookie: dmcCookie, "content-type": "application/json" },
+      body: JSON.stringify({ decision: "continue", rationale: "Sent while the database was down.", password: "demo-dmc-pass" }),
+    });
+    expect(recommendation.status).toBe(503);
+    expect(await recommendation.text()).toMatch(/database is not reachable/i);
+    const upload = await fetch(`${base}/api/trials/1/analyses/1/upload/confirm?rowVersion=1`, {
+      method: "POST",
+      headers: { cookie: statCookie, "content-type": "text/csv" },
+      body: "subject_id,arm,enrolled_on,evaluable,response,toxicity\nF-001,single,2026-01-05,yes,yes,no\n",
+    });
+    expect(upload.status).toBe(503);
+    expect(await upload.text()).toMatch(/database is not reachable/i);
 
     sh("start_mariadb");
     const recoveredIn = await waitFor(async () => (await fetch(`${base}/api/trials/1/open-status`, { headers: { cookie } })).status === 200, 10_000);
     expect(recoveredIn).toBeLessThan(10_000);
+    expect(rowCounts(), "recommendations, signatures, patient rows and audit rows are as before the outage").toBe(countsBefore);
     console.log(`[faults] answered again ${recoveredIn} ms after MariaDB came back (limit 10,000 ms)`);
   }, 60_000);
 

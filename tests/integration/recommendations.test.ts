@@ -6,6 +6,7 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { ZodError } from "zod";
 import { checkTrialAccess } from "@/lib/auth";
+import { verifyAuditChain } from "@/db/audit";
 import { HttpError } from "@/lib/http";
 import { recordRecommendation } from "@/lib/review/record-recommendation";
 import { fetchRecommendationsClosed } from "@/db/queries/recommendations";
@@ -16,7 +17,7 @@ import { createPlannedLooks } from "@/db/queries/analyses";
 import { replaceArmCounts } from "@/db/queries/closed";
 import type { SingleArmDesign } from "@/lib/stats/types";
 import type { PublicUser } from "@/db/types";
-import { db, giveRole, makeTrial, makeUser, resetDatabase } from "./support/db";
+import { db, giveRole, killMidTransaction, makeTrial, makeUser, resetDatabase } from "./support/db";
 
 const DESIGN: SingleArmDesign = {
   arms: "single",
@@ -115,6 +116,26 @@ describe("recording a recommendation", () => {
     expect(await statusOf(recordRecommendation(access, plannedLook, { ...good, password: dmc.password }))).toBe(409);
     expect(await statusOf(recordRecommendation(access, otherTrialLook, { ...good, password: dmc.password }))).toBe(404);
     expect(await counts()).toEqual(before);
+  });
+
+  it("a connection lost in the middle of recording leaves nothing behind: no signature, no recommendation, the look still locked (503)", async () => {
+    const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
+    const before = { ...(await counts()), look: await db("analyses").where({ id: lockedLook }).first() };
+    let uncommitted = -1;
+    const err = await killMidTransaction(
+      () => recordRecommendation(access, lockedLook, { ...good, password: dmc.password }),
+      async (owner) => {
+        const peek = await owner.transaction(async (trx) => trx("recommendations").where({ analysis_id: lockedLook }).count({ n: "*" }).first(), { isolationLevel: "read uncommitted" });
+        uncommitted = Number(peek?.n);
+      },
+    );
+    // It had written its recommendation row when the connection went: the kill was mid-transaction.
+    expect(uncommitted).toBe(1);
+    expect(err).toBeInstanceOf(HttpError);
+    expect((err as HttpError).status).toBe(503);
+    expect((err as HttpError).message).toMatch(/nothing was saved/);
+    expect({ ...(await counts()), look: await db("analyses").where({ id: lockedLook }).first() }).toEqual(before);
+    expect((await verifyAuditChain(db)).ok).toBe(true);
   });
 
   it("records the recommendation with a signature bound to {analysisId, decision, rationale, correctsId}, marks the analysis reviewed and appends one open audit row without the rationale", async () => {

@@ -7,6 +7,7 @@ import bcrypt from "bcryptjs";
 import config from "@/knexfile";
 import { databaseConnection } from "@/lib/config-shared";
 import { db } from "@/db/knex";
+import { GENESIS_HASH } from "@/db/audit";
 import { insertUser } from "@/db/queries/users";
 import { insertTrial } from "@/db/queries/trials";
 import { insertMembership } from "@/db/queries/memberships";
@@ -62,6 +63,40 @@ export async function makeTrial(opts: { designType?: "single" | "two"; code?: st
 
 export async function giveRole(userId: number, trialId: number, role: TrialRole): Promise<void> {
   await db.transaction((tx) => insertMembership(tx, { userId, trialId, role }));
+}
+
+/**
+ * Kills a write in the middle of its transaction. The owner account holds the audit chain head,
+ * so the write does its work and then waits inside its transaction at appendAudit, a known point
+ * in its middle; `midway` runs there (with the owner's connection, e.g. to peek at uncommitted
+ * rows), then the write's connection is killed. Resolves with what the write threw, or null.
+ */
+export async function killMidTransaction(write: () => Promise<unknown>, midway: (owner: Knex) => Promise<void> = async () => {}): Promise<unknown> {
+  const owner = ownerKnex();
+  // The chain head row must exist for the lock to hold a row (before the first audited write it does not).
+  await owner.raw("INSERT IGNORE INTO audit_chain_head (id, last_event_id, last_hash) VALUES (1, 0, ?)", [GENESIS_HASH]);
+  const hold = await owner.transaction();
+  try {
+    await hold("audit_chain_head").where({ id: 1 }).forUpdate();
+    const outcome = write().then(
+      () => null,
+      (e: unknown) => e,
+    );
+    // Find the blocked connection (the same account may see and kill its own threads).
+    let victim: number | undefined;
+    for (let i = 0; i < 200 && victim === undefined; i++) {
+      const [procs] = await db.raw("SELECT ID FROM information_schema.PROCESSLIST WHERE INFO LIKE '%audit_chain_head%for update%' AND ID <> CONNECTION_ID()");
+      victim = (procs as Array<{ ID: number }>)[0]?.ID;
+      if (victim === undefined) await new Promise((r) => setTimeout(r, 50));
+    }
+    if (victim === undefined) throw new Error("the write never reached its audit row, so it was not stopped midway");
+    await midway(owner);
+    await db.raw(`KILL ${Number(victim)}`);
+    return await outcome;
+  } finally {
+    await hold.rollback().catch(() => undefined);
+    await owner.destroy();
+  }
 }
 
 export { db };

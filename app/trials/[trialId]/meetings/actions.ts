@@ -6,7 +6,7 @@
  */
 import { after } from "next/server";
 import { revalidatePath } from "next/cache";
-import { db } from "@/db/knex";
+import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { requireTrialAccess, type TrialAccess } from "@/lib/auth";
 import { HttpError } from "@/lib/http";
@@ -54,7 +54,7 @@ export async function scheduleMeeting(_prev: MeetingFormState, form: FormData): 
   if (!analysis || analysis.trial_id !== a.trial.id) return { error: "Check the highlighted fields.", fieldErrors: { analysisId: ["Choose an analysis of this trial."] } };
   const members = new Set((await fetchMemberships({ trialId: a.trial.id })).map((m) => m.userId));
   if (v.attendeeIds.some((id) => !members.has(id))) return { error: "Check the highlighted fields.", fieldErrors: { attendeeIds: ["Attendees must be members of this trial."] } };
-  const meetingId = await db.transaction(async (tx) => {
+  const meetingId = await writeTransaction(async (tx) => {
     const id = await insertMeeting(tx, {
       trialId: a.trial.id,
       analysisId: v.analysisId,
@@ -136,7 +136,7 @@ export async function saveAttendance(_prev: MeetingFormState, form: FormData): P
   if (new Date(meeting.scheduled_at).getTime() > Date.now()) return { error: "Attendance can be recorded once the meeting has started." };
   const invited = new Set((await fetchAttendees(meetingId)).map((x) => x.userId));
   if (attendedIds.some((id) => !invited.has(id))) return { error: "Only invited people can be recorded as attending." };
-  const saved = await db.transaction(async (tx) => {
+  const saved = await writeTransaction(async (tx) => {
     const ok = await recordAttendance(tx, meetingId, rowVersion, attendedIds);
     if (!ok) return false;
     await appendAudit(tx, { actorUserId: a.user.id, actorEmail: a.user.email, trialId: a.trial.id, action: "meeting_attendance_recorded", entityType: "meeting", entityId: meetingId, visibility: "open", newValues: { attended: attendedIds, status: "held" } });
@@ -155,7 +155,7 @@ export async function cancelMeeting(_prev: MeetingFormState, form: FormData): Pr
   const meeting = await fetchMeeting(a.trial.id, parsed.data.meetingId);
   if (!meeting) return { error: "That meeting was not found." };
   if (meeting.status !== "scheduled") return { error: "Only a scheduled meeting can be cancelled." };
-  const saved = await db.transaction(async (tx) => {
+  const saved = await writeTransaction(async (tx) => {
     if (!(await updateMeetingStatus(tx, meeting.id, parsed.data.rowVersion, "cancelled"))) return false;
     await appendAudit(tx, { actorUserId: a.user.id, actorEmail: a.user.email, trialId: a.trial.id, action: "meeting_cancelled", entityType: "meeting", entityId: meeting.id, visibility: "open", oldValues: { status: meeting.status }, newValues: { status: "cancelled" } });
     return true;
@@ -172,7 +172,7 @@ export async function retryFailedEmail(_prev: MeetingFormState, form: FormData):
   if (!parsed.success) return { error: "That message is not valid." };
   const msg = await fetchEmail(parsed.data.emailId);
   if (!msg || msg.trial_id !== a.trial.id) return { error: "That message was not found." };
-  const ok = await db.transaction(async (tx) => {
+  const ok = await writeTransaction(async (tx) => {
     if (!(await requeueFailedEmail(tx, msg.id, new Date()))) return false;
     await appendAudit(tx, { actorUserId: a.user.id, actorEmail: a.user.email, trialId: a.trial.id, action: "email_requeued", entityType: "email_message", entityId: msg.id, visibility: "open", newValues: { to: msg.to_address } });
     return true;

@@ -8,8 +8,7 @@ import "server-only";
  * Callers (route handlers, tests) have already authorized the actor with enterData.
  */
 import { createHash } from "node:crypto";
-import type { Knex } from "knex";
-import { db, type Tx } from "@/db/knex";
+import { db, writeTransaction, type Tx } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { fetchAnalysisForUpdate, fetchNeighbourCutoffs, updateAnalysisOpenFields, type AnalysisLockedRow } from "@/db/queries/analyses";
 import { fetchArmCounts, replaceArmCounts, replacePatientOutcomes, countPatientOutcomes, type ArmCountsInput } from "@/db/queries/closed";
@@ -65,25 +64,11 @@ async function checkCutoffOrder(tx: Tx, a: AnalysisLockedRow, cutoff: string) {
     throw new HttpError(422, `The data cut-off must be before the next look's cut-off (${after}).`, { issues: [{ path: "cutoffDate", message: `Must be before ${after}, the next look's cut-off.` }] });
 }
 
-/**
- * Runs a write transaction. A connection lost mid-way (server restart, killed session) surfaces
- * as a 503 that says the change was not saved: the server rolls back what was not committed.
- */
-async function write<T>(fn: (tx: Knex.Transaction) => Promise<T>): Promise<T> {
-  try {
-    return await db.transaction(fn);
-  } catch (e) {
-    if (e instanceof HttpError || !(e as { fatal?: boolean })?.fatal) throw e;
-    console.error("[cairn] database connection lost during a write", e);
-    throw new HttpError(503, "The database connection was lost before the change was committed, so nothing was saved. Try again in a moment.");
-  }
-}
-
 const actorFields = (actor: PublicUser) => ({ actorUserId: actor.id, actorEmail: actor.email });
 
 export async function openLookForEntry(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
   const input = openLookSchema.parse(body);
-  return write(async (tx) => {
+  return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
     if (a.status !== "planned") throw conflict(`Look ${a.look_number} is already ${a.status === "open" ? "open for entry" : a.status}.`);
     await checkCutoffOrder(tx, a, input.cutoffDate);
@@ -106,7 +91,7 @@ export async function saveArmCounts(actor: PublicUser, trialId: number, analysis
   const ctx = await loadLookContext(trialId, analysisId);
   const input = saveCountsSchema({ armIds: ctx.arms.map((x) => x.id), safetyRule: ctx.safetyRule }).parse(body);
   const counts: ArmCountsInput[] = input.counts.map((c) => ({ armId: c.armId, enrolled: c.enrolled, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities ?? null }));
-  return write(async (tx) => {
+  return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
     requireOpenForEntry(a);
     await checkCutoffOrder(tx, a, input.cutoffDate);
@@ -178,7 +163,7 @@ export async function confirmPatientUpload(actor: PublicUser, trialId: number, a
   if (!result.ok || !preview.ok)
     throw new HttpError(422, "The file has problems, so nothing was saved. Correct them and upload it again.", { issues: preview.ok ? [] : preview.issues, issueCount: result.ok ? 0 : result.issueCount });
   const fileSha256 = createHash("sha256").update(bytes).digest("hex");
-  return write(async (tx) => {
+  return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, opts.rowVersion);
     requireOpenForEntry(a);
     // The cut-off the file was checked against must still be the look's cut-off.
@@ -211,7 +196,7 @@ export async function lockAnalysis(actor: PublicUser, trialId: number, analysisI
   const input = lockAnalysisSchema.parse(body);
   await confirmSigner(actor, input.password);
   const ctx = await loadLookContext(trialId, analysisId);
-  return write(async (tx) => {
+  return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
     requireOpenForEntry(a);
     const counts = await fetchArmCounts(a.id, tx);
@@ -245,7 +230,7 @@ export async function lockAnalysis(actor: PublicUser, trialId: number, analysisI
 /** Reopens a locked look for a correction: needs a reason, counts as an amendment. */
 export async function reopenAnalysis(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
   const input = reopenAnalysisSchema.parse(body);
-  return write(async (tx) => {
+  return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
     if (a.status === "reviewed") throw conflict(`Look ${a.look_number} has been reviewed by the DMC; it cannot be reopened here.`);
     if (a.status !== "locked") throw conflict(`Look ${a.look_number} is not locked, so there is nothing to reopen.`);
