@@ -4,7 +4,6 @@
  * question's one-arm posterior (one query), which must agree with the full closed review.
  */
 import { beforeAll, describe, expect, it, vi } from "vitest";
-import { HttpError } from "@/lib/http";
 import { StatsDomainError } from "@/lib/stats/validate";
 import { insertDesignVersion, markDesignLocked } from "@/db/queries/designs";
 import { insertSignature } from "@/db/queries/signatures";
@@ -12,6 +11,7 @@ import { createPlannedLooks } from "@/db/queries/analyses";
 import { replaceArmCounts } from "@/db/queries/closed";
 import type { TwoArmDesign } from "@/lib/stats/types";
 import type { TrialRow } from "@/db/types";
+import { statusOf } from "./support/status";
 import { db, giveRole, makeTrial, makeUser, resetDatabase } from "./support/db";
 
 let signedIn: number | null = null;
@@ -35,15 +35,6 @@ const DESIGN: TwoArmDesign = {
   safety: null,
 };
 
-async function statusOf(p: Promise<unknown>): Promise<number> {
-  try {
-    await p;
-    return 200;
-  } catch (e) {
-    if (e instanceof HttpError) return e.status;
-    throw e;
-  }
-}
 
 let trial: TrialRow;
 let otherTrialId: number;

@@ -11,6 +11,7 @@ import { amendDesign, createDraftDesign, createTrial, designSignedRecord, lockDe
 import { defaultDesign } from "@/lib/design/form-model";
 import { expandLooks } from "@/lib/stats/looks";
 import type { SingleArmDesign } from "@/lib/stats/types";
+import { statusOf } from "./support/status";
 import { giveRole, makeTrial, makeUser, resetDatabase, db } from "./support/db";
 
 type User = Awaited<ReturnType<typeof makeUser>>;
@@ -28,16 +29,6 @@ async function counts() {
     ["designs", "signatures", "analyses", "audit_events"].map(async (t) => Number((await db(t).count({ n: "*" }).first())?.n ?? 0)),
   );
   return { designs: d, signatures: s, analyses: a, audit: e };
-}
-async function statusOf(p: Promise<unknown>): Promise<number> {
-  try {
-    await p;
-    return 200;
-  } catch (e) {
-    if (e instanceof HttpError) return e.status;
-    if ((e as Error).name === "ZodError") return 422;
-    throw e;
-  }
 }
 
 const design: SingleArmDesign = { ...(defaultDesign("single") as SingleArmDesign), looks: { kind: "list", sizes: [10, 20, 30] }, nMax: 40 };
