@@ -2,11 +2,6 @@ import "server-only";
 import { db, type Tx } from "../knex";
 import type { TrialRole } from "../types";
 
-export async function fetchRolesOnTrial(userId: number, trialId: number, tx: Tx = db): Promise<TrialRole[]> {
-  const rows = await tx("trial_memberships").where({ user_id: userId, trial_id: trialId }).select("role");
-  return rows.map((r: { role: TrialRole }) => r.role);
-}
-
 export async function fetchAnyRoleHeld(userId: number, role: TrialRole, tx: Tx = db): Promise<boolean> {
   const row = await tx("trial_memberships").where({ user_id: userId, role }).first("id");
   return Boolean(row);
