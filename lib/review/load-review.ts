@@ -67,6 +67,8 @@ export async function loadArmPosterior(trial: TrialRow, analysisId: number, armI
   const row = await fetchArmAtLook(trial.id, analysisId, armId);
   if (!row) throw notFoundError("That analysis");
   if (!REVIEWABLE.has(row.status)) throw conflict(NOT_LOCKED);
+  // An arm of another trial, or a look without counts, reaches armPosterior empty, which refuses it
+  // with the same domain error (422) the full review gives.
   const arms = row.arm_id === null ? [] : [{ id: row.arm_id, label: row.arm_label!, role: row.arm_role! }];
   const counts =
     row.arm_id === null || row.evaluable === null

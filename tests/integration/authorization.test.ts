@@ -5,7 +5,7 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { checkTrialAccess } from "@/lib/auth";
 import type { Capability } from "@/lib/auth/permissions";
-import { HttpError } from "@/lib/http";
+import { statusOf as callStatus } from "./support/status";
 import { giveRole, makeTrial, makeUser, resetDatabase, db } from "./support/db";
 import type { PublicUser, TrialRole } from "@/db/types";
 
@@ -20,15 +20,7 @@ const EXPECTED: Record<TrialRole | "admin", Capability[]> = {
   coordinator: ["viewOpen", "manageMeetings", "viewAuditOpen"],
 };
 
-async function statusOf(user: PublicUser, trialId: number, cap: Capability): Promise<number> {
-  try {
-    await checkTrialAccess(user, trialId, cap);
-    return 200;
-  } catch (e) {
-    if (e instanceof HttpError) return e.status;
-    throw e;
-  }
-}
+const statusOf = (user: PublicUser, trialId: number, cap: Capability) => callStatus(checkTrialAccess(user, trialId, cap));
 
 let trialId: number;
 let otherTrialId: number;
