@@ -25,7 +25,7 @@ const nextConfig = {
   // checking again inside the build would only repeat it.
   typescript: { ignoreBuildErrors: true },
   // The proxy (pages and their server actions) buffers request bodies; nothing Cairn accepts there is near 6 MB.
-  experimental: { authInterrupts: true, middlewareClientMaxBodySize: "6mb" },
+  experimental: { authInterrupts: true, proxyClientMaxBodySize: "6mb" },
   async headers() {
     return [
       {

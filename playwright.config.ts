@@ -31,7 +31,8 @@ export default defineConfig({
       timeout: 30_000,
     },
     {
-      command: `npx next start -p ${port}`,
+      // Two web processes, as scripts/up runs them, so every test also crosses processes.
+      command: `node scripts/serve.mjs -p ${port} --workers 2`,
       url: `${baseURL}/api/health`,
       reuseExistingServer: false,
       timeout: 60_000,

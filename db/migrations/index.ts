@@ -21,6 +21,8 @@ import * as m20 from "./20261202002000_create_meetings";
 import * as m21 from "./20261202002100_create_meeting_attendees";
 import * as m22 from "./20261202002200_create_packets";
 import * as m23 from "./20261202002300_create_email_messages";
+import * as m24 from "./20261202002400_create_calibration_jobs";
+import * as m25 from "./20261202002500_create_sign_in_failures";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
 const migrations: Array<[string, Migration]> = [
@@ -42,6 +44,8 @@ const migrations: Array<[string, Migration]> = [
   ["20261202002100_create_meeting_attendees", m21],
   ["20261202002200_create_packets", m22],
   ["20261202002300_create_email_messages", m23],
+  ["20261202002400_create_calibration_jobs", m24],
+  ["20261202002500_create_sign_in_failures", m25],
 ];
 
 export const migrationSource: Knex.MigrationSource<[string, Migration]> = {

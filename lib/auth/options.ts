@@ -5,14 +5,15 @@ import bcrypt from "bcryptjs";
 import { z } from "zod";
 import { fetchUserByEmail } from "@/db/queries/users";
 import { recordAuditEvent } from "@/db/audit";
-import { FailureWindow, SIGN_IN_LIMITS, tooManyAttemptsMessage } from "./rate-limit";
+import { tooManyAttemptsMessage } from "./rate-limit";
+import { clearAccountFailures, recordSignInFailure, signInWaitMs } from "./sign-in-throttle";
 
-const accountFailures = new FailureWindow(SIGN_IN_LIMITS.perAccount);
-const addressFailures = new FailureWindow(SIGN_IN_LIMITS.perAddress);
+/** Longer than any IPv6 address with a zone; a longer header value is cut, not trusted further. */
+const MAX_ADDRESS_LENGTH = 100;
 
 function clientAddress(headers: Record<string, unknown> | undefined): string {
   const fwd = String(headers?.["x-forwarded-for"] ?? "").split(",")[0].trim();
-  return fwd || String(headers?.["x-real-ip"] ?? "local");
+  return (fwd || String(headers?.["x-real-ip"] ?? "local")).slice(0, MAX_ADDRESS_LENGTH);
 }
 
 export const signInSchema = z.object({
@@ -39,14 +40,13 @@ export const authOptions: NextAuthOptions = {
         const { email, password } = parsed.data;
         const account = email.toLowerCase();
         const address = clientAddress(req?.headers as Record<string, unknown> | undefined);
-        const wait = Math.max(accountFailures.blockedFor(account), addressFailures.blockedFor(address));
+        const wait = await signInWaitMs(account, address);
         // next-auth passes a thrown error's message to the sign-in form.
         if (wait > 0) throw new Error(tooManyAttemptsMessage(wait));
         const user = await fetchUserByEmail(email);
         const ok = await bcrypt.compare(password, user?.password_hash ?? DUMMY_HASH);
         if (!user || !ok || !user.is_active) {
-          accountFailures.recordFailure(account);
-          addressFailures.recordFailure(address);
+          await recordSignInFailure(account, address);
           await recordAuditEvent({
             actorUserId: user?.id ?? null,
             actorEmail: email.toLowerCase(),
@@ -58,7 +58,7 @@ export const authOptions: NextAuthOptions = {
           });
           return null;
         }
-        accountFailures.reset(account);
+        await clearAccountFailures(account);
         await recordAuditEvent({
           actorUserId: user.id,
           actorEmail: user.email,

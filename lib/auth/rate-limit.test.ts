@@ -1,28 +1,24 @@
 import { describe, expect, it } from "vitest";
-import { FailureWindow, tooManyAttemptsMessage } from "./rate-limit";
+import { blockedForMs, tooManyAttemptsMessage } from "./rate-limit";
 
-describe("FailureWindow", () => {
+describe("blockedForMs", () => {
+  const rule = { maxFailures: 3, windowMs: 1000 };
+
   it("allows up to maxFailures failures in the window, then blocks until the oldest one ages out", () => {
-    let t = 0;
-    const w = new FailureWindow({ maxFailures: 3, windowMs: 1000 }, () => t);
-    for (let i = 0; i < 3; i++) {
-      expect(w.blockedFor("a")).toBe(0);
-      w.recordFailure("a");
-      t += 100;
-    }
+    expect(blockedForMs([], rule, 0)).toBe(0);
+    expect(blockedForMs([0, 100], rule, 200)).toBe(0);
     // failures at 0, 100, 200; now 300: blocked until 0 + 1000
-    expect(w.blockedFor("a")).toBe(700);
-    expect(w.blockedFor("b")).toBe(0);
-    t = 1001;
-    expect(w.blockedFor("a")).toBe(0);
+    expect(blockedForMs([0, 100, 200], rule, 300)).toBe(700);
+    expect(blockedForMs([0, 100, 200], rule, 1001)).toBe(0);
   });
 
-  it("a successful sign-in resets the account's count", () => {
-    const w = new FailureWindow({ maxFailures: 1, windowMs: 1000 }, () => 0);
-    w.recordFailure("a");
-    expect(w.blockedFor("a")).toBeGreaterThan(0);
-    w.reset("a");
-    expect(w.blockedFor("a")).toBe(0);
+  it("counts only the last maxFailures failures when more are on record", () => {
+    // five failures; the third-newest (at 300) decides: blocked until 1300
+    expect(blockedForMs([100, 200, 300, 400, 500], rule, 600)).toBe(700);
+  });
+
+  it("ignores failures that have left the window, however many", () => {
+    expect(blockedForMs([0, 1, 2, 3, 4, 5], rule, 2000)).toBe(0);
   });
 
   it("says how long to wait, in whole minutes", () => {

@@ -1,43 +1,19 @@
 /**
  * Sign-in throttling: failed attempts counted per account and per client address in a sliding
- * window. Kept in the server process's memory, which suits Cairn's single-instance deployment; a
- * restart forgets the counts (documented in DEVELOPERS.md).
+ * window. The failures are kept in MariaDB (db/queries/sign-in-failures.ts) so that every web
+ * process counts the same attempts and a restart forgets nothing; the rule itself is pure.
  */
 export type RateLimitRule = { maxFailures: number; windowMs: number };
 
-export class FailureWindow {
-  private readonly failures = new Map<string, number[]>();
-  constructor(
-    private readonly rule: RateLimitRule,
-    private readonly now: () => number = Date.now,
-  ) {}
-
-  private recent(key: string): number[] {
-    const cutoff = this.now() - this.rule.windowMs;
-    const list = (this.failures.get(key) ?? []).filter((t) => t > cutoff);
-    if (list.length) this.failures.set(key, list);
-    else this.failures.delete(key);
-    return list;
-  }
-
-  /** Milliseconds until another attempt is allowed, or 0 when allowed now. */
-  blockedFor(key: string): number {
-    const list = this.recent(key);
-    if (list.length < this.rule.maxFailures) return 0;
-    return list[list.length - this.rule.maxFailures] + this.rule.windowMs - this.now();
-  }
-
-  recordFailure(key: string): void {
-    const list = this.recent(key);
-    list.push(this.now());
-    this.failures.set(key, list);
-    // Bound memory under a flood of distinct keys.
-    if (this.failures.size > 50_000) this.failures.delete(this.failures.keys().next().value as string);
-  }
-
-  reset(key: string): void {
-    this.failures.delete(key);
-  }
+/**
+ * Milliseconds until another attempt is allowed (0 when allowed now), given the times of the
+ * failures still in the window, oldest first: after maxFailures of them, the next attempt waits
+ * until the oldest of the last maxFailures leaves the window.
+ */
+export function blockedForMs(failureTimes: readonly number[], rule: RateLimitRule, now: number): number {
+  const recent = failureTimes.filter((t) => t > now - rule.windowMs);
+  if (recent.length < rule.maxFailures) return 0;
+  return Math.max(0, recent[recent.length - rule.maxFailures] + rule.windowMs - now);
 }
 
 export const SIGN_IN_LIMITS = {

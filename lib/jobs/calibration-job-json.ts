@@ -1,4 +1,49 @@
-import type { CalibrationJob } from "./calibration-jobs";
+/** Calibration jobs as the app sees them (from their calibration_jobs row) and as the API sends them. */
+import type { CalibratedDesign } from "@/lib/stats/calibration";
+import type { CalibrationJobRow } from "@/db/queries/calibration-jobs";
+
+export type CalibrationJobStatus = "running" | "done" | "cancelled" | "failed";
+
+export type CalibrationJob = {
+  id: string;
+  trialId: number;
+  userId: number;
+  status: CalibrationJobStatus;
+  /** Fraction of the grid searched, in [0, 1]. */
+  progress: number;
+  startedAt: string;
+  finishedAt: string | null;
+  total: number;
+  evaluated: number;
+  feasible: number;
+  best: CalibratedDesign[];
+  error: string | null;
+  cancelRequested: boolean;
+};
+
+/** A running job not touched for this long belongs to a process that ended. */
+export const STALE_AFTER_MS = 30_000;
+export const ABANDONED_MESSAGE = "The server process running this search stopped before it finished; start the search again.";
+
+/** The job as callers see it; pure, so the staleness rule is unit-tested. */
+export function calibrationJobFromRow(r: CalibrationJobRow, now: Date): CalibrationJob {
+  const abandoned = r.status === "running" && now.getTime() - new Date(r.heartbeat_at).getTime() > STALE_AFTER_MS;
+  return {
+    id: r.id,
+    trialId: r.trial_id,
+    userId: r.user_id,
+    status: abandoned ? "failed" : r.status,
+    progress: Number(r.progress),
+    startedAt: new Date(r.started_at).toISOString(),
+    finishedAt: r.finished_at ? new Date(r.finished_at).toISOString() : abandoned ? new Date(r.heartbeat_at).toISOString() : null,
+    total: r.total,
+    evaluated: r.evaluated,
+    feasible: r.feasible,
+    best: JSON.parse(r.best_json) as CalibratedDesign[],
+    error: abandoned ? ABANDONED_MESSAGE : r.error,
+    cancelRequested: !!r.cancel_requested,
+  };
+}
 
 /** The API shape of a calibration job (the cancel flag is internal). */
 export function calibrationJobJson(j: CalibrationJob) {

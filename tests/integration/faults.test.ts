@@ -2,8 +2,10 @@
  * Faults: MariaDB goes away under a running production server, then comes back. Requests fail with a
  * clear message and write nothing; the app recovers by itself within 10 s. Then an unclean stop
  * (kill -9): the start function of scripts/up brings the same data directory back.
- * Uses a scratch MariaDB instance (own data directory and port) and its own `next start`, so the
- * other tests' database is never touched. Needs a production build (scripts/test builds first).
+ * A web process killed outright is replaced by the launcher while the other keeps answering.
+ * Uses a scratch MariaDB instance (own data directory and port) and its own launcher
+ * (scripts/serve.mjs, two web processes, as scripts/up runs it), so the other tests' database is
+ * never touched. Needs a production build (scripts/test builds first).
  */
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { execFileSync, spawn, type ChildProcess } from "node:child_process";
@@ -45,12 +47,19 @@ async function waitFor(fn: () => Promise<boolean>, ms: number): Promise<number> 
   throw new Error(`not within ${ms} ms`);
 }
 const healthy = async () => (await fetch(`${base}/api/health`)).status === 200;
+/** Requests go round the web processes in turn: several answers in a row mean every process answers. */
+async function everyProcessAnswers(url: string, headers: Record<string, string> = {}): Promise<boolean> {
+  // A connection handed to a process at the moment it is killed is lost with it, hence the timeout.
+  for (let i = 0; i < 6; i++) if ((await fetch(url, { headers, signal: AbortSignal.timeout(3000) })).status !== 200) return false;
+  return true;
+}
+const webProcesses = () => sh(`pgrep -P ${app!.pid} || true`).trim().split("\n").filter(Boolean).map(Number);
 
 beforeAll(async () => {
   if (!built) return;
   sh("start_mariadb; ensure_database cairn_fault; migrate_database cairn_fault");
   execFileSync("npx", ["tsx", "--conditions=react-server", "scripts/seed.ts"], { cwd: root, env: { ...env, ...secrets() }, stdio: "pipe" });
-  app = spawn("npx", ["next", "start", "-p", String(APP_PORT)], { cwd: root, env: { ...env, ...secrets(), NODE_ENV: "production", NEXTAUTH_URL: base }, stdio: "ignore", detached: true });
+  app = spawn("node", ["scripts/serve.mjs", "-p", String(APP_PORT), "--workers", "2"], { cwd: root, env: { ...env, ...secrets(), NODE_ENV: "production", NEXTAUTH_URL: base }, stdio: "ignore", detached: true });
   await waitFor(healthy, 60_000);
 }, 180_000);
 
@@ -111,10 +120,29 @@ describe.skipIf(!built)("database outage", () => {
     expect(await upload.text()).toMatch(/database is not reachable/i);
 
     sh("start_mariadb");
-    const recoveredIn = await waitFor(async () => (await fetch(`${base}/api/trials/1/open-status`, { headers: { cookie } })).status === 200, 10_000);
+    const recoveredIn = await waitFor(() => everyProcessAnswers(`${base}/api/trials/1/open-status`, { cookie }), 10_000);
     expect(recoveredIn).toBeLessThan(10_000);
     expect(rowCounts(), "recommendations, signatures, patient rows and audit rows are as before the outage").toBe(countsBefore);
     console.log(`[faults] answered again ${recoveredIn} ms after MariaDB came back (limit 10,000 ms)`);
+  }, 60_000);
+
+  it("a web process killed outright is replaced, and the other answers meanwhile", async () => {
+    const before = webProcesses();
+    expect(before).toHaveLength(2);
+    process.kill(before[0], "SIGKILL");
+    await new Promise((r) => setTimeout(r, 300));
+    // Fresh connections only: a kept-alive socket to the killed process would fail whatever the server did.
+    for (let i = 0; i < 6; i++) expect((await fetch(`${base}/api/health`, { headers: { connection: "close" }, signal: AbortSignal.timeout(3000) })).status).toBe(200);
+    const replacement = await waitFor(async () => {
+      const now = webProcesses();
+      return now.length === 2 && !now.includes(before[0]);
+    }, 10_000);
+    // Now the other original goes too: what answers after this is the replacement.
+    process.kill(before[1], "SIGKILL");
+    const t0 = Date.now();
+    await waitFor(() => everyProcessAnswers(`${base}/api/health`, { connection: "close" }), 30_000);
+    console.log(`[faults] a killed web process was forked again after ${replacement} ms; with both originals killed, the replacements answered ${Date.now() - t0} ms later`);
+    expect(webProcesses().filter((pid) => before.includes(pid))).toEqual([]);
   }, 60_000);
 
   it("after an unclean stop (kill -9), the start function brings the same data back", async () => {

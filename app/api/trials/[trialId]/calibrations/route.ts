@@ -2,7 +2,7 @@ import { NextResponse } from "next/server";
 import { requireTrialAccess } from "@/lib/auth";
 import { HttpError, handle, readJson } from "@/lib/http";
 import { calibrationBodySchema, expandGrid, parseDesignForTrial } from "@/lib/design/api-schemas";
-import { MAX_RUNNING_JOBS, runningJobCount, startCalibrationJob } from "@/lib/jobs/calibration-jobs";
+import { startCalibrationJob } from "@/lib/jobs/calibration-jobs";
 import { calibrationJobJson } from "@/lib/jobs/calibration-job-json";
 
 export const dynamic = "force-dynamic";
@@ -18,8 +18,7 @@ export const POST = handle(async (req: Request, ctx: Ctx) => {
   const design = parseDesignForTrial(body.spec, trial.design_type);
   if (design.arms !== "single") throw new HttpError(422, "Calibration searches single-arm designs only; for two arms, adjust the thresholds and read the live operating characteristics.");
   if (body.thetaU && !design.rule.efficacyStopping) throw new HttpError(422, "Switch efficacy stopping on to search efficacy thresholds, or leave that grid empty.", { field: "thetaU" });
-  if (runningJobCount() >= MAX_RUNNING_JOBS) throw new HttpError(429, "Other calibrations are running on the server just now; try again in a minute.");
-  const job = startCalibrationJob({
+  const job = await startCalibrationJob({
     trialId: trial.id,
     userId: user.id,
     design,

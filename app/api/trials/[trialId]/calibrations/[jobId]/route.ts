@@ -11,7 +11,7 @@ type Ctx = { params: Promise<{ trialId: string; jobId: string }> };
 export const GET = handle(async (_req: Request, ctx: Ctx) => {
   const p = await ctx.params;
   const { trial } = await requireTrialAccess(Number(p.trialId), "editDesign");
-  const job = getCalibrationJob(trial.id, p.jobId);
+  const job = await getCalibrationJob(trial.id, p.jobId);
   if (!job) throw notFoundError("That calibration");
   return NextResponse.json({ job: calibrationJobJson(job) });
 });
@@ -20,7 +20,7 @@ export const GET = handle(async (_req: Request, ctx: Ctx) => {
 export const DELETE = handle(async (_req: Request, ctx: Ctx) => {
   const p = await ctx.params;
   const { trial } = await requireTrialAccess(Number(p.trialId), "editDesign");
-  const job = cancelCalibrationJob(trial.id, p.jobId);
+  const job = await cancelCalibrationJob(trial.id, p.jobId);
   if (!job) throw notFoundError("That calibration");
   return NextResponse.json({ job: calibrationJobJson(job) });
 });
