@@ -9,9 +9,9 @@
  *
  * The primary restarts a worker that dies, and replaces one whose memory passes a ceiling: the
  * replacement starts first, then the old process stops taking connections, finishes what it has
- * and exits, so no request is refused. Under many concurrent page renders Next.js keeps part of
- * each request's context alive (measured: about 100 MB after 1,500 renders at 50 at once, then
- * slow growth); the ceiling bounds that whatever its cause. SIGTERM/SIGINT stop everything.
+ * and exits, so no request is refused. The ceiling is a safety net: the one retention found under
+ * concurrent page renders is cut at its source (lib/runtime/abort-reason.ts, installed by
+ * instrumentation.ts), and anything like it found later is still bounded. SIGTERM/SIGINT stop everything.
  *
  * Settings: --workers, else CAIRN_WEB_WORKERS, else the number of CPUs (at most 4);
  * CAIRN_WEB_MAX_RSS_MB (default 1536) per process; CAIRN_WEB_MEMORY_CHECK_MS (default 15000).

@@ -5,7 +5,7 @@ import "server-only";
  *
  * The worker files are the bundles scripts/build-workers.mjs writes to .workers/ before
  * `next build` (Turbopack bundles server code, and a worker thread needs a file plain Node can
- * load). Threads are used in production (`next start`) or with CAIRN_WORKERS=on; under `next dev`
+ * load). Threads are used in production (`scripts/serve.mjs`, `next start`) or with CAIRN_WORKERS=on; under `next dev`
  * and the test runners the same function runs in this process, because a bundle left by an
  * earlier build would silently run yesterday's lib/stats. A production server whose bundle is
  * missing also falls back, with one log line; CAIRN_WORKERS=off forces the in-process path.
