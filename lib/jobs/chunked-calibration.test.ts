@@ -1,20 +1,10 @@
 import { describe, expect, it } from "vitest";
 import { calibrateSingleArm } from "@/lib/stats/calibration";
-import type { SingleArmDesign } from "@/lib/stats/types";
 import { runChunkedCalibration } from "./chunked-calibration";
+import { smallDesign, smallGrid } from "@/lib/jobs/test-design";
 
-const design: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "beta", a: 0.6, b: 0.4 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 30,
-  looks: { kind: "every", first: 10, every: 5 },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.99 },
-  safety: null,
-};
-const grid = { thetaTGrid: [0.8, 0.85, 0.9, 0.95], thetaLGrid: [0, 0.05, 0.1], thetaUGrid: [0.95, 0.99], typeIErrorLimit: 0.15, powerTarget: 0.75, keep: 4 };
+const design = smallDesign;
+const grid = smallGrid;
 
 describe("runChunkedCalibration", () => {
   it("finds the same best designs, in the same order, as one search over the whole grid", async () => {

@@ -6,25 +6,16 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { calibrateSingleArm } from "@/lib/stats/calibration";
 import { StatsDomainError } from "@/lib/stats/validate";
 import { designPreview } from "@/lib/design/preview";
-import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
+import type { TwoArmDesign } from "@/lib/stats/types";
 import { runChunkedCalibration } from "./chunked-calibration";
 import { WORKER_NICENESS } from "./workers/lower-priority";
 import { closeWorkerPools, runCalibrationSlice, runDesignPreview, workerBundlePresent, workerTasksCompleted } from "./pool";
+import { smallDesign, smallGrid } from "@/lib/jobs/test-design";
 
 // Builds the worker bundles exactly as `npm run build` does, into a folder of this test's own,
 // and checks that work sent to the threads gives the same answers as the in-process functions.
-const design: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "beta", a: 0.6, b: 0.4 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 30,
-  looks: { kind: "every", first: 10, every: 5 },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.99 },
-  safety: null,
-};
-const grid = { thetaTGrid: [0.8, 0.85, 0.9, 0.95], thetaLGrid: [0, 0.05, 0.1], thetaUGrid: [0.95, 0.99], typeIErrorLimit: 0.15, powerTarget: 0.75, keep: 4 };
+const design = smallDesign;
+const grid = smallGrid;
 
 let outDir = "";
 const previousDir = process.env.CAIRN_WORKERS_DIR;

@@ -13,19 +13,10 @@ import { cancelCalibrationJob, getCalibrationJob, MAX_RUNNING_JOBS, startCalibra
 import { ABANDONED_MESSAGE, STALE_AFTER_MS } from "@/lib/jobs/calibration-job-json";
 import { HttpError } from "@/lib/http";
 import { makeTrial, makeUser, resetDatabase } from "./support/db";
+import { smallDesign, smallGrid } from "@/lib/jobs/test-design";
 
-const design: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "beta", a: 0.6, b: 0.4 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 30,
-  looks: { kind: "every", first: 10, every: 5 },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.99 },
-  safety: null,
-};
-const grid = { thetaTGrid: [0.8, 0.85, 0.9, 0.95], thetaLGrid: [0, 0.05, 0.1], thetaUGrid: [0.95, 0.99], typeIErrorLimit: 0.15, powerTarget: 0.75, keep: 4 };
+const design = smallDesign;
+const grid = smallGrid;
 
 let trialId: number;
 let otherTrialId: number;
