@@ -88,6 +88,6 @@ export async function requestCalibrationCancel(trialId: number, id: string): Pro
 }
 
 /** Deletes finished jobs, and abandoned ones, last touched before `before`. */
-export async function pruneCalibrationJobs(tx: Tx, before: Date): Promise<number> {
+export async function pruneCalibrationJobs(before: Date, tx: Tx = db): Promise<number> {
   return tx("calibration_jobs").where("heartbeat_at", "<", before).del();
 }

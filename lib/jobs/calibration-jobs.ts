@@ -20,7 +20,6 @@ import {
   requestCalibrationCancel,
   type CalibrationProgressUpdate,
 } from "@/db/queries/calibration-jobs";
-import { db } from "@/db/knex";
 import { HttpError } from "@/lib/http";
 import { calibrationJobFromRow, STALE_AFTER_MS, type CalibrationJob } from "./calibration-job-json";
 import { runChunkedCalibration, type ChunkedCalibrationInput, type ChunkedProgress } from "./chunked-calibration";
@@ -42,7 +41,7 @@ const progressUpdate = (s: ChunkedProgress): CalibrationProgressUpdate => ({ pro
  */
 export async function startCalibrationJob(args: { trialId: number; userId: number; design: SingleArmDesign } & Omit<ChunkedCalibrationInput, "design">): Promise<CalibrationJob> {
   const now = new Date();
-  await pruneCalibrationJobs(db, new Date(now.getTime() - KEEP_MS));
+  await pruneCalibrationJobs(new Date(now.getTime() - KEEP_MS));
   const id = randomUUID();
   const total = args.thetaTGrid.length * args.thetaLGrid.length * (args.thetaUGrid ? args.thetaUGrid.length : 1);
   const admitted = await insertCalibrationJobIfRoom({ id, trialId: args.trialId, userId: args.userId, total, now }, MAX_RUNNING_JOBS, new Date(now.getTime() - STALE_AFTER_MS));
