@@ -4,9 +4,13 @@
  * Signs in as the demo DMC member, then for each target route runs `connections` concurrent
  * keep-alive clients for `seconds` and prints requests/s, p50/p95/p99 latency (exact, from every
  * response time) and errors, after an unrecorded 5 s warm-up per route. With --during-calibration a 40 x 40 calibration runs on the server at
- * the same time, to show that CPU-heavy work stays off the request path.
+ * the same time, to show that CPU-heavy work stays off the request path. Against the server that
+ * `scripts/up` started, it ends with the resident memory of each web process.
  */
 import autocannon from "autocannon";
+import { execFileSync } from "node:child_process";
+import { existsSync, readFileSync } from "node:fs";
+import path from "node:path";
 import { signInCookie } from "../tests/support/http-session";
 
 function arg(name: string, fallback: string): string {
@@ -124,3 +128,34 @@ loadFinished = true;
 await calibration;
 console.log(`\nLoad test ${new Date().toISOString()} · ${connections} connections · ${seconds} s per route after a ${WARM_UP_SECONDS} s warm-up${duringCalibration ? " · during a calibration" : ""}`);
 console.table(rows);
+
+/** Resident memory of the web processes `scripts/up` started (its launcher's children), if this is that server. */
+function webProcessMemory(): string | null {
+  const pidFile = path.join(process.env.CAIRN_RUN_DIR ?? path.resolve(import.meta.dirname, "../.run"), "web.pid");
+  const host = new URL(base).hostname;
+  if (!existsSync(pidFile) || !["localhost", "127.0.0.1", "::1"].includes(host)) return null;
+  try {
+    const children = (pid: string): string[] => {
+      try {
+        return execFileSync("pgrep", ["-P", pid]).toString().trim().split("\n").filter(Boolean);
+      } catch {
+        return [];
+      }
+    };
+    // The pid file names the launcher's wrapper; the web processes are the leaves below it.
+    const leaves = (pid: string): string[] => {
+      const c = children(pid);
+      return c.length ? c.flatMap(leaves) : [pid];
+    };
+    const workers = leaves(readFileSync(pidFile, "utf8").trim());
+    const mb = workers.map((pid) => {
+      const kb = Number(/VmRSS:\s+(\d+)/.exec(readFileSync(`/proc/${pid}/status`, "utf8"))?.[1]);
+      return `${pid}: ${Math.round(kb / 1024)} MB`;
+    });
+    return mb.length ? mb.join(", ") : null;
+  } catch {
+    return null;
+  }
+}
+const memory = webProcessMemory();
+if (memory) console.log(`Web processes' resident memory after the run: ${memory}`);
