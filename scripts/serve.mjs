@@ -54,6 +54,8 @@ if (cluster.isPrimary) {
   const startedAt = new Map();
   /** Workers whose successor is already running. */
   const replaced = new Set();
+  /** Successors not yet listening: if one ends, the process it was to replace simply stays. */
+  const successors = new Set();
   const fork = () => {
     const w = cluster.fork({ CAIRN_WEB_WORKER: "1" });
     startedAt.set(w.id, Date.now());
@@ -69,10 +71,12 @@ if (cluster.isPrimary) {
     console.log(`[cairn] web process ${old.process.pid} uses ${Math.round(rss / 1048576)} MB; replacing it`);
     replaced.add(old.id);
     const fresh = fork();
+    successors.add(fresh.id);
     const done = () => {
       replacing = false;
     };
     fresh.once("listening", () => {
+      successors.delete(fresh.id);
       // Every kept-alive connection either carries one more request, answered with
       // "Connection: close", or stays idle past the server's keep-alive timeout and is closed
       // as usual; only then does the old process stop.
@@ -101,8 +105,9 @@ if (cluster.isPrimary) {
     }
     const early = Date.now() - (startedAt.get(worker.id) ?? 0) < EARLY_EXIT_MS;
     startedAt.delete(worker.id);
-    // A process replaced for its memory has its successor already.
-    if (replaced.delete(worker.id) || worker.exitedAfterDisconnect) return;
+    // A process replaced for its memory has its successor already; a successor that failed to
+    // start leaves its predecessor serving (it asks again at its next memory check).
+    if (replaced.delete(worker.id) || successors.delete(worker.id) || worker.exitedAfterDisconnect) return;
     earlyExits = early ? earlyExits + 1 : 0;
     if (earlyExits >= MAX_EARLY_EXITS) {
       console.error(`[cairn] web processes keep ending at start (last: ${signal ?? code}); giving up (see the messages above)`);
