@@ -23,8 +23,9 @@ export async function up(knex: Knex): Promise<void> {
     t.dateTime("started_at", { precision: 3 }).notNullable();
     t.dateTime("heartbeat_at", { precision: 3 }).notNullable();
     t.dateTime("finished_at", { precision: 3 }).nullable();
+    // Admission counts live running jobs; pruning deletes by last touch.
     t.index(["status", "heartbeat_at"]);
-    t.index(["finished_at"]);
+    t.index(["heartbeat_at"]);
   });
 }
 

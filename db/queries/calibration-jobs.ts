@@ -53,10 +53,13 @@ export async function insertCalibrationJobIfRoom(job: NewCalibrationJob, maxRunn
 
 export type CalibrationProgressUpdate = { progress: number; evaluated: number; feasible: number; bestJson: string };
 
+const progressColumns = (p: CalibrationProgressUpdate) => ({ progress: p.progress, evaluated: p.evaluated, feasible: p.feasible, best_json: p.bestJson });
+
 /** Records progress and a heartbeat; answers whether a cancel has been asked for. */
 export async function recordCalibrationProgress(id: string, p: CalibrationProgressUpdate | null, now: Date): Promise<boolean> {
-  const values = p ? { progress: p.progress, evaluated: p.evaluated, feasible: p.feasible, best_json: p.bestJson } : {};
-  await db("calibration_jobs").where({ id, status: "running" }).update({ ...values, heartbeat_at: now });
+  await db("calibration_jobs")
+    .where({ id, status: "running" })
+    .update({ ...(p ? progressColumns(p) : {}), heartbeat_at: now });
   const row = (await db("calibration_jobs").where({ id }).first("cancel_requested")) as { cancel_requested: number } | undefined;
   return !!row?.cancel_requested;
 }
@@ -66,7 +69,6 @@ export async function finishCalibrationJob(
   outcome: { status: "done" | "cancelled" | "failed"; error: string | null; progress?: CalibrationProgressUpdate },
   now: Date,
 ): Promise<void> {
-  const p = outcome.progress;
   await db("calibration_jobs")
     .where({ id, status: "running" })
     .update({
@@ -74,7 +76,7 @@ export async function finishCalibrationJob(
       error: outcome.error,
       finished_at: now,
       heartbeat_at: now,
-      ...(p ? { progress: p.progress, evaluated: p.evaluated, feasible: p.feasible, best_json: p.bestJson } : {}),
+      ...(outcome.progress ? progressColumns(outcome.progress) : {}),
     });
 }
 

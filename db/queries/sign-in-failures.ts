@@ -3,9 +3,10 @@ import "server-only";
 import { db, writeTransaction } from "../knex";
 
 export type SignInScope = "account" | "address";
+export type SignInSubject = { scope: SignInScope; subject: string };
 
 /** Times (ms) of the failures after `since` for each of the given subjects, oldest first. */
-export async function fetchSignInFailureTimes(subjects: { scope: SignInScope; subject: string }[], since: Date): Promise<Record<SignInScope, number[]>> {
+export async function fetchSignInFailureTimes(subjects: SignInSubject[], since: Date): Promise<Record<SignInScope, number[]>> {
   const out: Record<SignInScope, number[]> = { account: [], address: [] };
   if (!subjects.length) return out;
   const rows = (await db("sign_in_failures")
@@ -20,7 +21,7 @@ export async function fetchSignInFailureTimes(subjects: { scope: SignInScope; su
 }
 
 /** Records one failure for each subject and forgets failures older than `forgetBefore`. */
-export async function insertSignInFailures(subjects: { scope: SignInScope; subject: string }[], at: Date, forgetBefore: Date): Promise<void> {
+export async function insertSignInFailures(subjects: SignInSubject[], at: Date, forgetBefore: Date): Promise<void> {
   await writeTransaction(async (tx) => {
     await tx("sign_in_failures").insert(subjects.map((s) => ({ scope: s.scope, subject: s.subject, failed_at: at })));
     await tx("sign_in_failures").where("failed_at", "<", forgetBefore).del();
