@@ -58,10 +58,11 @@ function Stat({ label, value, testId, note }: { label: string; value: string; te
 
 const fmtN = (v: number) => v.toFixed(1);
 
-function OcSummaryBlock({ p, nullLabel, targetLabel }: { p: DesignPreview; nullLabel: string; targetLabel: string }) {
+function OcSummaryBlock({ p, nullLabel, targetLabel, typeILabel, typeINote, extra }: { p: DesignPreview; nullLabel: string; targetLabel: string; typeILabel?: string; typeINote?: string; extra?: React.ReactNode }) {
   return (
     <dl className="grid grid-cols-2 gap-2 sm:grid-cols-3" aria-label="Operating characteristics">
-      <Stat label={`Type I error (${nullLabel})`} value={formatProbability(p.typeIError)} testId="oc-type-i-error" />
+      <Stat label={typeILabel ?? `Type I error (${nullLabel})`} value={formatProbability(p.typeIError)} testId="oc-type-i-error" note={typeINote} />
+      {extra}
       <Stat label={`Power (${targetLabel})`} value={formatProbability(p.power)} testId="oc-power" />
       <Stat label={`Early termination (${nullLabel})`} value={formatProbability(p.atNull.pEarlyTermination)} testId="oc-pet-null" />
       <Stat label={`Expected sample size (${nullLabel})`} value={fmtN(p.atNull.expectedSampleSize)} testId="oc-en-null" note={p.arms === "two" ? "per arm" : undefined} />
@@ -135,7 +136,21 @@ function TwoArmResult({ p, design }: { p: TwoArmPreview; design: Extract<Design,
   });
   return (
     <>
-      <OcSummaryBlock p={p} nullLabel={`both arms at ${design.controlRate}`} targetLabel={`${design.experimentalRate} vs ${design.controlRate}`} />
+      <OcSummaryBlock
+        p={p}
+        typeILabel={`Type I error at ${nullBoundaryText(p.delta)}, maximum over control rates from ${p.controlRateRange.from} to ${p.controlRateRange.to}`}
+        typeINote={`largest at pC = ${p.typeIErrorMaxAt.controlRate}, pT = ${p.typeIErrorMaxAt.experimentalRate}`}
+        extra={
+          <Stat
+            label={`Type I error at the assumed control rate (pC = ${design.controlRate}, pT = ${p.typeIErrorAtControlRate === null ? "outside 0–1" : p.nullPoint.experimentalRate})`}
+            value={p.typeIErrorAtControlRate === null ? "—" : formatProbability(p.typeIErrorAtControlRate)}
+            testId="oc-type-i-error-at-control"
+          />
+        }
+        nullLabel={`on the null boundary at pC = ${p.nullPoint.controlRate}, pT = ${p.nullPoint.experimentalRate}`}
+        targetLabel={`pT = ${design.experimentalRate}, pC = ${design.controlRate}`}
+      />
+      <NullBoundaryCurve p={p} />
       <h3 className="mt-2 text-sm font-semibold">Stopping boundaries (per look, given the control arm&apos;s responders)</h3>
       <DataGrid rows={rows} columns={TWO_COLUMNS} label="Stopping boundaries" height={320} csvFileName="cairn-boundaries-two-arm.csv" />
       {p.safety ? (
@@ -146,6 +161,26 @@ function TwoArmResult({ p, design }: { p: TwoArmPreview; design: Extract<Design,
       <CairnPlot title="Experimental responders that stop, against control responders, by look" data={data} layout={{ xaxis: { title: { text: "Control responders" } }, yaxis: { title: { text: "Experimental responders" }, rangemode: "tozero" } }} fileName="cairn-boundaries-two-arm" />
       <OcCurve p={p} xLabel={`True experimental rate (control at ${design.controlRate})`} marks={[design.controlRate, design.experimentalRate]} />
     </>
+  );
+}
+
+/** The null hypothesis boundary in words: pT = pC + δ with δ's value (δ = 0 reads pT = pC). */
+function nullBoundaryText(delta: number): string {
+  return delta === 0 ? "pT = pC (δ = 0)" : `pT = pC + δ (δ = ${delta})`;
+}
+
+/** Type I error along the null boundary pT = pC + δ against the control rate: where the maximum sits. */
+function NullBoundaryCurve({ p }: { p: TwoArmPreview }) {
+  return (
+    <CairnPlot
+      title={`Type I error along the null boundary ${nullBoundaryText(p.delta)}, by control rate`}
+      height={240}
+      data={[
+        { x: p.nullCurve.map((c) => c.controlRate), y: p.nullCurve.map((c) => c.typeIError), name: "Type I error", mode: "lines+markers", line: { color: CAIRN_COLOURS.efficacy } },
+      ]}
+      layout={{ showlegend: false, xaxis: { title: { text: "True control rate pC (experimental pT = pC + δ)" }, range: [0, 1] }, yaxis: { title: { text: "P(declare success)" }, rangemode: "tozero" }, margin: { l: 56, r: 16, t: 28, b: 48 } }}
+      fileName="cairn-type-i-error-null-boundary"
+    />
   );
 }
 

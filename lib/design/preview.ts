@@ -5,7 +5,7 @@
  */
 import type { Design, SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { singleArmBoundaries, twoArmBoundaries } from "@/lib/stats/boundaries";
-import { exactOperatingCharacteristics, exactTwoArmOperatingCharacteristics, type OperatingCharacteristics, type TwoArmOperatingCharacteristics } from "@/lib/stats/operating-characteristics";
+import { exactOperatingCharacteristics, exactTwoArmOperatingCharacteristics, twoArmErrorRatesFromBoundaries, type OperatingCharacteristics, type TwoArmNullPoint, type TwoArmOperatingCharacteristics } from "@/lib/stats/operating-characteristics";
 import { summarisePrior } from "./prior-summary";
 
 export type OcSummary = {
@@ -40,8 +40,20 @@ export type TwoArmPreview = {
   /** Per look and control count xC: the experimental-arm counts that stop. */
   boundaries: { n: number; final: boolean; xC: number; futilityMaxT: number | null; efficacyMinT: number | null }[];
   safety: { n: number; toxicityMin: number | null }[] | null;
+  delta: number;
+  /** Largest type I error on the null boundary pT = pC + delta over `nullCurve` (not at pT = pC unless delta = 0). */
   typeIError: number;
+  typeIErrorMaxAt: { controlRate: number; experimentalRate: number };
+  /** Range of control rates the maximum is taken over. */
+  controlRateRange: { from: number; to: number };
+  /** Type I error at the assumed control rate (pT = controlRate + delta); null when that pair leaves (0, 1). */
+  typeIErrorAtControlRate: number | null;
+  /** Type I error along pT = pC + delta, per control rate (pairs outside (0, 1) skipped). */
+  nullCurve: TwoArmNullPoint[];
+  /** Power at the design's alternative (experimentalRate, controlRate). */
   power: number;
+  /** The null-boundary pair `atNull` is computed at. */
+  nullPoint: { controlRate: number; experimentalRate: number };
   atNull: OcSummary;
   atTarget: OcSummary;
   /** Over experimental rates with the control rate fixed at the assumed one. */
@@ -94,8 +106,7 @@ export function singleArmPreview(design: SingleArmDesign, labels: { arm?: string
 
 export function twoArmPreview(design: TwoArmDesign, labels: { experimental?: string; control?: string } = {}): TwoArmPreview {
   const b = twoArmBoundaries(design);
-  const atNull = exactTwoArmOperatingCharacteristics(b.response, design.controlRate, design.controlRate);
-  const atTarget = exactTwoArmOperatingCharacteristics(b.response, design.experimentalRate, design.controlRate);
+  const errors = twoArmErrorRatesFromBoundaries(b.response, design);
   const rates = [...new Set([...rateGrid(20), design.controlRate, design.experimentalRate])].sort((x, y) => x - y);
   const curve = rates.map((rate) => {
     const oc = exactTwoArmOperatingCharacteristics(b.response, rate, design.controlRate);
@@ -113,10 +124,16 @@ export function twoArmPreview(design: TwoArmDesign, labels: { experimental?: str
     nMaxPerArm: design.nMaxPerArm,
     boundaries,
     safety: b.safety,
-    typeIError: atNull.pDeclareSuccess,
-    power: atTarget.pDeclareSuccess,
-    atNull: summary(atNull),
-    atTarget: summary(atTarget),
+    delta: design.delta,
+    typeIError: errors.typeIError,
+    typeIErrorMaxAt: errors.typeIErrorMaxAt,
+    controlRateRange: errors.controlRateRange,
+    typeIErrorAtControlRate: errors.typeIErrorAtControlRate,
+    nullCurve: errors.nullCurve,
+    power: errors.power,
+    nullPoint: errors.nullPoint,
+    atNull: summary(errors.atNull),
+    atTarget: summary(errors.atTarget),
     curve,
     priors: priors.map(({ label, mean, ess, density }) => ({ label, mean, ess, density })),
   };

@@ -22,7 +22,7 @@ import {
   type SafetyBoundary,
   type TwoArmBoundary,
 } from "./boundaries";
-import { requireCount, requireProbability, StatsDomainError } from "./validate";
+import { requireCount, requireFinite, requireProbability, StatsDomainError } from "./validate";
 
 export type LookOutcome = {
   n: number;
@@ -292,17 +292,103 @@ export function twoArmOperatingCharacteristicsCurve(design: TwoArmDesign, pairs:
   return pairs.map(([pT, pC]) => exactTwoArmOperatingCharacteristics(b, pT, pC));
 }
 
-/** Two-arm type I error at pT = pC = controlRate and power at (experimentalRate, controlRate). */
-export function twoArmTypeIErrorAndPower(design: TwoArmDesign): {
+/** Default control rates for the two-arm type I error curve: 0.05, 0.10, ..., 0.95. */
+export const TWO_ARM_NULL_CONTROL_RATES: readonly number[] = Array.from({ length: 19 }, (_, i) => Math.round((i + 1) * 5) / 100);
+
+/** One point of the null boundary pT = pC + delta with the probability of declaring success there. */
+export type TwoArmNullPoint = { controlRate: number; experimentalRate: number; typeIError: number };
+
+export type TwoArmErrorRates = {
+  delta: number;
+  /**
+   * Type I error along the boundary of the null hypothesis pT - pC <= delta, i.e. at pT = pC + delta
+   * (not at pT = pC unless delta = 0), one point per control rate whose pair lies inside (0, 1).
+   */
+  nullCurve: TwoArmNullPoint[];
+  /** The largest type I error on `nullCurve` (the design's reported type I error). */
   typeIError: number;
-  power: number;
+  /** Where the largest type I error occurs (the first such point if several tie). */
+  typeIErrorMaxAt: { controlRate: number; experimentalRate: number };
+  /** Smallest and largest control rate on `nullCurve`. */
+  controlRateRange: { from: number; to: number };
+  /** Type I error at the design's assumed control rate (pT = controlRate + delta); null when that pair leaves (0, 1). */
+  typeIErrorAtControlRate: number | null;
+  /** The null-boundary pair `atNull` is computed at: the assumed control rate if usable, else the maximising pair. */
+  nullPoint: { controlRate: number; experimentalRate: number };
   atNull: TwoArmOperatingCharacteristics;
+  /** P(declare success) at the design's alternative (experimentalRate, controlRate). */
+  power: number;
   atTarget: TwoArmOperatingCharacteristics;
-} {
-  const b = twoArmBoundaries(design).response;
-  const atNull = exactTwoArmOperatingCharacteristics(b, design.controlRate, design.controlRate);
-  const atTarget = exactTwoArmOperatingCharacteristics(b, design.experimentalRate, design.controlRate);
-  return { typeIError: atNull.pDeclareSuccess, power: atTarget.pDeclareSuccess, atNull, atTarget };
+};
+
+/** pC + delta without binary noise (0.3 - 0.1 is 0.2, not 0.19999999999999998), so labels and grids line up. */
+function onNullBoundary(pC: number, delta: number): number {
+  return Math.round((pC + delta) * 1e12) / 1e12;
+}
+
+const insideUnit = (p: number) => p > 0 && p < 1;
+
+/**
+ * Two-arm type I error and power of a boundary table.
+ *
+ * The null hypothesis of a two-arm design with margin delta is pT - pC <= delta, so the type I
+ * error belongs on its boundary pT = pC + delta (product brief, "Conventions"; for
+ * non-inferiority designs the error rate is evaluated at the margin, as in the US FDA guidance
+ * "Non-Inferiority Clinical Trials to Establish Effectiveness", 2016). The boundary is a line, not
+ * a point, so the error is reported over a range of control rates with its maximum. Pairs with
+ * pC or pC + delta outside the open interval (0, 1) are skipped; if none remains, the midpoint of
+ * the admissible control rates is used, so the curve is never empty.
+ *
+ * @param boundaries - the design's response boundaries (`twoArmBoundaries(design).response`)
+ * @param design - supplies delta, controlRate and experimentalRate
+ * @param controlRates - control rates in (0, 1) for the curve (default TWO_ARM_NULL_CONTROL_RATES); the assumed control rate is always added
+ */
+export function twoArmErrorRatesFromBoundaries(
+  boundaries: TwoArmBoundary[],
+  design: Pick<TwoArmDesign, "delta" | "controlRate" | "experimentalRate">,
+  controlRates: readonly number[] = TWO_ARM_NULL_CONTROL_RATES,
+): TwoArmErrorRates {
+  const { delta, controlRate, experimentalRate } = design;
+  requireFinite("delta", delta);
+  if (!(delta > -1 && delta < 1)) throw new StatsDomainError("delta", delta, "must lie strictly between -1 and 1");
+  requireProbability("controlRate", controlRate);
+  requireProbability("experimentalRate", experimentalRate);
+  if (!Array.isArray(controlRates)) throw new StatsDomainError("controlRates", controlRates, "must be an array of rates in (0, 1)");
+  controlRates.forEach((r, i) => requireProbability(`controlRates[${i}]`, r));
+  let rates = [...new Set([...controlRates, controlRate])].filter((pC) => insideUnit(onNullBoundary(pC, delta))).sort((u, v) => u - v);
+  if (rates.length === 0) rates = [(Math.max(0, -delta) + Math.min(1, 1 - delta)) / 2];
+  const ocs = new Map<number, TwoArmOperatingCharacteristics>();
+  const nullCurve = rates.map((pC) => {
+    const pT = onNullBoundary(pC, delta);
+    const oc = exactTwoArmOperatingCharacteristics(boundaries, pT, pC);
+    ocs.set(pC, oc);
+    return { controlRate: pC, experimentalRate: pT, typeIError: oc.pDeclareSuccess };
+  });
+  let max = nullCurve[0];
+  for (const point of nullCurve) if (point.typeIError > max.typeIError) max = point;
+  const atControl = ocs.get(controlRate) ?? null;
+  const nullPoint = atControl ? { controlRate, experimentalRate: onNullBoundary(controlRate, delta) } : { controlRate: max.controlRate, experimentalRate: max.experimentalRate };
+  const atTarget = exactTwoArmOperatingCharacteristics(boundaries, experimentalRate, controlRate);
+  return {
+    delta,
+    nullCurve,
+    typeIError: max.typeIError,
+    typeIErrorMaxAt: { controlRate: max.controlRate, experimentalRate: max.experimentalRate },
+    controlRateRange: { from: rates[0], to: rates[rates.length - 1] },
+    typeIErrorAtControlRate: atControl ? atControl.pDeclareSuccess : null,
+    nullPoint,
+    atNull: atControl ?? (ocs.get(max.controlRate) as TwoArmOperatingCharacteristics),
+    power: atTarget.pDeclareSuccess,
+    atTarget,
+  };
+}
+
+/**
+ * Two-arm type I error (maximum over control rates on the null boundary pT = pC + delta) and power
+ * at the design's alternative (experimentalRate, controlRate). See twoArmErrorRatesFromBoundaries.
+ */
+export function twoArmTypeIErrorAndPower(design: TwoArmDesign, options: { controlRates?: readonly number[] } = {}): TwoArmErrorRates {
+  return twoArmErrorRatesFromBoundaries(twoArmBoundaries(design).response, design, options.controlRates);
 }
 
 /**

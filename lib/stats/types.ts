@@ -62,7 +62,10 @@ export type TwoArmDesign = {
   /** T is experimental, C is control. */
   priorT: PriorSpec;
   priorC: PriorSpec;
-  /** Assumed control rate, for operating characteristics (type I error at pT = pC = controlRate). */
+  /**
+   * Assumed control rate, for operating characteristics: power at (experimentalRate, controlRate);
+   * type I error on the null boundary pT = pC + delta, reported over a range of control rates that includes this one.
+   */
   controlRate: number;
   /** Experimental rate for power. */
   experimentalRate: number;
