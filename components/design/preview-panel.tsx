@@ -213,7 +213,7 @@ function PriorDensities({ p }: { p: DesignPreview }) {
         <div key={pr.label} className="rounded-md border border-stone-200 p-2">
           <p className="text-sm font-medium">{pr.label}</p>
           <p className="text-xs text-stone-600">
-            Mean {pr.mean.toFixed(3)} · effective sample size <span data-testid="prior-ess" className="tabular-nums">{pr.ess.toFixed(1)}</span>
+            Mean {pr.mean.toFixed(3)} · effective sample size (Morita, Thall &amp; Mueller 2008) <span data-testid="prior-ess" className="tabular-nums">{pr.ess.toFixed(1)}</span>
           </p>
           <CairnPlot
             title={`Prior density: ${pr.label}`}

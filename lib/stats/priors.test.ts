@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import betaln from "@stdlib/math-base-special-betaln";
-import { priorEffectiveSampleSize, resolvePrior, updateMixture } from "./priors";
+import { momentMatchedEffectiveSampleSize, resolvePrior, updateMixture } from "./priors";
 import { StatsDomainError } from "./validate";
 import type { MixtureBeta } from "./types";
 
@@ -64,22 +64,22 @@ describe("updateMixture", () => {
   });
 });
 
-describe("priorEffectiveSampleSize", () => {
+describe("momentMatchedEffectiveSampleSize (not the Morita definition; kept for comparison)", () => {
   it("one Beta(a, b): a + b", () => {
-    expect(priorEffectiveSampleSize({ family: "beta", a: 3, b: 9 })).toBe(12);
-    expect(priorEffectiveSampleSize({ family: "uniform" })).toBe(2);
-    expect(priorEffectiveSampleSize({ family: "informative", mean: 0.3, ess: 40 })).toBeCloseTo(40, 12);
+    expect(momentMatchedEffectiveSampleSize({ family: "beta", a: 3, b: 9 })).toBe(12);
+    expect(momentMatchedEffectiveSampleSize({ family: "uniform" })).toBe(2);
+    expect(momentMatchedEffectiveSampleSize({ family: "informative", mean: 0.3, ess: 40 })).toBeCloseTo(40, 12);
   });
   it("a mixture of identical components has the component's a + b (moment matching is exact then)", () => {
     expect(
-      priorEffectiveSampleSize([
+      momentMatchedEffectiveSampleSize([
         { weight: 0.4, a: 5, b: 15 },
         { weight: 0.6, a: 5, b: 15 },
       ]),
     ).toBeCloseTo(20, 10);
   });
   it("a robust mixture is worth fewer patients than its informative part (moment-matched a + b = m(1-m)/v - 1)", () => {
-    const ess = priorEffectiveSampleSize({ family: "robustMixture", mean: 0.3, ess: 40, weight: 0.8 });
+    const ess = momentMatchedEffectiveSampleSize({ family: "robustMixture", mean: 0.3, ess: 40, weight: 0.8 });
     expect(ess).toBeLessThan(40);
     expect(ess).toBeGreaterThan(2);
     // Direct moment computation: mixture mean and second moment of 0.8 Beta(12, 28) + 0.2 Beta(1, 1).

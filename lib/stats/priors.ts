@@ -3,7 +3,7 @@
  * A single Beta is a one-component mixture, so every computation has one code path.
  */
 import type { MixtureBeta, PriorSpec } from "./types";
-import { betaCdf, betaSurvival, logBeta, logChoose } from "./distributions";
+import { betaCdf, betaPdf, betaSurvival, logBeta, logChoose } from "./distributions";
 import { requireData, requireFinite, requirePositive, requireProbability, StatsDomainError } from "./validate";
 
 /**
@@ -88,18 +88,64 @@ export function mixtureMean(m: MixtureBeta): number {
 }
 
 /**
- * Effective sample size of a prior on a rate, in patients.
- * - One Beta(a, b): a + b (the prior is worth a + b binomial observations; common practice, and the
- *   single-Beta case of Morita, Thall & Mueller 2008).
- * - A mixture: the moment-matched a + b, m (1 - m) / v - 1, where m and v are the mixture's mean
- *   and variance: the size of the single Beta with the same mean and spread. This is NOT the
- *   Morita, Thall & Mueller (2008) definition (which matches curvature at the prior mean); it agrees
- *   with a + b for one component and shrinks as the components disagree, so a robust mixture is
- *   shown as worth fewer patients than its informative part.
+ * Effective sample size (ESS) of a prior on a rate, in patients, as defined by Morita, Thall &
+ * Mueller (2008, Biometrics 64:595-602): the number m of binary observations that, added to an
+ * epsilon-information prior q0 with the same mean mu, gives a posterior whose curvature
+ * -d^2/dt^2 log q_m(t | Y) at t = mu, averaged over the prior predictive distribution of Y, equals
+ * the prior's own curvature D_p(mu) = -d^2/dt^2 log p(t) at mu.
+ *
+ * For the Beta-binomial model with q0 = Beta(c mu, c (1 - mu)) the averaged curvature is
+ * (c + m)(1/mu + 1/(1 - mu)) - 1/mu^2 - 1/(1 - mu)^2, because it is linear in Y and E(Y) = m mu
+ * under any prior with mean mu (mixtures included). Letting c -> 0 (the epsilon-information prior)
+ * m solves a linear equation. For one Beta(a, b) this gives exactly a + b, the paper's result for
+ * conjugate beta priors. The paper minimises |D_p - D_q(m)| over integers m >= 0; Cairn reports the
+ * continuous root (its rounding is the paper's integer) and 0 when the root is negative (a mixture
+ * whose log density is convex at its mean, e.g. two well-separated components), which is the
+ * minimiser over m >= 0.
  * @param prior a prior specification (validated as in resolvePrior) or a resolved mixture (weights in [0, 1] summing to 1, shapes > 0)
- * @returns a positive number of patients
+ * @returns a number of patients >= 0
  */
-export function priorEffectiveSampleSize(prior: PriorSpec | MixtureBeta): number {
+export function moritaEffectiveSampleSize(prior: PriorSpec | MixtureBeta): number {
+  const m = Array.isArray(prior) ? prior : resolvePrior(prior);
+  requireMixture("prior", m);
+  const live = m.filter((c) => c.weight > 0);
+  if (live.length === 1) return live[0].a + live[0].b;
+  const mu = mixtureMean(live);
+  const curvature = negLogDensityCurvature(live, mu);
+  const ess = (curvature + 1 / (mu * mu) + 1 / ((1 - mu) * (1 - mu))) / (1 / mu + 1 / (1 - mu));
+  return Number.isFinite(ess) && ess > 0 ? ess : 0;
+}
+
+/** The ESS Cairn shows for a prior: Morita, Thall & Mueller (2008). See moritaEffectiveSampleSize. */
+export const priorEffectiveSampleSize = moritaEffectiveSampleSize;
+
+/**
+ * -d^2/dt^2 log p(t) of a Beta mixture at t in (0, 1), from the analytic first and second
+ * derivatives of each component's log density (weights times densities, so no log-sum-exp is needed
+ * for the shapes the product allows).
+ */
+export function negLogDensityCurvature(prior: MixtureBeta, t: number): number {
+  requireProbability("t", t);
+  let p = 0;
+  let d1 = 0;
+  let d2 = 0;
+  for (const c of prior) {
+    const f = c.weight * betaPdf(t, c.a, c.b);
+    const g = (c.a - 1) / t - (c.b - 1) / (1 - t);
+    const gPrime = -(c.a - 1) / (t * t) - (c.b - 1) / ((1 - t) * (1 - t));
+    p += f;
+    d1 += f * g;
+    d2 += f * (g * g + gPrime);
+  }
+  return -(d2 / p - (d1 / p) ** 2);
+}
+
+/**
+ * Moment-matched effective sample size: a + b of the single Beta with the mixture's mean m and
+ * variance v, i.e. m (1 - m) / v - 1. NOT the Morita, Thall & Mueller (2008) definition; kept for
+ * comparison only (it equals a + b for one component and shrinks as the components disagree).
+ */
+export function momentMatchedEffectiveSampleSize(prior: PriorSpec | MixtureBeta): number {
   const m = Array.isArray(prior) ? prior : resolvePrior(prior);
   requireMixture("prior", m);
   const live = m.filter((c) => c.weight > 0);

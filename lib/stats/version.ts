@@ -1,2 +1,5 @@
-/** Bumped whenever a change to lib/stats can change a reported number; stored with every result. */
-export const ENGINE_VERSION = "1.1.0";
+/**
+ * Bumped whenever a change to lib/stats can change a reported number; stored with every result.
+ * 1.2.0: two-arm type I error on the null boundary pT = pC + delta (maximum over control rates).
+ */
+export const ENGINE_VERSION = "1.2.0";
