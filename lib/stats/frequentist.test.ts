@@ -1,7 +1,10 @@
 import { describe, expect, it } from "vitest";
 import binomialPmf from "@stdlib/stats-base-dists-binomial-pmf";
+import jstat from "jstat";
 import { clopperPearsonInterval, normalQuantile, wilsonInterval } from "./frequentist";
 import { StatsDomainError } from "./validate";
+
+const { jStat } = jstat;
 
 /** P(X <= x) and P(X >= x) for X ~ Binomial(n, p), summed from @stdlib/stats-base-dists-binomial-pmf (npm). */
 const binomCdf = (x: number, n: number, p: number) => {
@@ -87,5 +90,44 @@ describe("invalid input (each rule)", () => {
     expect(() => clopperPearsonInterval(3, 10, 1)).toThrow(StatsDomainError);
     expect(() => wilsonInterval(3, 10, 0)).toThrow(StatsDomainError);
     expect(() => wilsonInterval(3, 10, NaN)).toThrow(StatsDomainError);
+  });
+});
+
+describe("Wilson score interval against Newcombe (1998) and jstat", () => {
+  // Newcombe RG. Two-sided confidence intervals for the single proportion: comparison of seven
+  // methods. Statistics in Medicine 1998;17:857-872, worked examples (method 3, score interval
+  // without continuity correction), 95%. Values recalled from memory of the paper's table.
+  for (const [x, n, lower, upper] of [
+    [81, 263, "0.2553", "0.3662"],
+    [15, 148, "0.0624", "0.1605"],
+    [0, 20, "0.0000", "0.1611"],
+    [1, 29, "0.0061", "0.1718"],
+  ] as const)
+    it(`${x} of ${n}: ${lower} to ${upper} (Newcombe 1998, from memory)`, () => {
+      const w = wilsonInterval(x, n, 0.95);
+      expect(w.lower.toFixed(4)).toBe(lower);
+      expect(w.upper.toFixed(4)).toBe(upper);
+    });
+  it("matches the score equation solved by bisection with jstat 1.9.6's normal quantile (second library), to 1e-12", () => {
+    for (const [x, n, level] of [
+      [81, 263, 0.95],
+      [3, 17, 0.9],
+      [40, 41, 0.99],
+    ]) {
+      const z = jStat.normal.inv(1 - (1 - level) / 2, 0, 1);
+      const score = (p: number) => (x - n * p) / Math.sqrt(n * p * (1 - p));
+      // score is decreasing in p: the lower end solves score = z, the upper end score = -z.
+      const solve = (target: number, lo: number, hi: number) => {
+        for (let i = 0; i < 200; i++) {
+          const mid = (lo + hi) / 2;
+          if (score(mid) > target) lo = mid;
+          else hi = mid;
+        }
+        return (lo + hi) / 2;
+      };
+      const w = wilsonInterval(x, n, level);
+      expect(Math.abs(w.lower - solve(z, 1e-15, x / n))).toBeLessThan(1e-12);
+      expect(Math.abs(w.upper - solve(-z, x / n, 1 - 1e-15))).toBeLessThan(1e-12);
+    }
   });
 });
