@@ -138,7 +138,7 @@ function TwoArmResult({ p, design }: { p: TwoArmPreview; design: Extract<Design,
     <>
       <OcSummaryBlock
         p={p}
-        typeILabel={`Type I error at ${nullBoundaryText(p.delta)}, maximum over control rates from ${p.controlRateRange.from} to ${p.controlRateRange.to}`}
+        typeILabel={`Type I error at ${nullBoundaryText(p.delta)}, maximum over control rates from ${p.controlRateRange.from} to ${p.controlRateRange.to} (every ${p.controlRateStep}, plus the assumed rate)`}
         typeINote={`largest at pC = ${p.typeIErrorMaxAt.controlRate}, pT = ${p.typeIErrorMaxAt.experimentalRate}`}
         extra={
           <Stat
