@@ -162,6 +162,9 @@ test("a statistician designs a two-arm trial and the operating characteristics m
   const engine = twoArmTypeIErrorAndPower(design);
   await waitForPreview(page);
   await expect(page.getByTestId("oc-type-i-error")).toHaveText(formatProbability(engine.typeIError));
+  // The two-arm type I error is the maximum on the null boundary pT = pC + δ, and the label says so.
+  await expect(page.getByText(`Type I error at pT = pC (δ = 0), maximum over control rates from ${engine.controlRateRange.from} to ${engine.controlRateRange.to}`, { exact: false })).toBeVisible();
+  await expect(page.getByTestId("oc-type-i-error-at-control")).toHaveText(formatProbability(engine.typeIErrorAtControlRate as number));
   await expect(page.getByTestId("oc-power")).toHaveText(formatProbability(engine.power));
   await expect(page.getByTestId("prior-ess").nth(1)).toHaveText("10.0");
   await page.getByRole("button", { name: "Save draft" }).click();
