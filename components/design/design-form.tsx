@@ -53,7 +53,15 @@ function PriorFields({ prefix, title, prior, errors, readOnly, onChange }: { pre
       {prior.family === "informative" || prior.family === "robustMixture" ? (
         <div className="grid grid-cols-2 gap-3">
           <NumberField id={`${prefix}-mean`} label="Prior mean" value={prior.mean} error={err("mean")} onChange={set("mean")} readOnly={readOnly} />
-          <NumberField id={`${prefix}-ess`} label="Effective sample size" value={prior.ess} error={err("ess")} onChange={set("ess")} readOnly={readOnly} />
+          <NumberField
+            id={`${prefix}-ess`}
+            label={prior.family === "robustMixture" ? "Effective sample size of the informative part" : "Effective sample size"}
+            hint={prior.family === "robustMixture" ? "The mixture's own effective sample size is shown under Priors." : undefined}
+            value={prior.ess}
+            error={err("ess")}
+            onChange={set("ess")}
+            readOnly={readOnly}
+          />
         </div>
       ) : null}
       {prior.family === "robustMixture" ? (
