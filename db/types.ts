@@ -64,6 +64,8 @@ export type AnalysisOpenRow = {
   row_version: number;
   locked_at: Date | null;
   reviewed_at: Date | null;
+  /** The review version in force: 1, then +1 each time the look is reopened after review. */
+  review_version: number;
 };
 
 /** CLOSED: arm-level counts. Only ever selected through db/queries/closed.ts. */

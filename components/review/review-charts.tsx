@@ -78,12 +78,15 @@ export function PredictiveOverLooksPlot({ history, ruleKind, futilityThreshold, 
   return <CairnPlot title={`${label} at each look`} fileName="predictive-over-looks" data={data as never} layout={{ yaxis: { title: { text: "Probability" }, range: [0, 1.02] } }} />;
 }
 
-export function BoundaryPlot({ boundaries, observedPath, twoArms }: { boundaries: BoundaryRow[]; observedPath: Review["observedPath"]; twoArms: boolean }) {
+export function BoundaryPlot({ boundaries, observedPath, observedBoundaries = [], twoArms }: { boundaries: BoundaryRow[]; observedPath: Review["observedPath"]; observedBoundaries?: Review["observedBoundaries"]; twoArms: boolean }) {
   const n = boundaries.map((b) => b.n);
   const data: Record<string, unknown>[] = [
     { x: n, y: boundaries.map((b) => b.futilityMax), type: "scatter", mode: "lines+markers", name: "Futility: stop at or below", line: { color: CAIRN_COLOURS.futility, shape: "hv" }, connectgaps: false },
     { x: n, y: boundaries.map((b) => b.efficacyMin), type: "scatter", mode: "lines+markers", name: "Efficacy / success: at or above", line: { color: CAIRN_COLOURS.efficacy, shape: "hv" }, connectgaps: false },
     { x: [0, ...observedPath.map((o) => o.n)], y: [0, ...observedPath.map((o) => o.responders)], type: "scatter", mode: "lines+markers", name: twoArms ? "Observed (experimental arm)" : "Observed", line: { color: CAIRN_COLOURS.observed, width: 2.5 }, marker: { size: 9, symbol: "diamond" } },
+    // The boundaries at each look's actual evaluable count: the observation is read against these.
+    { x: observedBoundaries.map((o) => o.n), y: observedBoundaries.map((o) => o.futilityMax), type: "scatter", mode: "markers", name: "Futility at the observed n", marker: { color: CAIRN_COLOURS.futility, size: 11, symbol: "triangle-down-open", line: { width: 2 } } },
+    { x: observedBoundaries.map((o) => o.n), y: observedBoundaries.map((o) => o.efficacyMin), type: "scatter", mode: "markers", name: "Efficacy / success at the observed n", marker: { color: CAIRN_COLOURS.efficacy, size: 11, symbol: "triangle-up-open", line: { width: 2 } } },
   ];
   return (
     <CairnPlot

@@ -19,6 +19,7 @@ export const ANALYSIS_OPEN_COLUMNS = [
   "row_version",
   "locked_at",
   "reviewed_at",
+  "review_version",
 ] as const;
 
 export async function fetchLookSchedule(trialId: number, tx: Tx = db): Promise<AnalysisOpenRow[]> {
@@ -37,6 +38,10 @@ export type OpenRecommendation = {
   correctsId: number | null;
   recordedAt: Date;
   signerName: string;
+  /** The review version of the look the recommendation was made on. */
+  reviewVersion: number;
+  /** True when the look was reopened for a correction after this recommendation (its review version is past). */
+  superseded: boolean;
 };
 
 /** Recommendations without their rationale: decision, date, who signed, which look. */
@@ -53,8 +58,11 @@ export async function fetchRecommendationsOpen(trialId: number, tx: Tx = db): Pr
       "r.corrects_id as correctsId",
       "r.created_at as recordedAt",
       "s.signer_name as signerName",
+      "r.review_version as reviewVersion",
+      tx.raw("(r.review_version < a.review_version) as superseded"),
     )
-    .orderBy("r.id", "desc");
+    .orderBy("r.id", "desc")
+    .then((rows: Array<OpenRecommendation & { superseded: number | boolean }>) => rows.map((r) => ({ ...r, superseded: Boolean(r.superseded) })));
 }
 
 export type DesignMeta = { id: number; version: number; status: string; lockedAt: Date | null; amendmentReason: string | null };

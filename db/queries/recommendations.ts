@@ -23,6 +23,10 @@ export type RecommendationClosed = {
   correctsId: number | null;
   /** Id of the later entry that corrects this one, if any. */
   correctedById: number | null;
+  /** The review version of the look the recommendation was made on. */
+  reviewVersion: number;
+  /** True when the look has been reopened after this recommendation (a later review version is in force). */
+  superseded: boolean;
   recordedAt: Date;
   signatureId: number;
   signerName: string;
@@ -53,18 +57,23 @@ function closedQuery(tx: Tx) {
       "s.meaning as signatureMeaning",
       "s.signed_at as signedAt",
       "s.record_hash as recordHash",
+      "r.review_version as reviewVersion",
+      tx.raw("(r.review_version < a.review_version) as superseded"),
     );
 }
+
+const withFlag = <T extends { superseded: unknown }>(r: T) => ({ ...r, superseded: Boolean(r.superseded) });
 
 /** CLOSED: every recommendation of a trial (optionally one analysis), newest first. */
 export async function fetchRecommendationsClosed(trialId: number, analysisId?: number, tx: Tx = db): Promise<RecommendationClosed[]> {
   const q = closedQuery(tx).where("r.trial_id", trialId).orderBy("r.id", "desc");
   if (analysisId !== undefined) q.where("r.analysis_id", analysisId);
-  return q;
+  return (await q).map(withFlag);
 }
 
 export async function fetchRecommendationClosed(id: number, tx: Tx = db): Promise<RecommendationClosed | undefined> {
-  return closedQuery(tx).where("r.id", id).first();
+  const r = await closedQuery(tx).where("r.id", id).first();
+  return r ? withFlag(r) : undefined;
 }
 
 /** The analysis row locked for the duration of a recording transaction, so two signers queue. */
@@ -72,10 +81,14 @@ export async function fetchAnalysisForUpdate(tx: Tx, analysisId: number): Promis
   return tx("analyses").where({ id: analysisId }).forUpdate().first(ANALYSIS_OPEN_COLUMNS);
 }
 
-/** Ids of the recommendations of an analysis that no later entry corrects (normally at most one). */
-export async function fetchCurrentRecommendationIds(tx: Tx, analysisId: number): Promise<number[]> {
+/**
+ * Ids of the recommendations of an analysis, made on its review version in force, that no later
+ * entry corrects (normally at most one). Recommendations of an earlier review version are superseded.
+ */
+export async function fetchCurrentRecommendationIds(tx: Tx, analysisId: number, reviewVersion: number): Promise<number[]> {
   const rows: { id: number }[] = await tx("recommendations as r")
     .where("r.analysis_id", analysisId)
+    .where("r.review_version", reviewVersion)
     .whereNotExists(tx("recommendations as c").whereRaw("c.corrects_id = r.id"))
     .select("r.id");
   return rows.map((r) => r.id);
@@ -90,6 +103,7 @@ export type NewRecommendation = {
   signatureId: number;
   createdBy: number;
   createdAt: Date;
+  reviewVersion: number;
 };
 
 export async function insertRecommendation(tx: Tx, r: NewRecommendation): Promise<number> {
@@ -102,6 +116,18 @@ export async function insertRecommendation(tx: Tx, r: NewRecommendation): Promis
     signature_id: r.signatureId,
     created_by: r.createdBy,
     created_at: r.createdAt,
+    review_version: r.reviewVersion,
   });
   return id;
+}
+
+/** CLOSED: a signature's id and the hash of the record it signed (the hash of a look's counts is closed: few possible values). */
+export type SignatureProvenance = { signatureId: number; recordHash: string; signerName: string; meaning: string; signedAt: Date };
+
+/** CLOSED: the signature that locked a look in its current version, and the one that locked its design. */
+export async function fetchReviewSignatures(analysisId: number, tx: Tx = db): Promise<{ lock: SignatureProvenance | null; design: SignatureProvenance | null }> {
+  const cols = (alias: string) => [`${alias}.id as signatureId`, `${alias}.record_hash as recordHash`, `${alias}.signer_name as signerName`, `${alias}.meaning`, `${alias}.signed_at as signedAt`];
+  const lock = await tx("analyses as a").join("signatures as s", "s.id", "a.lock_signature_id").where("a.id", analysisId).first(cols("s"));
+  const design = await tx("analyses as a").join("designs as d", "d.id", "a.design_id").join("signatures as s", "s.id", "d.signature_id").where("a.id", analysisId).first(cols("s"));
+  return { lock: lock ?? null, design: design ?? null };
 }

@@ -20,7 +20,7 @@ export function stableStringify(v: unknown): string {
     .join(",")}}`;
 }
 
-export type SignatureMeaning = "design approved" | "analysis locked" | "recommendation recorded";
+export type SignatureMeaning = "design approved" | "analysis locked" | "recommendation recorded" | "review reopened for correction";
 
 export async function insertSignature(
   tx: Tx,

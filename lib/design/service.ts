@@ -197,7 +197,8 @@ export async function lockDesign(access: TrialAccess, designId: number, rowVersi
     });
     await markDesignLocked(tx, current.id, sig.id);
     const looks = expandLooks(current.spec.looks, current.spec.arms === "single" ? current.spec.nMax : current.spec.nMaxPerArm);
-    await createPlannedLooks(tx, trial.id, current.id, looks);
+    // Looks not yet locked (even with counts) move to this version; locked ones keep theirs.
+    const movedLooks = await createPlannedLooks(tx, trial.id, current.id, looks);
     await appendAudit(tx, {
       actorUserId: user.id,
       actorEmail: user.email,
@@ -216,6 +217,7 @@ export async function lockDesign(access: TrialAccess, designId: number, rowVersi
         signedAt: sig.signed_at,
         recordHash: sig.record_hash,
         plannedLooks: looks,
+        movedLooks,
       },
     });
   });

@@ -78,9 +78,14 @@ function boundaryChart(review: Review): PacketChart {
       { name: "Efficacy (final: success) at or above", kind: "line", colour: PACKET_COLOURS.efficacy, points: eff },
       { name: "Observed", kind: "line", colour: PACKET_COLOURS.observed, points: [[0, 0], ...obs] },
       { name: "Observed looks", kind: "points", colour: PACKET_COLOURS.observed, points: obs },
+      // Boundaries at each look's actual evaluable count, where that differs from the plan.
+      { name: "Futility at the observed n", kind: "points", colour: PACKET_COLOURS.futility, points: review.observedBoundaries.filter((o) => o.futilityMax !== null).map((o) => [o.n, o.futilityMax as number] as [number, number]) },
+      { name: "Efficacy at the observed n", kind: "points", colour: PACKET_COLOURS.efficacy, points: review.observedBoundaries.filter((o) => o.efficacyMin !== null).map((o) => [o.n, o.efficacyMin as number] as [number, number]) },
     ],
   };
 }
+
+const REGION_WORDS = { futility: "futility region", continue: "between the boundaries", efficacy: "efficacy region" } as const;
 
 export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
   const r = input.review;
@@ -122,6 +127,7 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
     a.summary.hpd.pieces.map(interval).join(" and ") + (a.summary.hpd.notUnique ? " (not unique)" : ""),
     a.probAboveP0 === null ? "-" : formatProbability(a.probAboveP0),
     interval(a.clopperPearson),
+    interval(a.wilson),
   ]);
   sections.push({
     id: "closed-posteriors",
@@ -130,8 +136,8 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
     blocks: [
       {
         kind: "table",
-        caption: `Posteriors per arm; ${pct} credible intervals; Clopper-Pearson exact interval for comparison`,
-        columns: ["Arm", "Posterior", "Mean", "Median", `${pct} equal-tailed`, `${pct} HPD`, single && r.reference.kind === "p0" ? `P(p > ${formatRate(r.reference.value)})` : "P(p > p0)", "Clopper-Pearson"],
+        caption: `Posteriors per arm; ${pct} credible intervals; Clopper-Pearson exact and Wilson score intervals for comparison`,
+        columns: ["Arm", "Posterior", "Mean", "Median", `${pct} equal-tailed`, `${pct} HPD`, single && r.reference.kind === "p0" ? `P(p > ${formatRate(r.reference.value)})` : "P(p > p0)", "Clopper-Pearson", "Wilson"],
         rows: postRows,
       },
       ...(r.difference
@@ -210,6 +216,21 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
           return single ? [head, ...tail] : [head, `${b.controlResponders ?? "-"} (${b.controlBasis ?? "-"})`, ...tail];
         }),
       },
+      {
+        kind: "table",
+        caption: "Each look done, against the boundaries computed at its actual evaluable count, beside those of its planned size",
+        columns: ["Look", "Planned n", "Actual n", "Responders", "Futility at actual n", "Efficacy at actual n", "Futility / efficacy at planned n", "Where"],
+        rows: r.observedBoundaries.map((o) => [
+          String(o.lookNumber),
+          o.plannedN === null ? "-" : String(o.plannedN),
+          o.nControl === null ? String(o.n) : `${o.n} (control ${o.nControl})`,
+          o.controlResponders === null ? String(o.responders) : `${o.responders} (control ${o.controlResponders})`,
+          formatBoundary(o.futilityMax),
+          formatBoundary(o.efficacyMin),
+          o.planned ? `${formatBoundary(o.planned.futilityMax)} / ${formatBoundary(o.planned.efficacyMin)}` : "-",
+          o.final ? (o.region === "efficacy" ? "success (final)" : "no success (final)") : REGION_WORDS[o.region],
+        ]),
+      },
       { kind: "chart", chart: boundaryChart(r) },
     ],
   });
@@ -240,6 +261,12 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
             }),
           },
           {
+            kind: "table",
+            caption: "Each look done, against the safety boundary at its actual number of patients, beside that of its planned size",
+            columns: ["Look", "Planned n", "Actual n", "Toxicities", "Stop at or above (actual n)", "Stop at or above (planned n)", "Crossed"],
+            rows: s.observed.map((o) => [String(o.lookNumber), o.plannedN === null ? "-" : String(o.plannedN), String(o.n), String(o.toxicities), formatBoundary(o.toxicityMin), o.planned ? formatBoundary(o.planned.toxicityMin) : "-", o.crossed ? "yes" : "no"]),
+          },
+          {
             kind: "chart",
             chart: {
               title: "Safety boundary with the observed toxicities",
@@ -251,6 +278,7 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
                 { name: "Safety stop at or above", kind: "line", colour: PACKET_COLOURS.safety, points: s.boundary.filter((b) => b.toxicityMin !== null).map((b) => [b.n, b.toxicityMin as number]) },
                 { name: "Observed", kind: "line", colour: PACKET_COLOURS.observed, points: [[0, 0], ...s.observedPath.map((o) => [o.n, o.toxicities] as [number, number])] },
                 { name: "Observed looks", kind: "points", colour: PACKET_COLOURS.observed, points: s.observedPath.map((o) => [o.n, o.toxicities] as [number, number]) },
+                { name: "Safety stop at the observed n", kind: "points", colour: PACKET_COLOURS.safety, points: s.observed.filter((o) => o.toxicityMin !== null).map((o) => [o.n, o.toxicityMin as number] as [number, number]) },
               ],
             },
           },

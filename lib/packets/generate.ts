@@ -54,7 +54,7 @@ export async function loadOpenPacketInput(trial: TrialRow, meetingId: number): P
       attendees: attendees.map((a) => ({ name: a.name, roles: a.roles.map((r) => ROLE_LABELS[r]) })),
     },
     looks: looks.map((l) => ({ lookNumber: l.look_number, plannedN: l.planned_n, cutoffDate: l.cutoff_date, enrolledTotal: l.enrolled_total, status: l.status, lockedAt: l.locked_at ? new Date(l.locked_at) : null })),
-    recommendations: recommendations.map((r) => ({ lookNumber: r.lookNumber, decision: r.decision, recordedAt: new Date(r.recordedAt), signerName: r.signerName, correctsId: r.correctsId })),
+    recommendations: recommendations.map((r) => ({ lookNumber: r.lookNumber, decision: r.decision, recordedAt: new Date(r.recordedAt), signerName: r.signerName, correctsId: r.correctsId, superseded: r.superseded })),
     caution: CAUTION_TEXT,
   };
 }

@@ -28,7 +28,7 @@ export type OpenPacketInput = {
     attendees: Array<{ name: string; roles: string[] }>;
   };
   looks: Array<{ lookNumber: number; plannedN: number; cutoffDate: string | null; enrolledTotal: number | null; status: AnalysisStatus; lockedAt: Date | null }>;
-  recommendations: Array<{ lookNumber: number; decision: RecommendationDecision; recordedAt: Date; signerName: string; correctsId: number | null }>;
+  recommendations: Array<{ lookNumber: number; decision: RecommendationDecision; recordedAt: Date; signerName: string; correctsId: number | null; superseded?: boolean }>;
   caution: string;
 };
 
@@ -147,7 +147,7 @@ export function buildOpenSections(input: OpenPacketInput): PacketSection[] {
             kind: "table",
             caption: "The committee's recommendations (decision only; the rationale is part of the closed record)",
             columns: ["Look", "Recommendation", "Recorded", "Signed by"],
-            rows: input.recommendations.map((r) => [String(r.lookNumber), `${DECISION_LABELS[r.decision]}${r.correctsId ? " (correction)" : ""}`, day(r.recordedAt), r.signerName]),
+            rows: input.recommendations.map((r) => [String(r.lookNumber), `${DECISION_LABELS[r.decision]}${r.correctsId ? " (correction)" : ""}${r.superseded ? " (superseded: the look was reopened for a correction)" : ""}`, day(r.recordedAt), r.signerName]),
           },
         ]
       : [{ kind: "paragraph", text: "No recommendation has been recorded yet." }],

@@ -5,7 +5,9 @@
 import { describe, expect, it } from "vitest";
 import stdlibBetaCdf from "@stdlib/stats-base-dists-beta-cdf";
 import stdlibBetaPdf from "@stdlib/stats-base-dists-beta-pdf";
-import { armPosterior, computeReview, intervalProbabilityOf, reproducibilityRecord, scepticalPrior, type ReviewInput } from "./compute-review";
+import stdlibBetaln from "@stdlib/math-base-special-betaln";
+import { armPosterior, computeReview, intervalProbabilityOf, reproducibilityRecord, safetyDenominator, scepticalPrior, type ReviewInput } from "./compute-review";
+import { decideAtLook } from "@/lib/stats/decision";
 import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { ENGINE_VERSION } from "@/lib/stats/version";
 import { StatsDomainError } from "@/lib/stats/validate";
@@ -184,5 +186,140 @@ describe("reproducibility record", () => {
   });
   it("an analysis id that is not among the looks is refused", () => {
     expect(() => computeReview(singleInput({ analysisId: 999 }))).toThrow(StatsDomainError);
+  });
+});
+
+// Finding 4: a look whose evaluable count differs from its planned size (21 where 20 was planned,
+// common in practice, no source) is placed against boundaries computed at the count observed.
+describe("observed data vanish when n differs from the plan (finding 4)", () => {
+  const EFF: SingleArmDesign = { ...SINGLE, rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.95 } };
+  const offPlan = (design: SingleArmDesign, n: number, x: number, t: number): ReviewInput =>
+    singleInput({
+      design,
+      looks: [
+        { analysisId: 101, lookNumber: 1, cutoffDate: "2026-01-31", plannedN: 10, counts: [{ armId: 7, enrolled: 11, evaluable: 10, responders: 3, toxicities: 1 }] },
+        { analysisId: 102, lookNumber: 2, cutoffDate: "2026-03-31", plannedN: 20, counts: [{ armId: 7, enrolled: n + 1, evaluable: n, responders: x, toxicities: t }] },
+      ],
+    });
+
+  /** PP by the definition (Lee & Liu 2008) with @stdlib's betaln and Beta CDF only: independent of lib/stats. */
+  function stdlibPP(a: number, b: number, x: number, n: number, nMax: number, p0: number, thetaT: number): number {
+    const m = nMax - n;
+    let pp = 0;
+    for (let y = 0; y <= m; y++) {
+      const logPmf = -Math.log(m + 1) - stdlibBetaln(y + 1, m - y + 1) + stdlibBetaln(a + x + y, b + n - x + m - y) - stdlibBetaln(a + x, b + n - x);
+      if (1 - stdlibBetaCdf(p0, a + x + y, b + nMax - x - y) > thetaT) pp += Math.exp(logPmf);
+    }
+    return pp;
+  }
+
+  it("the boundary at the actual n = 21 equals a brute-force search over x with @stdlib's PP and with the engine's decision at the look", () => {
+    const r = computeReview(offPlan(EFF, 21, 6, 3));
+    const row = r.observedBoundaries.find((o) => o.lookNumber === 2)!;
+    expect(row).toMatchObject({ plannedN: 20, n: 21, responders: 6, final: false });
+    let futStdlib: number | null = null;
+    let effStdlib: number | null = null;
+    let futEngine: number | null = null;
+    let effEngine: number | null = null;
+    for (let x = 0; x <= 21; x++) {
+      const pp = stdlibPP(0.6, 0.4, x, 21, 40, 0.2, 0.9);
+      if (pp < 0.05) futStdlib = x;
+      if (pp > 0.95 && effStdlib === null) effStdlib = x;
+      const ev = decideAtLook({ ...EFF, safety: null }, { n: 21, responders: x });
+      if (ev.decision.action === "stop" && ev.decision.stop === "futility") futEngine = x;
+      if (ev.decision.action === "stop" && ev.decision.stop === "efficacy" && effEngine === null) effEngine = x;
+    }
+    expect(futStdlib).not.toBeNull();
+    expect(effStdlib).not.toBeNull();
+    expect([row.futilityMax, row.efficacyMin]).toEqual([futStdlib, effStdlib]);
+    expect([row.futilityMax, row.efficacyMin]).toEqual([futEngine, effEngine]);
+    // The planned look's boundaries stay beside it, from the planned table.
+    const planned = r.boundaries.find((b) => b.n === 20)!;
+    expect(row.planned).toEqual({ n: 20, futilityMax: planned.futilityMax, efficacyMin: planned.efficacyMin });
+    // The region shown agrees with the decision the rule takes at the look.
+    expect(row.region).toBe(r.decision.action === "stop" ? r.decision.stop : "continue");
+  });
+
+  it("an observation in the futility region at the actual n is reported there, matching the decision", () => {
+    const r = computeReview(offPlan(EFF, 21, 1, 3));
+    const row = r.observedBoundaries.at(-1)!;
+    expect(row.futilityMax).not.toBeNull();
+    expect(1).toBeLessThanOrEqual(row.futilityMax!);
+    expect(row.region).toBe("futility");
+    expect(r.decision).toMatchObject({ action: "stop", stop: "futility" });
+  });
+
+  it("a look at its planned size reads the same boundary as the planned table (exact identity)", () => {
+    const r = computeReview(offPlan(EFF, 20, 6, 3));
+    const row = r.observedBoundaries.at(-1)!;
+    const planned = r.boundaries.find((b) => b.n === 20)!;
+    expect([row.futilityMax, row.efficacyMin]).toEqual([planned.futilityMax, planned.efficacyMin]);
+  });
+
+  it("safety: the boundary at the actual denominator equals a brute-force search over t with @stdlib's Beta CDF", () => {
+    const r = computeReview(offPlan(EFF, 21, 6, 3));
+    const row = r.safety!.observed.find((o) => o.lookNumber === 2)!;
+    expect(row).toMatchObject({ plannedN: 20, n: 21, toxicities: 3 });
+    let min: number | null = null;
+    for (let t = 21; t >= 0; t--) if (1 - stdlibBetaCdf(0.3, 0.6 + t, 1.4 + 21 - t) > 0.9) min = t;
+    expect(min).not.toBeNull();
+    expect(row.toxicityMin).toBe(min);
+    expect(row.planned).toEqual({ n: 20, toxicityMin: r.safety!.boundary.find((b) => b.n === 20)!.toxicityMin });
+    expect(row.crossed).toBe(false);
+    const toxic = computeReview(offPlan(EFF, 21, 6, min!));
+    expect(toxic.safety!.observed.at(-1)!.crossed).toBe(true);
+    expect(toxic.safety!.crossed).toBe(true);
+  });
+
+  it("two arms with 21 experimental and 20 control patients: the experimental boundary at the observed control count equals a brute-force search with the engine's PP", () => {
+    const TWO: TwoArmDesign = {
+      arms: "two",
+      priorT: { family: "uniform" },
+      priorC: { family: "uniform" },
+      controlRate: 0.3,
+      experimentalRate: 0.5,
+      delta: 0,
+      nMaxPerArm: 30,
+      looks: { kind: "list", sizes: [20, 30] },
+      rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
+      safety: null,
+    };
+    const r = computeReview({
+      design: TWO,
+      arms: [
+        { id: 1, label: "E", role: "experimental" },
+        { id: 2, label: "C", role: "control" },
+      ],
+      looks: [{ analysisId: 5, lookNumber: 1, cutoffDate: null, plannedN: 20, counts: [{ armId: 1, enrolled: 21, evaluable: 21, responders: 9, toxicities: null }, { armId: 2, enrolled: 20, evaluable: 20, responders: 6, toxicities: null }] }],
+      analysisId: 5,
+      generatedAt: "2026-01-01T00:00:00.000Z",
+    });
+    const row = r.observedBoundaries[0];
+    expect(row).toMatchObject({ plannedN: 20, n: 21, nControl: 20, controlResponders: 6 });
+    let fut: number | null = null;
+    let eff: number | null = null;
+    for (let xT = 0; xT <= 21; xT++) {
+      const d = decideAtLook(TWO, { nT: 21, respondersT: xT, nC: 20, respondersC: 6 }).decision;
+      if (d.action === "stop" && d.stop === "futility") fut = xT;
+      if (d.action === "stop" && d.stop === "efficacy" && eff === null) eff = xT;
+    }
+    expect(fut).not.toBeNull();
+    expect([row.futilityMax, row.efficacyMin]).toEqual([fut, eff]);
+  });
+
+  it("the safety denominator is one function (evaluable until a treated count exists)", () => {
+    expect(safetyDenominator({ armId: 1, enrolled: 23, evaluable: 21, responders: 4, toxicities: 2 })).toBe(21);
+  });
+});
+
+describe("Wilson interval beside Clopper-Pearson", () => {
+  it("6 of 20 at 95%: the closed form (x + z²/2 ± z√(x(n−x)/n + z²/4)) / (n + z²) with z = 1.959963984540054 (value from memory)", () => {
+    const r = computeReview(singleInput());
+    const z = 1.959963984540054;
+    const half = z * Math.sqrt((6 * 14) / 20 + (z * z) / 4);
+    close(r.arms[0].wilson.lower, (6 + (z * z) / 2 - half) / (20 + z * z), 1e-9);
+    close(r.arms[0].wilson.upper, (6 + (z * z) / 2 + half) / (20 + z * z), 1e-9);
+    // Brown, Cai & DasGupta (2001): Wilson is narrower than the exact interval away from the edges.
+    expect(r.arms[0].wilson.upper - r.arms[0].wilson.lower).toBeLessThan(r.arms[0].clopperPearson.upper - r.arms[0].clopperPearson.lower);
   });
 });

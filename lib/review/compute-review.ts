@@ -8,14 +8,23 @@
  */
 import type { Design, LookDecision, MixtureBeta, PriorSpec, SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { resolvePrior, mixtureSurvival } from "@/lib/stats/priors";
-import { posteriorMixture, predictiveProbabilitySingleArm, singleArmFinalSuccess } from "@/lib/stats/predictive";
-import { decideAtLook, type LookEvaluation } from "@/lib/stats/decision";
-import { singleArmBoundaries, twoArmBoundaries, type ResponseBoundary, type SafetyBoundary } from "@/lib/stats/boundaries";
+import { posteriorMixture, predictiveProbabilitySingleArm, predictiveProbabilityTwoArm, singleArmFinalSuccess } from "@/lib/stats/predictive";
+import { decideAtLook, twoArmFinalRuleForDesign, validateSingleArmDesign, validateTwoArmDesign, type LookEvaluation } from "@/lib/stats/decision";
+import {
+  boundaryFromStatistics,
+  finalBoundaryFromSuccess,
+  safetyBoundaries,
+  singleArmBoundaries,
+  singleArmInterimStatistics,
+  twoArmBoundaries,
+  type ResponseBoundary,
+  type SafetyBoundary,
+} from "@/lib/stats/boundaries";
 import { probDifferenceExceeds, differenceDensityGrid } from "@/lib/stats/difference";
 import { expandLooks } from "@/lib/stats/looks";
 import { ENGINE_VERSION } from "@/lib/stats/version";
 import { StatsDomainError } from "@/lib/stats/validate";
-import { clopperPearson, mixtureCurves, mixtureIntervalProbability, summarisePosterior, type Curves, type Interval, type PosteriorSummary } from "./posterior-summary";
+import { clopperPearson, wilson, mixtureCurves, mixtureIntervalProbability, summarisePosterior, type Curves, type Interval, type PosteriorSummary } from "./posterior-summary";
 
 export type ArmRole = "single" | "experimental" | "control";
 
@@ -24,7 +33,16 @@ export type ReviewArm = { id: number; label: string; role: ArmRole };
 /** Cumulative counts of one arm at one look (as stored in analysis_arm_counts). */
 export type ReviewArmCounts = { armId: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null };
 
-export type ReviewLook = { analysisId: number; lookNumber: number; cutoffDate: string | null; counts: ReviewArmCounts[] };
+/** plannedN: the planned look size this analysis was scheduled at (the evaluable count may differ). */
+export type ReviewLook = { analysisId: number; lookNumber: number; cutoffDate: string | null; plannedN?: number | null; counts: ReviewArmCounts[] };
+
+/**
+ * The patients the toxicity rate is estimated over. Until the counts carry a separate "treated"
+ * column this is the evaluable count; change only this function when it lands.
+ */
+export function safetyDenominator(c: ReviewArmCounts): number {
+  return c.evaluable;
+}
 
 export type ReviewInput = {
   design: Design;
@@ -57,6 +75,8 @@ export type ArmReview = {
   /** P(p > p0 | data) for a single arm; P(p > controlRate) is not asked for two arms (null). */
   probAboveP0: number | null;
   clopperPearson: Interval;
+  /** Wilson score interval (Brown, Cai & DasGupta 2001 recommend it over the exact one for coverage). */
+  wilson: Interval;
   curves: Curves;
   priorCurves: Curves;
 };
@@ -71,7 +91,42 @@ export type LookReview = {
   responders: number;
   respondersControl: number | null;
   toxicities: number | null;
+  /** Patients the toxicity rate is estimated over (safetyDenominator of the arm monitored for safety). */
+  safetyN: number;
+  plannedN: number | null;
   evaluation: LookEvaluation;
+};
+
+/**
+ * Where one look's observation sits against the boundaries computed at the evaluable count actually
+ * observed (which may differ from the planned look size), beside the boundaries at the planned size.
+ * Two arms: the experimental arm's boundary, read at the observed control count and control n.
+ */
+export type ObservedBoundaryRow = {
+  lookNumber: number;
+  plannedN: number | null;
+  n: number;
+  nControl: number | null;
+  final: boolean;
+  responders: number;
+  controlResponders: number | null;
+  futilityMax: number | null;
+  efficacyMin: number | null;
+  /** The boundaries of the planned look (null when the look has no planned size in this design's table). */
+  planned: { n: number; futilityMax: number | null; efficacyMin: number | null } | null;
+  /** "futility"/"efficacy": the observation is in that stopping region at the actual n; final look: "efficacy" means success. */
+  region: "futility" | "continue" | "efficacy";
+};
+
+/** The safety counterpart: the toxicity boundary at the actual denominator and at the planned size. */
+export type ObservedSafetyRow = {
+  lookNumber: number;
+  plannedN: number | null;
+  n: number;
+  toxicities: number;
+  toxicityMin: number | null;
+  planned: { n: number; toxicityMin: number | null } | null;
+  crossed: boolean;
 };
 
 export type BoundaryRow = ResponseBoundary & {
@@ -93,6 +148,8 @@ export type SafetyReview = {
   crossed: boolean;
   boundary: SafetyBoundary[];
   observedPath: { lookNumber: number; n: number; toxicities: number }[];
+  /** Each look's toxicities against the safety boundary at its actual denominator. */
+  observed: ObservedSafetyRow[];
   curves: Curves;
 };
 
@@ -125,6 +182,8 @@ export type Review = {
   ruleKind: "predictive" | "posterior";
   plannedLooks: number[];
   boundaries: BoundaryRow[];
+  /** Each look's observation against the boundaries at its actual evaluable count (and at the planned size). */
+  observedBoundaries: ObservedBoundaryRow[];
   /** Cumulative responders (two arms: experimental) against evaluable patients (per arm), look by look. */
   observedPath: { lookNumber: number; n: number; responders: number }[];
   safety: SafetyReview | null;
@@ -190,12 +249,12 @@ function evaluateLook(design: Design, look: ReviewLook, roles: ReturnType<typeof
   if (design.arms === "single") {
     const c = countsFor(look, roles.single!);
     const evaluation = decideAtLook(design, { n: c.evaluable, responders: c.responders, toxicities: c.toxicities });
-    return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: c.evaluable, nControl: null, responders: c.responders, respondersControl: null, toxicities: c.toxicities, evaluation };
+    return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: c.evaluable, nControl: null, responders: c.responders, respondersControl: null, toxicities: c.toxicities, safetyN: safetyDenominator(c), plannedN: look.plannedN ?? null, evaluation };
   }
   const t = countsFor(look, roles.experimental!);
   const c = countsFor(look, roles.control!);
   const evaluation = decideAtLook(design, { nT: t.evaluable, respondersT: t.responders, nC: c.evaluable, respondersC: c.responders, toxicitiesT: t.toxicities });
-  return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: t.evaluable, nControl: c.evaluable, responders: t.responders, respondersControl: c.responders, toxicities: t.toxicities, evaluation };
+  return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: t.evaluable, nControl: c.evaluable, responders: t.responders, respondersControl: c.responders, toxicities: t.toxicities, safetyN: safetyDenominator(t), plannedN: look.plannedN ?? null, evaluation };
 }
 
 function armReview(arm: ReviewArm, c: ReviewArmCounts, priorSpec: PriorSpec, p0: number | null, level: number, points: number): ArmReview {
@@ -214,6 +273,7 @@ function armReview(arm: ReviewArm, c: ReviewArmCounts, priorSpec: PriorSpec, p0:
     summary: summarisePosterior(prior, c.responders, c.evaluable, level),
     probAboveP0: p0 === null ? null : mixtureSurvival(posterior, p0),
     clopperPearson: clopperPearson(c.responders, c.evaluable, level),
+    wilson: wilson(c.responders, c.evaluable, level),
     curves: mixtureCurves(posterior, points),
     priorCurves: mixtureCurves(prior, points),
   };
@@ -233,25 +293,106 @@ function twoArmBoundaryRows(table: ReturnType<typeof twoArmBoundaries>, history:
   });
 }
 
+/**
+ * A single-arm response boundary at any evaluable count n (planned look or not), computed exactly
+ * as the planned table is: the same monitoring statistic at every count 0..n, read by the same rule.
+ * At n = nMax the final success rule applies.
+ */
+export function singleArmBoundaryAtN(design: SingleArmDesign, n: number): ResponseBoundary {
+  const { prior } = validateSingleArmDesign(design);
+  if (!Number.isInteger(n) || n < 0 || n > design.nMax) throw new StatsDomainError("n", n, `must be an integer from 0 to nMax = ${design.nMax}`);
+  const success = singleArmFinalSuccess(prior, design.nMax, design.p0, design.rule.thetaT);
+  if (n === design.nMax) return finalBoundaryFromSuccess(success);
+  const [stat] = singleArmInterimStatistics(prior, design, [n], success);
+  return boundaryFromStatistics(n, stat, design.rule);
+}
+
+/**
+ * The experimental arm's boundary at nT patients, given xC responders of nC in the control arm
+ * (the arms may hold different numbers of patients). Interim: the design's monitoring statistic
+ * (PP or P(pT - pC > delta)) at every xT = 0..nT; both arms at nMaxPerArm: the final rule.
+ */
+export function twoArmBoundaryAtN(design: TwoArmDesign, nT: number, nC: number, xC: number): ResponseBoundary {
+  const { priorT, priorC } = validateTwoArmDesign(design);
+  const N = design.nMaxPerArm;
+  for (const [name, v] of [["nT", nT], ["nC", nC]] as const)
+    if (!Number.isInteger(v) || v < 0 || v > N) throw new StatsDomainError(name, v, `must be an integer from 0 to nMaxPerArm = ${N}`);
+  if (!Number.isInteger(xC) || xC < 0 || xC > nC) throw new StatsDomainError("xC", xC, `must be an integer from 0 to nC = ${nC}`);
+  const finalRule = twoArmFinalRuleForDesign(design);
+  if (nT === N && nC === N) {
+    const t = finalRule.minSuccessT[xC];
+    return { n: N, final: true, futilityMax: t > 0 ? t - 1 : null, efficacyMin: t <= N ? t : null };
+  }
+  const stat = new Float64Array(nT + 1);
+  const postC = posteriorMixture(priorC, xC, nC);
+  for (let xT = 0; xT <= nT; xT++)
+    stat[xT] =
+      design.rule.kind === "predictive"
+        ? predictiveProbabilityTwoArm({ priorT, priorC, xT, nT, xC, nC, finalRule })
+        : probDifferenceExceeds(posteriorMixture(priorT, xT, nT), postC, design.delta);
+  return boundaryFromStatistics(nT, stat, design.rule);
+}
+
+function regionOf(x: number, b: ResponseBoundary): ObservedBoundaryRow["region"] {
+  if (b.efficacyMin !== null && x >= b.efficacyMin) return "efficacy";
+  if (b.futilityMax !== null && x <= b.futilityMax) return "futility";
+  return "continue";
+}
+
+function observedBoundaryRows(design: Design, history: LookReview[], planned: BoundaryRow[]): ObservedBoundaryRow[] {
+  return history.map((h) => {
+    const b = design.arms === "single" ? singleArmBoundaryAtN(design, h.n) : twoArmBoundaryAtN(design, h.n, h.nControl as number, h.respondersControl as number);
+    const p = h.plannedN === null ? undefined : planned.find((r) => r.n === h.plannedN);
+    return {
+      lookNumber: h.lookNumber,
+      plannedN: h.plannedN,
+      n: h.n,
+      nControl: h.nControl,
+      final: b.final,
+      responders: h.responders,
+      controlResponders: h.respondersControl,
+      futilityMax: b.futilityMax,
+      efficacyMin: b.efficacyMin,
+      planned: p ? { n: p.n, futilityMax: p.futilityMax, efficacyMin: p.efficacyMin } : null,
+      region: regionOf(h.responders, b),
+    };
+  });
+}
+
 function safetyReview(design: Design, history: LookReview[], current: LookReview, level: number, points: number, boundary: SafetyBoundary[] | null): SafetyReview | null {
   const rule = design.safety;
   if (!rule) return null;
   if (current.toxicities === null) throw new StatsDomainError("toxicities", null, "are required at this look because the design has a safety rule");
   const prior = resolvePrior(rule.prior);
-  const posterior = posteriorMixture(prior, current.toxicities, current.n);
+  const posterior = posteriorMixture(prior, current.toxicities, current.safetyN);
   const probAboveLimit = mixtureSurvival(posterior, rule.qmax);
+  const seen = history.filter((h) => h.toxicities !== null);
+  const atActual = safetyBoundaries(rule, seen.map((h) => h.safetyN));
   return {
     qmax: rule.qmax,
     thetaS: rule.thetaS,
-    n: current.n,
+    n: current.safetyN,
     toxicities: current.toxicities,
     prior,
     posterior,
-    summary: summarisePosterior(prior, current.toxicities, current.n, level),
+    summary: summarisePosterior(prior, current.toxicities, current.safetyN, level),
     probAboveLimit,
     crossed: probAboveLimit > rule.thetaS,
     boundary: boundary ?? [],
-    observedPath: history.filter((h) => h.toxicities !== null).map((h) => ({ lookNumber: h.lookNumber, n: h.n, toxicities: h.toxicities as number })),
+    observedPath: seen.map((h) => ({ lookNumber: h.lookNumber, n: h.safetyN, toxicities: h.toxicities as number })),
+    observed: seen.map((h, k) => {
+      const p = h.plannedN === null ? undefined : boundary?.find((r) => r.n === h.plannedN);
+      const t = atActual[k].toxicityMin;
+      return {
+        lookNumber: h.lookNumber,
+        plannedN: h.plannedN,
+        n: h.safetyN,
+        toxicities: h.toxicities as number,
+        toxicityMin: t,
+        planned: p ? { n: p.n, toxicityMin: p.toxicityMin } : null,
+        crossed: t !== null && (h.toxicities as number) >= t,
+      };
+    }),
     curves: mixtureCurves(posterior, points),
   };
 }
@@ -362,6 +503,7 @@ export function computeReview(input: ReviewInput): Review {
     ruleKind: design.rule.kind,
     plannedLooks,
     boundaries,
+    observedBoundaries: observedBoundaryRows(design, history, boundaries),
     observedPath: history.map((h) => ({ lookNumber: h.lookNumber, n: h.n, responders: h.responders })),
     safety: safetyReview(design, history, current, level, points, safetyBoundary),
     sensitivity: sensitivity(design, current, roles, level),

@@ -6,12 +6,16 @@ import "server-only";
 import { fetchAnalysesOpen } from "@/db/queries/analyses";
 import { fetchArmAtLook, fetchArmCountsForTrial } from "@/db/queries/closed";
 import { fetchDesign, parseStoredDesign } from "@/db/queries/designs";
+import { fetchRecommendationsClosed, fetchReviewSignatures } from "@/db/queries/recommendations";
 import { fetchArms } from "@/db/queries/trials";
 import type { AnalysisOpenRow, TrialRow } from "@/db/types";
 import { notFoundError, conflict } from "@/lib/http";
 import { armPosterior, computeReview, reproducibilityRecord, type ReviewInput, type ReviewLook } from "./compute-review";
 
-export type ReviewContext = { input: ReviewInput; analysis: AnalysisOpenRow; looks: AnalysisOpenRow[] };
+/** The design version a review is computed under (the one the look is on: locked looks keep theirs). */
+export type ReviewDesignVersion = { id: number; version: number; status: "draft" | "locked" | "superseded"; lockedAt: Date | null };
+
+export type ReviewContext = { input: ReviewInput; analysis: AnalysisOpenRow; looks: AnalysisOpenRow[]; designVersion: ReviewDesignVersion };
 
 const REVIEWABLE = new Set(["locked", "reviewed"]);
 const NOT_LOCKED = "This look has not been locked yet, so there is nothing to review.";
@@ -35,6 +39,7 @@ export async function loadReviewInput(trial: TrialRow, analysisId: number, now: 
     analysisId: l.id,
     lookNumber: l.look_number,
     cutoffDate: cutoffText(l.cutoff_date),
+    plannedN: l.planned_n,
     counts: counts
       .filter((c) => c.analysis_id === l.id)
       .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
@@ -42,6 +47,7 @@ export async function loadReviewInput(trial: TrialRow, analysisId: number, now: 
   return {
     analysis,
     looks,
+    designVersion: { id: design.id, version: design.version, status: design.status, lockedAt: design.locked_at },
     input: {
       design: design.spec,
       arms: arms.map((a) => ({ id: a.id, label: a.label, role: a.arm_role })),
@@ -57,9 +63,27 @@ export async function loadReview(trial: TrialRow, analysisId: number) {
   return { ...ctx, review: computeReview(ctx.input) };
 }
 
+/**
+ * The JSON export (unblinded only: the caller passed viewClosed). Beside the inputs and outputs it
+ * names the design version used, the review version, and the signatures that locked the design and
+ * the look and that recorded each recommendation, with the hashes of the records they signed, so
+ * an auditor can tie the numbers to the signed records.
+ */
 export async function loadReproducibilityRecord(trial: TrialRow, analysisId: number) {
   const ctx = await loadReviewInput(trial, analysisId);
-  return { ...reproducibilityRecord(ctx.input), trial: { id: trial.id, code: trial.code } };
+  const [signatures, recommendations] = await Promise.all([fetchReviewSignatures(analysisId), fetchRecommendationsClosed(trial.id, analysisId)]);
+  return {
+    ...reproducibilityRecord(ctx.input),
+    trial: { id: trial.id, code: trial.code },
+    provenance: {
+      designVersion: ctx.designVersion,
+      reviewVersion: ctx.analysis.review_version,
+      amendment: ctx.analysis.amendment_count,
+      designSignature: signatures.design,
+      lockSignature: signatures.lock,
+      recommendations: recommendations.map((r) => ({ id: r.id, reviewVersion: r.reviewVersion, superseded: r.superseded, decision: r.decision, correctsId: r.correctsId, signatureId: r.signatureId, recordHash: r.recordHash, signedAt: r.signedAt })),
+    },
+  };
 }
 
 /** One arm's posterior at one look; a single query, because the interval question asks it at typing speed. */

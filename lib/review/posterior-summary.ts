@@ -4,7 +4,7 @@
  */
 import { cdfGrid, densityGrid, posteriorSummary, probInInterval, type PosteriorSummary as EngineSummary } from "@/lib/stats/posterior";
 import type { CredibleRegion } from "@/lib/stats/hpd";
-import { clopperPearsonInterval } from "@/lib/stats/frequentist";
+import { clopperPearsonInterval, wilsonInterval } from "@/lib/stats/frequentist";
 import type { MixtureBeta } from "@/lib/stats/types";
 import { requireData, StatsDomainError } from "@/lib/stats/validate";
 
@@ -25,6 +25,12 @@ export function summarisePosterior(prior: MixtureBeta, x: number, n: number, lev
 export function clopperPearson(x: number, n: number, level: number): Interval {
   requireData(x, n);
   return n === 0 ? { lower: 0, upper: 1 } : clopperPearsonInterval(x, n, level);
+}
+
+/** Wilson score interval (Wilson 1927; Brown, Cai & DasGupta 2001); with no patients yet it is all of [0, 1]. */
+export function wilson(x: number, n: number, level: number): Interval {
+  requireData(x, n);
+  return n === 0 ? { lower: 0, upper: 1 } : wilsonInterval(x, n, level);
 }
 
 /** Density (clipped where infinite, ends listed) and cumulative curve on `points` rates from 0 to 1. */

@@ -31,12 +31,12 @@ export async function recordRecommendation(access: TrialAccess, analysisId: numb
     if (!analysis || analysis.trial_id !== access.trial.id) throw notFoundError("That analysis");
     if (analysis.status !== "locked" && analysis.status !== "reviewed")
       throw conflict("Only a locked analysis can be reviewed: this look has not been locked yet.");
-    const current = await fetchCurrentRecommendationIds(tx, analysisId);
+    const current = await fetchCurrentRecommendationIds(tx, analysisId, analysis.review_version);
     if (input.correctsId === null && current.length > 0)
       throw conflict("A recommendation is already recorded for this look. Recorded recommendations are never edited: record a correction instead.");
     if (input.correctsId !== null && !current.includes(input.correctsId))
       throw new HttpError(409, "Only the current recommendation of this look can be corrected; it may have been corrected already. Reload the page.", { field: "correctsId" });
-    const record = { analysisId, decision: input.decision, rationale: input.rationale, correctsId: input.correctsId };
+    const record = { analysisId, reviewVersion: analysis.review_version, decision: input.decision, rationale: input.rationale, correctsId: input.correctsId };
     const signature = await insertSignature(tx, {
       userId: access.user.id,
       signerName: access.user.name,
@@ -46,7 +46,7 @@ export async function recordRecommendation(access: TrialAccess, analysisId: numb
       entityId: analysisId,
       record,
     });
-    const id = await insertRecommendation(tx, { trialId: access.trial.id, analysisId, decision: input.decision, rationale: input.rationale, correctsId: input.correctsId, signatureId: signature.id, createdBy: access.user.id, createdAt: now });
+    const id = await insertRecommendation(tx, { trialId: access.trial.id, analysisId, decision: input.decision, rationale: input.rationale, correctsId: input.correctsId, signatureId: signature.id, createdBy: access.user.id, createdAt: now, reviewVersion: analysis.review_version });
     if (analysis.status === "locked") {
       const ok = await updateAnalysisOpenFields(tx, analysisId, analysis.row_version, { status: "reviewed", reviewed_at: now });
       if (!ok) throw conflict("The analysis changed while the recommendation was being recorded; nothing was saved. Reload and try again.");
@@ -60,7 +60,7 @@ export async function recordRecommendation(access: TrialAccess, analysisId: numb
       entityType: "recommendation",
       entityId: id,
       visibility: "open",
-      newValues: { analysisId, lookNumber: analysis.look_number, decision: input.decision, correctsId: input.correctsId, signatureId: signature.id },
+      newValues: { analysisId, lookNumber: analysis.look_number, reviewVersion: analysis.review_version, decision: input.decision, correctsId: input.correctsId, signatureId: signature.id },
     });
     return { id, analysisId, decision: input.decision, correctsId: input.correctsId, signatureId: signature.id, recordedAt: now.toISOString() };
   });

@@ -53,6 +53,13 @@ test("the DMC member opens the latest analysis, reads the plots, asks an interva
   const reviewJson = await (await page.request.get(`/api/trials/${trialPath.split("/").pop()}/analyses/${analysisId}/review`)).json();
   const { responders, evaluable } = reviewJson.arms[0];
   await expect(page.getByRole("table", { name: "Posterior summaries" })).toContainText(`${responders} / ${evaluable}`);
+  await expect(page.getByRole("columnheader", { name: /^Wilson \d+%$/ })).toBeVisible();
+  // Every look done is placed against the boundaries at its actual evaluable count, planned size beside it.
+  const observed = page.getByRole("table", { name: "Looks done against the boundaries at their actual size" });
+  await expect(observed.getByTestId("observed-boundary-row")).toHaveCount(reviewJson.observedBoundaries.length);
+  const last = reviewJson.observedBoundaries.at(-1);
+  await expect(observed.getByTestId("observed-boundary-row").last()).toContainText(String(last.n));
+  await expect(page.getByTestId("review-versions")).toContainText(/design version \d+ · review version \d+/);
 
   // The interval question, answered as they type, without a reload.
   await page.evaluate(() => ((window as unknown as { __sameDocument: boolean }).__sameDocument = true));

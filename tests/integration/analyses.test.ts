@@ -211,9 +211,15 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
     const err = await expectNothingWritten(a1, () => reopenAnalysis(stat, t.trialId, a1, { rowVersion: 5, reason: "typo" }));
     expect(err).toBeInstanceOf(ZodError);
     const reason = "Two responders in the control arm were miscoded at site 3.";
-    await expectOneAuditRow("open", "analysis_reopened_for_amendment", () => reopenAnalysis(stat, t.trialId, a1, { rowVersion: 5, reason }));
-    expect(await look(a1)).toMatchObject({ status: "open", amendment_count: 1, locked_at: null, lock_signature_id: null });
-    expect((await lastAudit()).reason).toBe(reason);
+    // Two rows: the open one says a correction was opened; the reason (free text about closed data) is in a closed one.
+    const before = await auditCount();
+    await reopenAnalysis(stat, t.trialId, a1, { rowVersion: 5, reason });
+    expect(await auditCount()).toBe(before + 2);
+    const [closedRow, openRow] = await db("audit_events").orderBy("id", "desc").limit(2);
+    expect(openRow).toMatchObject({ action: "analysis_reopened_for_amendment", visibility: "open", reason: null });
+    expect(closedRow).toMatchObject({ action: "correction_reason_recorded", visibility: "closed", reason });
+    expect((await verifyAuditChain(db)).ok).toBe(true);
+    expect(await look(a1)).toMatchObject({ status: "open", amendment_count: 1, locked_at: null, lock_signature_id: null, review_version: 1 });
     const oldCounts = (await db("analysis_arm_counts").where({ analysis_id: a1 }).orderBy("arm_id")).map((c: { enrolled: number }) => c.enrolled);
     await expectOneAuditRow("closed", "counts_entered", () =>
       saveArmCounts(stat, t.trialId, a1, { rowVersion: 6, cutoffDate: "2026-05-31", counts: counts([24, 22, 10], [23, 21, 4]), reason }),

@@ -13,6 +13,9 @@ import { expandLooks } from "@/lib/stats/looks";
 import type { SingleArmDesign } from "@/lib/stats/types";
 import { statusOf } from "./support/status";
 import { giveRole, makeTrial, makeUser, resetDatabase, db } from "./support/db";
+import { replaceArmCounts } from "@/db/queries/closed";
+import { loadReviewInput } from "@/lib/review/load-review";
+import { fetchTrial } from "@/db/queries/trials";
 
 type User = Awaited<ReturnType<typeof makeUser>>;
 let stat: User;
@@ -210,6 +213,42 @@ describe("amendments", () => {
     expect(JSON.parse(versions[0].spec)).toEqual(design);
     const looks = await db("analyses").where({ trial_id: trialId }).orderBy("planned_n");
     expect(looks.map((a: { planned_n: number }) => a.planned_n)).toEqual([10, 20, 25, 30, 40]);
+    expect((await verifyAuditChain()).ok).toBe(true);
+  });
+
+  it("amendments move open looks (finding 5): a look holding counts but not locked follows the new locked design, a locked look keeps its design, the audit row records the move and the review names its design version", async () => {
+    const d = await createDraftDesign(access, design);
+    await lockDesign(access, d.id, d.row_version, stat.password);
+    const [l1, l2] = await db("analyses").where({ trial_id: trialId }).orderBy("look_number");
+    const arm = await db("arms").where({ trial_id: trialId }).first();
+    // Look 1 locked under version 1; look 2 open for entry with counts already saved.
+    await replaceArmCounts(db as never, l1.id, [{ armId: arm.id, enrolled: 11, evaluable: 10, responders: 4, toxicities: 0 }]);
+    await db("analyses").where({ id: l1.id }).update({ status: "locked", cutoff_date: "2026-03-01", enrolled_total: 11, locked_at: new Date() });
+    await replaceArmCounts(db as never, l2.id, [{ armId: arm.id, enrolled: 22, evaluable: 21, responders: 7, toxicities: 1 }]);
+    await db("analyses").where({ id: l2.id }).update({ status: "open", cutoff_date: "2026-05-01", enrolled_total: 22 });
+
+    const amendment = await amendDesign(access, d.id, "Stricter futility threshold agreed with the DMC");
+    const changed: SingleArmDesign = { ...design, rule: { ...design.rule, futilityThreshold: 0.1 } };
+    const saved = await updateDraftDesign(access, amendment.id, amendment.row_version, changed);
+    await lockDesign(access, amendment.id, saved.row_version, stat.password);
+
+    const after = await db("analyses").where({ trial_id: trialId }).orderBy("look_number");
+    expect(after.find((a: { id: number }) => a.id === l1.id).design_id).toBe(d.id);
+    expect(after.find((a: { id: number }) => a.id === l2.id)).toMatchObject({ design_id: amendment.id, status: "open", planned_n: 20 });
+    expect(after.filter((a: { status: string }) => a.status === "planned").every((a: { design_id: number }) => a.design_id === amendment.id)).toBe(true);
+    const row = await db("audit_events").where({ action: "design_locked" }).orderBy("id", "desc").first();
+    expect(JSON.parse(row.new_values).movedLooks).toEqual([
+      { analysisId: l2.id, lookNumber: 2, status: "open", fromDesignId: d.id, toDesignId: amendment.id, fromPlannedN: 20, plannedN: 20 },
+    ]);
+
+    // Look 2 locked now: reviewed under version 2 (the new futility threshold); look 1 still under version 1.
+    await db("analyses").where({ id: l2.id }).update({ status: "locked", locked_at: new Date() });
+    const trial = (await fetchTrial(trialId))!;
+    const r2 = await loadReviewInput(trial, l2.id);
+    expect(r2.designVersion).toMatchObject({ id: amendment.id, version: 2 });
+    expect(r2.input.design.rule.futilityThreshold).toBe(0.1);
+    const r1 = await loadReviewInput(trial, l1.id);
+    expect(r1.designVersion).toMatchObject({ id: d.id, version: 1, status: "superseded" });
     expect((await verifyAuditChain()).ok).toBe(true);
   });
 

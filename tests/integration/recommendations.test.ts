@@ -18,6 +18,10 @@ import { replaceArmCounts } from "@/db/queries/closed";
 import type { SingleArmDesign } from "@/lib/stats/types";
 import type { PublicUser } from "@/db/types";
 import { db, giveRole, killMidTransaction, makeTrial, makeUser, resetDatabase } from "./support/db";
+import { lockAnalysis, reopenAnalysis } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { fetchAuditEvents } from "@/db/audit";
+import { loadReproducibilityRecord } from "@/lib/review/load-review";
+import { fetchTrial } from "@/db/queries/trials";
 
 const DESIGN: SingleArmDesign = {
   arms: "single",
@@ -147,7 +151,7 @@ describe("recording a recommendation", () => {
 
     const sig = await db("signatures").where({ id: rec.signatureId }).first();
     expect(sig).toMatchObject({ user_id: dmc.id, signer_name: dmc.name, meaning: "recommendation recorded", entity_type: "analysis", entity_id: lockedLook });
-    expect(sig.record_hash).toBe(recordHash({ analysisId: lockedLook, decision: "continue", rationale: good.rationale, correctsId: null }));
+    expect(sig.record_hash).toBe(recordHash({ analysisId: lockedLook, reviewVersion: 1, decision: "continue", rationale: good.rationale, correctsId: null }));
 
     const analysis = await db("analyses").where({ id: lockedLook }).first();
     expect(analysis.status).toBe("reviewed");
@@ -187,8 +191,81 @@ describe("recording a recommendation", () => {
     const open = await fetchRecommendationsOpen(trialId);
     expect(open).toHaveLength(2);
     for (const r of open) {
-      expect(Object.keys(r).sort()).toEqual(["analysisId", "correctsId", "decision", "id", "lookNumber", "recordedAt", "signerName"]);
+      expect(Object.keys(r).sort()).toEqual(["analysisId", "correctsId", "decision", "id", "lookNumber", "recordedAt", "reviewVersion", "signerName", "superseded"]);
       expect(JSON.stringify(r)).not.toContain("amended visit schedule");
     }
+  });
+});
+
+describe("correction after review (finding 6): reopening a reviewed look starts a new review version", () => {
+  let stat: PublicUser & { password: string };
+  const reason = "Site 4 reported two responders late; the cumulative counts at this cut-off were wrong.";
+  beforeAll(async () => {
+    stat = await makeUser({ name: "Invented statistician" });
+    await giveRole(stat.id, trialId, "unblinded_statistician");
+  });
+  const lookRow = () => db("analyses").where({ id: lockedLook }).first();
+
+  it("without a password, or with a wrong one, nothing is signed or written (422)", async () => {
+    const look = await lookRow();
+    expect(look.status).toBe("reviewed");
+    const before = { ...(await counts()), look };
+    expect(await statusOf(reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason }))).toBe(422);
+    expect(await statusOf(reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason, password: "wrong-password" }))).toBe(422);
+    expect(await statusOf(reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason: "short", password: stat.password }))).toBe("zod");
+    expect({ ...(await counts()), look: await lookRow() }).toEqual(before);
+  });
+
+  it("with a reason and the password: review version 2, a signature bound to the reopening, an open audit row without the reason and a closed one with it", async () => {
+    const look = await lookRow();
+    const auditBefore = (await counts()).audit;
+    const out = await reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason, password: stat.password });
+    expect(out).toMatchObject({ reviewVersion: 2, amendment: look.amendment_count + 1 });
+    expect(await lookRow()).toMatchObject({ status: "open", review_version: 2, amendment_count: look.amendment_count + 1, lock_signature_id: null, reviewed_at: null });
+    const sig = await db("signatures").where({ id: out.signatureId }).first();
+    expect(sig).toMatchObject({ user_id: stat.id, meaning: "review reopened for correction", entity_type: "analysis", entity_id: lockedLook });
+    expect(sig.record_hash).toBe(recordHash({ trialId, analysisId: lockedLook, lookNumber: 1, reviewVersion: 1, newReviewVersion: 2, amendment: look.amendment_count + 1, reason }));
+    const rows = await db("audit_events").where("id", ">", 0).orderBy("id", "desc").limit(2);
+    expect((await counts()).audit).toBe(auditBefore + 2);
+    const [closedRow, openRow] = rows;
+    expect(openRow).toMatchObject({ action: "review_reopened_for_correction", visibility: "open", reason: null });
+    expect(`${openRow.new_values}${openRow.old_values}`).not.toContain("Site 4");
+    expect(closedRow).toMatchObject({ action: "correction_reason_recorded", visibility: "closed", reason });
+    // What a blinded role reads of the trail: the correction was opened, not why.
+    const open = await fetchAuditEvents({ trialId, openOnly: true });
+    expect(JSON.stringify(open)).not.toContain("Site 4");
+    expect((await verifyAuditChain(db)).ok).toBe(true);
+  });
+
+  it("recommendations stay on review version 1 and are superseded, in the closed list and in the open status (without data)", async () => {
+    const closed = await fetchRecommendationsClosed(trialId, lockedLook);
+    expect(closed.length).toBeGreaterThan(0);
+    for (const r of closed) expect(r).toMatchObject({ reviewVersion: 1, superseded: true });
+    const open = (await fetchRecommendationsOpen(trialId)).filter((r) => r.analysisId === lockedLook);
+    for (const r of open) expect(r).toMatchObject({ reviewVersion: 1, superseded: true });
+  });
+
+  it("after the corrected look is locked again, the DMC records a first recommendation on version 2; only that one is current, and the export names the versions and signatures", async () => {
+    let look = await lookRow();
+    await lockAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, password: stat.password });
+    const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
+    const rec = await recordRecommendation(access, lockedLook, { ...good, decision: "continue_modified", password: dmc.password });
+    expect(rec.correctsId).toBeNull();
+    const list = await fetchRecommendationsClosed(trialId, lockedLook);
+    expect(list.filter((r) => !r.superseded).map((r) => [r.id, r.reviewVersion])).toEqual([[rec.id, 2]]);
+    look = await lookRow();
+    expect(look).toMatchObject({ status: "reviewed", review_version: 2 });
+
+    const trial = (await fetchTrial(trialId))!;
+    const json = await loadReproducibilityRecord(trial, lockedLook);
+    expect(json.provenance.reviewVersion).toBe(2);
+    expect(json.provenance.designVersion).toMatchObject({ id: look.design_id, version: 1 });
+    const lockSig = await db("signatures").where({ id: look.lock_signature_id }).first();
+    expect(json.provenance.lockSignature).toMatchObject({ signatureId: lockSig.id, recordHash: lockSig.record_hash, meaning: "analysis locked" });
+    const designSig = await db("designs as d").join("signatures as s", "s.id", "d.signature_id").where("d.id", look.design_id).first("s.id", "s.record_hash");
+    expect(json.provenance.designSignature).toMatchObject({ signatureId: designSig.id, recordHash: designSig.record_hash });
+    const recSig = await db("signatures").where({ id: rec.signatureId }).first();
+    expect(json.provenance.recommendations.find((r) => r.id === rec.id)).toMatchObject({ reviewVersion: 2, superseded: false, signatureId: recSig.id, recordHash: recSig.record_hash });
+    expect(json.outputs.arms[0].wilson.lower).toBeGreaterThan(0);
   });
 });

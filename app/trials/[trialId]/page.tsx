@@ -44,6 +44,11 @@ export default async function TrialOverviewPage({ params }: { params: Promise<{ 
               Look {latest.lookNumber} · recorded {isoDay(latest.recordedAt)}
               {latest.correctsId ? " · corrects an earlier entry" : ""}
             </p>
+            {latest.superseded ? (
+              <p className="mt-1 text-sm" data-testid="recommendation-superseded">
+                <Badge tone="amber">superseded</Badge> The look was reopened for a correction after this recommendation; a new review is due.
+              </p>
+            ) : null}
           </div>
         ) : (
           <p className="text-sm text-stone-600">No recommendation has been recorded yet.</p>
@@ -92,7 +97,10 @@ export default async function TrialOverviewPage({ params }: { params: Promise<{ 
                       <Badge tone={l.status === "reviewed" ? "lichen" : l.status === "locked" ? "teal" : "neutral"}>{ANALYSIS_STATUS_LABELS[l.status]}</Badge>
                     </td>
                     <td>{l.cutoff_date && l.locked_at ? differenceInCalendarDays(new Date(isoDay(l.locked_at)), new Date(l.cutoff_date)) : "—"}</td>
-                    <td>{rec ? `${DECISION_LABELS[rec.decision]} (${isoDay(rec.recordedAt)})` : "—"}</td>
+                    <td>
+                      {rec ? `${DECISION_LABELS[rec.decision]} (${isoDay(rec.recordedAt)})` : "—"}
+                      {rec?.superseded ? <> <Badge tone="amber">superseded</Badge></> : null}
+                    </td>
                   </tr>
                 );
               })}

@@ -44,7 +44,10 @@ export default async function ClosedReviewListPage({ params }: { params: Promise
                     <Badge tone={a.status === "reviewed" ? "lichen" : "teal"}>{ANALYSIS_STATUS_LABELS[a.status]}</Badge>
                   </td>
                   <td>{a.locked_at ? new Date(a.locked_at).toISOString().slice(0, 10) : "—"}</td>
-                  <td>{rec ? DECISION_LABELS[rec.decision] : "—"}</td>
+                  <td>
+                    {rec ? DECISION_LABELS[rec.decision] : "—"}
+                    {rec?.superseded ? <> <Badge tone="amber">{`superseded: review version ${a.review_version} in force`}</Badge></> : null}
+                  </td>
                   <td>
                     <Link className="font-medium text-lichen-700 underline" href={`/trials/${trial.id}/review/${a.id}`}>
                       {`Open look ${a.look_number}`}

@@ -143,7 +143,7 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
           <ReopenForm trialId={trial.id} analysisId={a.id} rowVersion={a.row_version} lookNumber={a.look_number} />
         </Card>
       ) : null}
-      {a.status === "reviewed" ? <Banner tone="info">The DMC has reviewed this look; it can no longer be changed here.</Banner> : null}
+      {a.status === "reviewed" ? <Banner tone="info">The DMC has reviewed this look. A correction now needs your e-signature and starts a new review version: reopen it from the look&apos;s closed review page.</Banner> : null}
 
       {patients.length ? (
         <Card title="Patient-level rows">

@@ -92,6 +92,8 @@ export const reopenAnalysisSchema = z.object({
     .trim()
     .min(10, "Give the reason for the correction (at least 10 characters).")
     .max(1000, "The reason can be at most 1000 characters."),
+  /** Needed only to reopen a reviewed look: that correction is signed (the password is asked again). */
+  password: z.string().min(1, "Enter your password to sign.").max(200, "That password is too long.").optional(),
 });
 
 export const uploadConfirmQuerySchema = z.object({

@@ -227,26 +227,62 @@ export async function lockAnalysis(actor: PublicUser, trialId: number, analysisI
   });
 }
 
-/** Reopens a locked look for a correction: needs a reason, counts as an amendment. */
+/**
+ * Reopens a locked look for a correction: needs a reason, counts as an amendment. A reviewed look
+ * can be reopened too, with an e-signature (password asked again): that starts a new review
+ * version, and the recommendations made on the earlier one are superseded (never edited).
+ * The reason is free text about closed data, so it goes to a closed audit row; the open row says
+ * only that a correction was opened.
+ */
 export async function reopenAnalysis(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
   const input = reopenAnalysisSchema.parse(body);
+  const current = await fetchAnalysisOpen(analysisId);
+  const afterReview = current?.trial_id === trialId && current.status === "reviewed";
+  if (afterReview) {
+    if (!input.password)
+      throw new HttpError(422, "A reviewed look is reopened with your e-signature: enter your password.", { issues: [{ path: "password", message: "Enter your password to sign." }] });
+    await confirmSigner(actor, input.password);
+  }
   return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
-    if (a.status === "reviewed") throw conflict(`Look ${a.look_number} has been reviewed by the DMC; it cannot be reopened here.`);
-    if (a.status !== "locked") throw conflict(`Look ${a.look_number} is not locked, so there is nothing to reopen.`);
+    if (a.status === "reviewed" && !afterReview) throw conflict(`Look ${a.look_number} was reviewed meanwhile; reload the page and sign the reopening.`);
+    if (a.status !== "locked" && a.status !== "reviewed") throw conflict(`Look ${a.look_number} is not locked, so there is nothing to reopen.`);
     const amendment = a.amendment_count + 1;
-    await bump(tx, a, { status: "open", locked_at: null, lock_signature_id: null, amendment_count: amendment });
+    const reviewVersion = a.status === "reviewed" ? a.review_version + 1 : a.review_version;
+    const sig =
+      a.status === "reviewed"
+        ? await insertSignature(tx, {
+            userId: actor.id,
+            signerName: actor.name,
+            signerEmail: actor.email,
+            meaning: "review reopened for correction",
+            entityType: "analysis",
+            entityId: a.id,
+            record: { trialId, analysisId: a.id, lookNumber: a.look_number, reviewVersion: a.review_version, newReviewVersion: reviewVersion, amendment, reason: input.reason },
+          })
+        : null;
+    await bump(tx, a, { status: "open", locked_at: null, lock_signature_id: null, amendment_count: amendment, review_version: reviewVersion, ...(sig ? { reviewed_at: null } : {}) });
+    const action = sig ? "review_reopened_for_correction" : "analysis_reopened_for_amendment";
     await appendAudit(tx, {
       ...actorFields(actor),
       trialId,
-      action: "analysis_reopened_for_amendment",
+      action,
       entityType: "analysis",
       entityId: a.id,
       visibility: "open",
-      oldValues: { lookNumber: a.look_number, status: a.status, lockedAt: a.locked_at, signatureId: a.lock_signature_id, amendment: a.amendment_count },
-      newValues: { lookNumber: a.look_number, status: "open", amendment },
+      oldValues: { lookNumber: a.look_number, status: a.status, lockedAt: a.locked_at, signatureId: a.lock_signature_id, amendment: a.amendment_count, reviewVersion: a.review_version },
+      newValues: { lookNumber: a.look_number, status: "open", amendment, reviewVersion, ...(sig ? { signatureId: sig.id, meaning: sig.meaning, signer: sig.signer_name } : {}) },
+    });
+    await appendAudit(tx, {
+      ...actorFields(actor),
+      trialId,
+      action: "correction_reason_recorded",
+      entityType: "analysis",
+      entityId: a.id,
+      visibility: "closed",
+      newValues: { lookNumber: a.look_number, amendment, reviewVersion, ...(sig ? { signatureId: sig.id, recordHash: sig.record_hash } : {}) },
       reason: input.reason,
     });
-    return { rowVersion: a.row_version + 1, amendment };
+    return { rowVersion: a.row_version + 1, amendment, reviewVersion, signatureId: sig?.id ?? null };
   });
 }

@@ -63,7 +63,7 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
             <dt className="text-stone-500">Reminder</dt>
             <dd>{meeting.reminder_days_before} days before{meeting.reminder_sent_at ? ` (sent ${utc(meeting.reminder_sent_at)} UTC)` : ""}</dd>
             <dt className="text-stone-500">Recommendation made</dt>
-            <dd>{recommendation ? `${DECISION_LABELS[recommendation.decision]} (signed by ${recommendation.signerName})` : "none recorded for this look"}</dd>
+            <dd>{recommendation ? `${DECISION_LABELS[recommendation.decision]} (signed by ${recommendation.signerName})${recommendation.superseded ? ", superseded: the look was reopened for a correction" : ""}` : "none recorded for this look"}</dd>
           </dl>
           <h3 className="mt-4 text-sm font-semibold">Open session agenda</h3>
           <p className="whitespace-pre-wrap text-sm text-stone-700">{meeting.open_agenda || "None entered."}</p>

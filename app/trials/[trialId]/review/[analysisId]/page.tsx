@@ -15,6 +15,7 @@ import { DataGrid } from "@/components/grid/data-grid";
 import { BoundaryPlot, CumulativePlot, DifferencePlot, PredictiveOverLooksPlot, ToxicityPlot } from "@/components/review/review-charts";
 import { IntervalQuestion } from "@/components/review/interval-question";
 import { RecommendationForm } from "@/components/review/recommendation-form";
+import { ReopenReviewForm } from "@/components/review/reopen-review-form";
 import { ANALYSIS_STATUS_LABELS, DECISION_LABELS, formatBoundary, formatProbability, formatRate } from "@/lib/format";
 import type { Interval, HpdRegion } from "@/lib/review/posterior-summary";
 import type { Review } from "@/lib/review/compute-review";
@@ -58,9 +59,12 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
     }
     throw e;
   }
-  const { review, analysis, input } = loaded;
+  const { review, analysis, input, designVersion } = loaded;
   const recommendations = await fetchRecommendationsClosed(trial.id, analysisId);
-  const current = recommendations.find((r) => r.correctedById === null) ?? null;
+  // Recommendations of an earlier review version are superseded, never corrected.
+  const current = recommendations.find((r) => r.correctedById === null && !r.superseded) ?? null;
+  const nText = (o: { n: number; nControl: number | null }) => (o.nControl === null ? String(o.n) : `${o.n} / ${o.nControl}`);
+  const REGION = { futility: "futility region", continue: "between the boundaries", efficacy: "efficacy region" } as const;
   const design = input.design;
   const single = review.designKind === "single";
   const rule = design.rule;
@@ -76,6 +80,11 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
               Closed review
             </Link>{" "}
             · Look {review.lookNumber} · data cut-off {review.cutoffDate ?? "—"} · <Badge tone={analysis.status === "reviewed" ? "lichen" : "teal"}>{ANALYSIS_STATUS_LABELS[analysis.status]}</Badge>
+          </p>
+          <p className="text-sm text-stone-600" data-testid="review-versions">
+            Computed under design version {designVersion.version}
+            {designVersion.status === "superseded" ? " (the version this look was locked under; a later amendment is now in force)" : ""} · review version {analysis.review_version}
+            {analysis.amendment_count > 0 ? ` · amendment ${analysis.amendment_count}` : ""}
           </p>
           <h2 className="mt-1 text-xl font-semibold">Interim analysis, look {review.lookNumber}</h2>
         </div>
@@ -108,6 +117,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
                 <th>{Math.round(review.credibleLevel * 100)}% HPD</th>
                 {single ? <th>P(rate &gt; p0)</th> : null}
                 <th>Clopper-Pearson {Math.round(review.credibleLevel * 100)}%</th>
+                <th>Wilson {Math.round(review.credibleLevel * 100)}%</th>
               </tr>
             </thead>
             <tbody>
@@ -122,12 +132,13 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
                   <td>{hpdText(a.summary.hpd)}</td>
                   {single ? <td>{formatProbability(a.probAboveP0)}</td> : null}
                   <td>{interval(a.clopperPearson)}</td>
+                  <td>{interval(a.wilson)}</td>
                 </tr>
               ))}
             </tbody>
           </table>
           <p className="mt-2 text-xs text-stone-500">
-            Clopper-Pearson is the exact frequentist interval, shown for comparison. {single && design.arms === "single" ? `p0 = ${formatRate(design.p0)}.` : ""}
+            Clopper-Pearson (exact) and Wilson (score) are frequentist intervals, shown for comparison. {single && design.arms === "single" ? `p0 = ${formatRate(design.p0)}.` : ""}
           </p>
         </Card>
 
@@ -161,7 +172,36 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
         </Card>
 
         <Card title="Stopping boundaries" className="lg:col-span-2">
-          <BoundaryPlot boundaries={review.boundaries} observedPath={review.observedPath} twoArms={!single} />
+          <BoundaryPlot boundaries={review.boundaries} observedPath={review.observedPath} observedBoundaries={review.observedBoundaries} twoArms={!single} />
+          <table className="cairn-table my-3" aria-label="Looks done against the boundaries at their actual size">
+            <caption className="text-left text-sm text-stone-600">Each look done, against the boundaries computed at the number of evaluable patients actually observed{single ? "" : " (experimental arm, read at the observed control count)"}, beside those of its planned size.</caption>
+            <thead>
+              <tr>
+                <th>Look</th>
+                <th>Planned n</th>
+                <th>Actual n</th>
+                <th>Observed responders</th>
+                <th>Futility at actual n</th>
+                <th>Efficacy / success at actual n</th>
+                <th>Futility / efficacy at planned n</th>
+                <th>Where the observation sits</th>
+              </tr>
+            </thead>
+            <tbody>
+              {review.observedBoundaries.map((o) => (
+                <tr key={o.lookNumber} data-testid="observed-boundary-row">
+                  <td>{o.lookNumber}</td>
+                  <td>{o.plannedN ?? "—"}</td>
+                  <td>{nText(o)}</td>
+                  <td>{o.controlResponders === null ? o.responders : `${o.responders} (control ${o.controlResponders})`}</td>
+                  <td>{formatBoundary(o.futilityMax)}</td>
+                  <td>{formatBoundary(o.efficacyMin)}</td>
+                  <td>{o.planned ? `${formatBoundary(o.planned.futilityMax)} / ${formatBoundary(o.planned.efficacyMin)}` : "—"}</td>
+                  <td>{o.final ? (o.region === "efficacy" ? "success (final)" : "no success (final)") : REGION[o.region]}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
           <DataGrid
             label="Boundary table"
             height={Math.min(420, 60 + 42 * review.boundaries.length)}
@@ -174,12 +214,12 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
               ...(single ? [] : [{ field: "control" as const, headerName: "Read at control responders" }]),
             ]}
             rows={review.boundaries.map((b) => {
-              const seen = review.observedPath.find((o) => o.n === b.n);
+              const seen = review.observedBoundaries.find((o) => o.plannedN === b.n) ?? review.observedBoundaries.find((o) => o.plannedN === null && o.n === b.n);
               return {
                 look: `${b.n}${b.final ? " (final)" : ""}`,
                 futility: formatBoundary(b.futilityMax),
                 efficacy: formatBoundary(b.efficacyMin),
-                observed: seen ? String(seen.responders) : "—",
+                observed: seen ? (seen.n === b.n ? String(seen.responders) : `${seen.responders} of ${seen.n} (look ${seen.lookNumber})`) : "—",
                 control: b.controlResponders === undefined ? "" : `${b.controlResponders} (${b.controlBasis})`,
               };
             })}
@@ -207,12 +247,44 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
                     <tr key={b.n}>
                       <td>{b.n}</td>
                       <td>{formatBoundary(b.toxicityMin)}</td>
-                      <td>{review.safety!.observedPath.find((o) => o.n === b.n)?.toxicities ?? "—"}</td>
+                      <td>
+                        {(() => {
+                          const o = review.safety!.observed.find((x) => x.plannedN === b.n) ?? review.safety!.observed.find((x) => x.plannedN === null && x.n === b.n);
+                          return o ? (o.n === b.n ? o.toxicities : `${o.toxicities} of ${o.n} (look ${o.lookNumber})`) : "—";
+                        })()}
+                      </td>
                     </tr>
                   ))}
                 </tbody>
               </table>
             </div>
+            <table className="cairn-table mt-3" aria-label="Looks done against the safety boundary at their actual size">
+              <caption className="text-left text-sm text-stone-600">Each look done, against the safety boundary at the number of patients actually observed, beside that of its planned size.</caption>
+              <thead>
+                <tr>
+                  <th>Look</th>
+                  <th>Planned n</th>
+                  <th>Actual n</th>
+                  <th>Toxicities</th>
+                  <th>Stop at or above (actual n)</th>
+                  <th>Stop at or above (planned n)</th>
+                  <th>Crossed</th>
+                </tr>
+              </thead>
+              <tbody>
+                {review.safety.observed.map((o) => (
+                  <tr key={o.lookNumber} data-testid="observed-safety-row">
+                    <td>{o.lookNumber}</td>
+                    <td>{o.plannedN ?? "—"}</td>
+                    <td>{o.n}</td>
+                    <td>{o.toxicities}</td>
+                    <td>{formatBoundary(o.toxicityMin)}</td>
+                    <td>{o.planned ? formatBoundary(o.planned.toxicityMin) : "—"}</td>
+                    <td>{o.crossed ? <Badge tone="berry">yes</Badge> : "no"}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
           </Card>
         ) : null}
 
@@ -252,7 +324,8 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             {recommendations.map((r) => (
               <li key={r.id} className="rounded-md border border-stone-200 p-3" data-testid="recorded-recommendation">
                 <p className="font-semibold">
-                  {DECISION_LABELS[r.decision]} {r.correctedById ? <Badge>corrected by entry {r.correctedById}</Badge> : null} {r.correctsId ? <Badge tone="amber">corrects entry {r.correctsId}</Badge> : null}
+                  {DECISION_LABELS[r.decision]} {r.superseded ? <Badge tone="amber">{`superseded: made on review version ${r.reviewVersion}; the look was reopened for correction`}</Badge> : null}{" "}
+                  {r.correctedById ? <Badge>corrected by entry {r.correctedById}</Badge> : null} {r.correctsId ? <Badge tone="amber">corrects entry {r.correctsId}</Badge> : null}
                 </p>
                 <p className="mt-1 whitespace-pre-wrap text-sm">{r.rationale}</p>
                 <p className="mt-1 text-xs text-stone-500">
@@ -261,6 +334,12 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
               </li>
             ))}
           </ul>
+          {analysis.status === "reviewed" && allows(principal, "enterData") ? (
+            <div className="mb-4 rounded-md border border-stone-200 p-3">
+              <h3 className="mb-2 font-semibold">Correct this look after review</h3>
+              <ReopenReviewForm trialId={trial.id} analysisId={analysisId} rowVersion={analysis.row_version} lookNumber={analysis.look_number} reviewVersion={analysis.review_version} signerName={user.name} />
+            </div>
+          ) : null}
           {allows(principal, "recordRecommendation") ? (
             <RecommendationForm trialId={trial.id} analysisId={analysisId} correctsId={current?.id ?? null} signerName={user.name} />
           ) : (
