@@ -6,9 +6,9 @@
  */
 import { beforeAll, describe, expect, it, vi } from "vitest";
 import fc from "fast-check";
-import { actAs, currentSession, jsonRequest, routeContext } from "./support/as-user";
+import { actAs, currentClaims, currentSession, jsonRequest, routeContext } from "./support/as-user";
 
-vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null) }));
+vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null), sessionClaims: vi.fn(() => currentClaims()) }));
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }));
 // Password checks are not under test here, and bcrypt at full cost would make 1,000 runs slow.
 vi.mock("bcryptjs", () => ({ default: { hash: async () => "test-hash", compare: async () => false, hashSync: () => "test-hash" } }));
