@@ -35,8 +35,9 @@ export function backoffForMs(failureTimes: readonly number[], rule: BackoffRule,
 }
 
 /**
- * Three free tries per pair, then 1 s, 2 s, 4 s ... up to 5 minutes between tries; 30 failures per
- * address per 15 minutes (common practice for interactive sign-in, no source; the numbers are ours).
+ * Three failures per pair cost nothing; after the fourth the next try waits 1 s, then 2 s, 4 s ...
+ * up to 5 minutes; 30 failures per address per 15 minutes (common practice for interactive
+ * sign-in, no source; the numbers are ours).
  */
 export const SIGN_IN_LIMITS = {
   perPair: { windowMs: 15 * 60_000, freeFailures: 3, baseDelayMs: 1_000, maxDelayMs: 5 * 60_000 },
