@@ -338,7 +338,7 @@ describe("finding 6: separation of duties", () => {
 
   it("role change refuses bad input with a clear message and writes nothing", async () => {
     actAs(admin.id);
-    for (const payload of [{}, { userId: "x", trialId: String(trialId), role: "sponsor" }, { userId: String(admin.id), trialId: "0", role: "sponsor" }, { userId: String(admin.id), trialId: String(trialId), role: "owner" }, { userId: "99999999", trialId: String(trialId), role: "sponsor" }]) {
+    for (const payload of [{} as Record<string, string>, { userId: "x", trialId: String(trialId), role: "sponsor" }, { userId: String(admin.id), trialId: "0", role: "sponsor" }, { userId: String(admin.id), trialId: String(trialId), role: "owner" }, { userId: "99999999", trialId: String(trialId), role: "sponsor" }]) {
       const before = await count("trial_memberships");
       const audit = await count("audit_events");
       const state = await assignRole({}, formOf(payload));
