@@ -35,7 +35,9 @@ import { recordRecommendationAction } from "@/app/trials/[trialId]/review/[analy
 const RUNS = 1000;
 let ids: Record<string, number>;
 
-const auditCount = async () => Number((await db("audit_events").count({ n: "*" }).first())?.n);
+// A wrong signing password is refused and audited on purpose (an open row with no secret, issue 12):
+// that row is the only thing a refusal may write.
+const auditCount = async () => Number((await db("audit_events").whereNot({ action: "signature_password_failed" }).count({ n: "*" }).first())?.n);
 
 // Values that break naive code.
 const nastyValue = fc.oneof(
