@@ -91,7 +91,9 @@ export function RemoveRoleButton({ membershipId, label }: { membershipId: number
 /** Per-account actions: a new set-password link, deactivate or reactivate. */
 export function AccountActions({ userId, name, isActive, isSelf }: { userId: number; name: string; isActive: boolean; isSelf: boolean }) {
   const [linkState, linkAction, linkPending] = useActionState(sendPasswordLink, initial);
-  const [activeState, activeAction, activePending] = useActionState(isActive ? deactivateAccount : reactivateAccount, initial);
+  const [offState, offAction, offPending] = useActionState(deactivateAccount, initial);
+  const [onState, onAction, onPending] = useActionState(reactivateAccount, initial);
+  const activeState = isActive ? offState : onState;
   const message = activeState.error ?? linkState.error;
   return (
     <div className="flex flex-col gap-1">
@@ -102,17 +104,21 @@ export function AccountActions({ userId, name, isActive, isSelf }: { userId: num
             <Button type="submit" variant="quiet" aria-label={`Send a new set-password link to ${name}`} disabled={linkPending}>New link</Button>
           </form>
         ) : null}
-        {isSelf ? null : (
-          <form action={activeAction}>
+        {isSelf ? null : isActive ? (
+          <form action={offAction}>
             <input type="hidden" name="userId" value={userId} />
-            <Button type="submit" variant="quiet" aria-label={`${isActive ? "Deactivate" : "Reactivate"} ${name}`} disabled={activePending}>
-              {isActive ? "Deactivate" : "Reactivate"}
-            </Button>
+            <Button type="submit" variant="quiet" aria-label={`Deactivate ${name}`} disabled={offPending}>Deactivate</Button>
+          </form>
+        ) : (
+          <form action={onAction}>
+            <input type="hidden" name="userId" value={userId} />
+            <Button type="submit" variant="quiet" aria-label={`Reactivate ${name}`} disabled={onPending}>Reactivate</Button>
           </form>
         )}
       </div>
       {message ? <span role="alert" className="text-xs text-berry-700">{message}</span> : null}
-      {activeState.ok ? <span role="status" className="text-xs text-stone-700">{activeState.ok}</span> : null}
+      {offState.ok && !isActive ? <span role="status" className="text-xs text-stone-700">{offState.ok}</span> : null}
+      {onState.ok && isActive ? <span role="status" className="text-xs text-stone-700">{onState.ok}</span> : null}
       <LinkOnce state={linkState} />
     </div>
   );

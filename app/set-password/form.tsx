@@ -10,7 +10,9 @@ export function SetPasswordForm() {
   const [state, action, pending] = useActionState(setPassword, {} as SetPasswordState);
   const [token, setToken] = useState("");
   useEffect(() => {
-    setToken(window.location.hash.replace(/^#/, ""));
+    const fromLink = window.location.hash.replace(/^#/, "");
+    if (!fromLink) return;
+    setToken(fromLink);
     // The token should not stay in the address bar or the history once read.
     window.history.replaceState(null, "", window.location.pathname);
   }, []);

@@ -15,7 +15,7 @@ import "server-only";
  *   link used by someone else is noticed by its owner.
  */
 import { createHash, randomBytes } from "node:crypto";
-import { writeTransaction, type Tx } from "@/db/knex";
+import { db, writeTransaction, type Tx } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import {
   countActiveAdmins,
@@ -26,11 +26,11 @@ import {
   updateUserActive,
   updateUserPassword,
 } from "@/db/queries/users";
-import { fetchPasswordLinkForUpdate, insertPasswordLink, markPasswordLinkUsed, revokeOpenPasswordLinks } from "@/db/queries/password-links";
+import { fetchPasswordLinkByHash, fetchPasswordLinkForUpdate, insertPasswordLink, markPasswordLinkUsed, revokeOpenPasswordLinks } from "@/db/queries/password-links";
 import { deleteMembership, fetchMembershipById, fetchRolesOnTrial, insertMembership } from "@/db/queries/memberships";
 import { insertEmails } from "@/db/queries/emails";
 import { fetchTrial } from "@/db/queries/trials";
-import type { PublicUser, TrialRole, UserRow } from "@/db/types";
+import type { PasswordLinkRow, PublicUser, TrialRole, UserRow } from "@/db/types";
 import { config } from "@/lib/config";
 import { conflict, HttpError, notFoundError } from "@/lib/http";
 import { passwordChangedMail, passwordLinkMail } from "@/lib/mail/templates";
@@ -117,10 +117,13 @@ const LINK_UNUSABLE = "This set-password link is not valid: it may have expired,
 
 /** Sets the password of the link's account; the link then stops working and every session ends. */
 export async function setPasswordWithLink(token: string, password: string, now = new Date()): Promise<{ userId: number; emailId: number }> {
+  const usable = (l: PasswordLinkRow | undefined): l is PasswordLinkRow => !!l && !l.used_at && !l.revoked_at && new Date(l.expires_at).getTime() > now.getTime();
+  // A cheap look first, so a public request with a made-up token costs no bcrypt work.
+  if (!usable(await fetchPasswordLinkByHash(db, tokenSha256(token)))) throw new HttpError(422, LINK_UNUSABLE, { field: "token" });
   const passwordHash = await hashPassword(password);
   return writeTransaction(async (tx) => {
     const link = await fetchPasswordLinkForUpdate(tx, tokenSha256(token));
-    if (!link || link.used_at || link.revoked_at || new Date(link.expires_at).getTime() <= now.getTime()) throw new HttpError(422, LINK_UNUSABLE, { field: "token" });
+    if (!usable(link)) throw new HttpError(422, LINK_UNUSABLE, { field: "token" });
     const user = await fetchUserForUpdate(tx, link.user_id);
     if (!user || !user.is_active) throw new HttpError(422, LINK_UNUSABLE, { field: "token" });
     if ((await markPasswordLinkUsed(tx, link.id, now)) !== 1) throw new HttpError(422, LINK_UNUSABLE, { field: "token" });

@@ -127,8 +127,8 @@ grant_app_privileges() {
   {
     for t in $tables; do
       case "$t" in
-        # Append-only: the application may read and add, never change or remove (earlier UPDATE/DELETE
-        # grants on a database migrated before this rule are revoked; the grant above gives REVOKE a row).
+        # Append-only: the application may read and add, never change or remove. The REVOKE removes
+        # UPDATE/DELETE granted before this rule; the GRANT before it ensures REVOKE finds a grant row.
         audit_events|signatures|recommendations)
           echo "GRANT SELECT, INSERT ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';"
           echo "REVOKE UPDATE, DELETE ON \`$db\`.\`$t\` FROM '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
