@@ -2,6 +2,8 @@ import { expect, test } from "@playwright/test";
 import { signIn } from "./support/accounts";
 
 test("the administrator creates an account without ever choosing its password; the owner sets it through the one-time link", async ({ page, browser }) => {
+  // Three browser contexts and a dozen page loads: more than the default budget on a busy machine.
+  test.slow();
   await signIn(page, "admin");
   await page.goto("/admin");
   const form = page.getByRole("form", { name: "Create an account" });
@@ -73,6 +75,7 @@ test("the administrator creates an account without ever choosing its password; t
 });
 
 test("the administrator cannot give themselves an unblinded role, and a sponsor cannot also sit on the DMC", async ({ page }) => {
+  test.slow();
   await signIn(page, "admin");
   await page.goto("/admin");
   const give = page.getByRole("form", { name: "Give a role on a trial" });
