@@ -85,7 +85,9 @@ test("the administrator cannot give themselves an unblinded role, and a sponsor 
   await give.getByRole("button", { name: "Give role" }).click();
   await expect(give.getByText(/A second administrator must give it to you/)).toBeVisible();
 
+  // The form starts afresh after each answer: choose all three again.
   await give.getByLabel("Person").selectOption({ label: "Mara Vell <sponsor@cairn.example>" });
+  await give.getByLabel("Trial").selectOption({ index: 1 });
   await give.getByLabel("Role").selectOption("dmc_member");
   await give.getByRole("button", { name: "Give role" }).click();
   await expect(give.getByText(/blinded and unblinded sides of a trial are held by different people/)).toBeVisible();
