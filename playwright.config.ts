@@ -44,6 +44,9 @@ export default defineConfig({
         SMTP_HOST: "127.0.0.1",
         SMTP_PORT: String(smtpPort),
         CAIRN_MAIL_DIR: `.data/mail-e2e-${port}`,
+        // The tests play the part of one reverse proxy by setting X-Forwarded-For, to sign in from
+        // several addresses (tests/e2e/security.spec.ts); without this the header is ignored.
+        CAIRN_TRUSTED_PROXY: "1",
       },
     },
   ],

@@ -8,7 +8,7 @@ import { readSessionToken } from "@/lib/auth/session-token";
  * session), and lib/http's handle() refuses cross-site writes, so the proxy would only repeat
  * that work on the busiest path.
  */
-const PUBLIC = [/^\/signin$/, /^\/_next\//, /^\/favicon/, /^\/icon/];
+const PUBLIC = [/^\/signin$/, /^\/set-password$/, /^\/_next\//, /^\/favicon/, /^\/icon/];
 
 export async function proxy(req: NextRequest) {
   const { pathname } = req.nextUrl;

@@ -25,9 +25,9 @@ export async function SiteHeader() {
           <nav aria-label="Account" className="flex items-center gap-4 text-sm">
             <Link href="/trials">Trials</Link>
             {user.isAdmin ? <Link href="/admin">Administration</Link> : null}
-            <span className="text-stone-600" data-testid="signed-in-as">
+            <Link href="/account" className="text-stone-600" data-testid="signed-in-as" title="Your account: change your password">
               {user.name}
-            </span>
+            </Link>
             <SignOutButton />
           </nav>
         ) : null}

@@ -9,6 +9,8 @@ export type UserRow = {
   password_hash: string;
   is_admin: number | boolean;
   is_active: number | boolean;
+  /** Bumped by sign-out, a password change and deactivation; a session carrying an older one is refused. */
+  session_version: number;
   created_at: Date;
   updated_at: Date;
 };
@@ -164,11 +166,12 @@ export type PacketMetaRow = {
 /** CLOSED when audience is "closed": the PDF holds arm-level results. */
 export type PacketRow = PacketMetaRow & { pdf: Buffer };
 
-export type EmailKind = "packet_open" | "packet_closed_notice" | "meeting_reminder";
+export type EmailKind = "packet_open" | "packet_closed_notice" | "meeting_reminder" | "password_link" | "password_changed";
 export type EmailStatus = "queued" | "sending" | "sent" | "failed";
 export type EmailMessageRow = {
   id: number;
-  trial_id: number;
+  /** null for account mails (set-password link, password-changed notice). */
+  trial_id: number | null;
   meeting_id: number | null;
   packet_id: number | null;
   to_user_id: number | null;
@@ -183,5 +186,17 @@ export type EmailMessageRow = {
   sent_at: Date | null;
   smtp_message_id: string | null;
   created_by: number | null;
+  created_at: Date;
+};
+
+/** A one-time set-password link; only the SHA-256 of its token is stored. */
+export type PasswordLinkRow = {
+  id: number;
+  user_id: number;
+  token_sha256: string;
+  expires_at: Date;
+  used_at: Date | null;
+  revoked_at: Date | null;
+  issued_by: number | null;
   created_at: Date;
 };

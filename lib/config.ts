@@ -25,4 +25,6 @@ export const config = {
     from: process.env.MAIL_FROM ?? "Cairn <cairn@localhost>",
   }),
   mailCatcherDir: () => process.env.CAIRN_MAIL_DIR ?? ".data/mail",
+  /** Off by default: X-Forwarded-For is ignored unless Cairn runs behind one reverse proxy that sets it. */
+  trustedProxy: () => ["1", "true", "yes", "on"].includes((process.env.CAIRN_TRUSTED_PROXY ?? "").toLowerCase()),
 };

@@ -138,6 +138,9 @@ if (cluster.isPrimary) {
   let draining = false;
   const server = createServer((req, res) => {
     if (draining) res.setHeader("Connection", "close");
+    // The peer address the sign-in throttle counts per (lib/auth/client-address.ts); a client's own
+    // value for this header is overwritten, never trusted.
+    req.headers["x-cairn-peer"] = req.socket.remoteAddress ?? "";
     return handle(req, res);
   });
   server.listen(port, hostname);

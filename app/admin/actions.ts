@@ -1,117 +1,126 @@
 "use server";
-import bcrypt from "bcryptjs";
 import { revalidatePath } from "next/cache";
+import { after } from "next/server";
 import { requireAdmin } from "@/lib/auth";
-import { BCRYPT_ROUNDS } from "@/lib/auth/options";
-import { writeTransaction } from "@/db/knex";
-import { appendAudit } from "@/db/audit";
-import { fetchUserByEmail, fetchUserById, insertUser } from "@/db/queries/users";
-import { deleteMembership, fetchMembershipById, insertMembership } from "@/db/queries/memberships";
-import { fetchTrial } from "@/db/queries/trials";
-import { assignRoleSchema, createAccountSchema, removeRoleSchema, type FormState } from "./schemas";
-import type { TrialRole } from "@/db/types";
+import { createAccountWithLink, grantTrialRole, reissuePasswordLink, revokeTrialRole, setAccountActive } from "@/lib/auth/accounts";
+import { ensureMailWorker, deliverWithRetries } from "@/lib/mail/delivery";
+import { accountActionSchema, assignRoleSchema, createAccountSchema, removeRoleSchema, type FormState } from "./schemas";
+import type { PublicUser, TrialRole } from "@/db/types";
 import { HttpError } from "@/lib/http";
 
-function denied(e: unknown): FormState {
-  if (e instanceof HttpError) return { error: e.message };
-  throw e;
+/** An HttpError becomes a message on the form (a field error when it names a field); anything else is a real fault. */
+function refused(e: unknown, values?: Record<string, string>): FormState {
+  if (!(e instanceof HttpError)) throw e;
+  const field = (e.details as { field?: string } | undefined)?.field;
+  return field ? { error: "Check the highlighted fields.", fieldErrors: { [field]: [e.message] }, values } : { error: e.message, values };
 }
 
-export async function createAccount(_prev: FormState, form: FormData): Promise<FormState> {
-  let admin;
+async function admin(): Promise<PublicUser | FormState> {
   try {
-    admin = await requireAdmin();
+    return await requireAdmin();
   } catch (e) {
-    return denied(e);
+    return refused(e);
   }
-  const parsed = createAccountSchema.safeParse(Object.fromEntries(form));
-  const values = { name: String(form.get("name") ?? ""), email: String(form.get("email") ?? "") };
-  if (!parsed.success) return { error: "Check the highlighted fields.", fieldErrors: parsed.error.flatten().fieldErrors, values };
-  const { name, email, password, isAdmin } = parsed.data;
-  if (await fetchUserByEmail(email)) return { error: "Check the highlighted fields.", fieldErrors: { email: ["An account with this e-mail address already exists."] }, values };
-  const passwordHash = await bcrypt.hash(password, BCRYPT_ROUNDS);
+}
+const isState = (a: PublicUser | FormState): a is FormState => !("id" in a);
+
+function sendLater(emailId: number): void {
+  ensureMailWorker();
   try {
-    await writeTransaction(async (tx) => {
-      const id = await insertUser(tx, { email, name, passwordHash, isAdmin });
-      await appendAudit(tx, {
-        actorUserId: admin.id,
-        actorEmail: admin.email,
-        trialId: null,
-        action: "account_created",
-        entityType: "user",
-        entityId: id,
-        visibility: "open",
-        newValues: { name, email: email.toLowerCase(), isAdmin },
-      });
+    after(async () => {
+      try {
+        await deliverWithRetries([emailId]);
+      } catch (e) {
+        console.error("[cairn] background mail delivery stopped; the retry sweep will pick the message up", e);
+      }
     });
-  } catch (e) {
-    if ((e as { code?: string }).code === "ER_DUP_ENTRY")
-      return { error: "Check the highlighted fields.", fieldErrors: { email: ["An account with this e-mail address already exists."] }, values };
-    throw e;
+  } catch {
+    // Called outside a request (a test or a script): the mail worker's sweep sends the message.
   }
-  revalidatePath("/admin");
-  return { ok: `Account created for ${name}.` };
+}
+
+const linkShown = (l: { url: string; expiresAt: Date }, forName: string) => ({ url: l.url, expiresAt: `${l.expiresAt.toISOString().slice(0, 16).replace("T", " ")} UTC`, forName });
+
+export async function createAccount(_prev: FormState, form: FormData): Promise<FormState> {
+  const a = await admin();
+  if (isState(a)) return a;
+  const values = { name: String(form.get("name") ?? "").slice(0, 300), email: String(form.get("email") ?? "").slice(0, 300) };
+  const parsed = createAccountSchema.safeParse(Object.fromEntries(form));
+  if (!parsed.success) return { error: "Check the highlighted fields.", fieldErrors: parsed.error.flatten().fieldErrors, values };
+  try {
+    const created = await createAccountWithLink(a, parsed.data);
+    sendLater(created.emailId);
+    revalidatePath("/admin");
+    return { ok: `Account created for ${parsed.data.name}. A set-password link was e-mailed to ${parsed.data.email.toLowerCase()}.`, link: linkShown(created, parsed.data.name) };
+  } catch (e) {
+    if ((e as { code?: string }).code === "ER_DUP_ENTRY") return { error: "Check the highlighted fields.", fieldErrors: { email: ["An account with this e-mail address already exists."] }, values };
+    return refused(e, values);
+  }
+}
+
+export async function sendPasswordLink(_prev: FormState, form: FormData): Promise<FormState> {
+  const a = await admin();
+  if (isState(a)) return a;
+  const parsed = accountActionSchema.safeParse(Object.fromEntries(form));
+  if (!parsed.success) return { error: "That account is not valid." };
+  try {
+    const link = await reissuePasswordLink(a, parsed.data.userId);
+    sendLater(link.emailId);
+    revalidatePath("/admin");
+    return { ok: "A new set-password link was e-mailed; earlier links no longer work.", link: linkShown(link, "this account") };
+  } catch (e) {
+    return refused(e);
+  }
+}
+
+async function changeActive(form: FormData, active: boolean): Promise<FormState> {
+  const a = await admin();
+  if (isState(a)) return a;
+  const parsed = accountActionSchema.safeParse(Object.fromEntries(form));
+  if (!parsed.success) return { error: "That account is not valid." };
+  try {
+    const u = await setAccountActive(a, parsed.data.userId, active);
+    revalidatePath("/admin");
+    return { ok: active ? `${u.name} is active again.` : `${u.name} is deactivated and signed out everywhere.` };
+  } catch (e) {
+    return refused(e);
+  }
+}
+
+export async function deactivateAccount(_prev: FormState, form: FormData): Promise<FormState> {
+  return changeActive(form, false);
+}
+
+export async function reactivateAccount(_prev: FormState, form: FormData): Promise<FormState> {
+  return changeActive(form, true);
 }
 
 export async function assignRole(_prev: FormState, form: FormData): Promise<FormState> {
-  let admin;
-  try {
-    admin = await requireAdmin();
-  } catch (e) {
-    return denied(e);
-  }
+  const a = await admin();
+  if (isState(a)) return a;
   const parsed = assignRoleSchema.safeParse(Object.fromEntries(form));
   if (!parsed.success) return { error: "Check the highlighted fields.", fieldErrors: parsed.error.flatten().fieldErrors };
   const { userId, trialId, role } = parsed.data;
-  const [user, trial] = await Promise.all([fetchUserById(userId), fetchTrial(trialId)]);
-  if (!user) return { fieldErrors: { userId: ["That person no longer exists."] }, error: "Check the highlighted fields." };
-  if (!trial) return { fieldErrors: { trialId: ["That trial no longer exists."] }, error: "Check the highlighted fields." };
   try {
-    await writeTransaction(async (tx) => {
-      const id = await insertMembership(tx, { trialId, userId, role: role as TrialRole });
-      await appendAudit(tx, {
-        actorUserId: admin.id,
-        actorEmail: admin.email,
-        trialId,
-        action: "role_assigned",
-        entityType: "trial_membership",
-        entityId: id,
-        visibility: "open",
-        newValues: { user: user.email, trial: trial.code, role },
-      });
-    });
+    const r = await grantTrialRole(a, { userId, trialId, role: role as TrialRole });
+    revalidatePath("/admin");
+    return { ok: `${r.userName} is now ${role.replace(/_/g, " ")} on ${r.trialCode}.` };
   } catch (e) {
-    if ((e as { code?: string }).code === "ER_DUP_ENTRY") return { error: `${user.name} already holds that role on ${trial.code}.` };
-    throw e;
+    if ((e as { code?: string }).code === "ER_DUP_ENTRY") return { error: "That person already holds that role on that trial." };
+    return refused(e);
   }
-  revalidatePath("/admin");
-  return { ok: `${user.name} is now ${role.replace(/_/g, " ")} on ${trial.code}.` };
 }
 
 export async function removeRole(_prev: FormState, form: FormData): Promise<FormState> {
-  let admin;
-  try {
-    admin = await requireAdmin();
-  } catch (e) {
-    return denied(e);
-  }
+  const a = await admin();
+  if (isState(a)) return a;
   const parsed = removeRoleSchema.safeParse(Object.fromEntries(form));
   if (!parsed.success) return { error: "That role assignment is not valid." };
-  const m = await fetchMembershipById(parsed.data.membershipId);
-  if (!m) return { error: "That role assignment no longer exists." };
-  await writeTransaction(async (tx) => {
-    await deleteMembership(tx, m.id);
-    await appendAudit(tx, {
-      actorUserId: admin.id,
-      actorEmail: admin.email,
-      trialId: m.trial_id,
-      action: "role_removed",
-      entityType: "trial_membership",
-      entityId: m.id,
-      visibility: "open",
-      oldValues: { userId: m.user_id, trialId: m.trial_id, role: m.role },
-    });
-  });
+  try {
+    await revokeTrialRole(a, parsed.data.membershipId);
+  } catch (e) {
+    return refused(e);
+  }
   revalidatePath("/admin");
   return { ok: "Role removed." };
 }

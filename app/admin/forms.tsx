@@ -1,6 +1,6 @@
 "use client";
 import { useActionState } from "react";
-import { assignRole, createAccount, removeRole } from "./actions";
+import { assignRole, createAccount, deactivateAccount, reactivateAccount, removeRole, sendPasswordLink } from "./actions";
 import type { FormState } from "./schemas";
 import { Button } from "@/components/ui/button";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
@@ -15,20 +15,30 @@ function Outcome({ state }: { state: FormState }) {
   return null;
 }
 
+/** The link is shown once, here, for when the e-mail does not arrive; it is not stored in a readable form. */
+function LinkOnce({ state }: { state: FormState }) {
+  if (!state.link) return null;
+  return (
+    <div className="rounded-card border border-stone-300 bg-stone-50 p-3 text-sm" data-testid="password-link">
+      <p className="font-medium">Set-password link for {state.link.forName} (shown once, valid until {state.link.expiresAt})</p>
+      <p className="mt-1 break-all font-mono text-xs">{state.link.url}</p>
+      <p className="mt-1 text-stone-700">It was e-mailed to the person. Pass it on only to them, only if the e-mail does not arrive. Do not open it yourself: the password must be chosen by its owner alone.</p>
+    </div>
+  );
+}
+
 export function CreateAccountForm() {
   const [state, action, pending] = useActionState(createAccount, initial);
   const fe = state.fieldErrors ?? {};
   return (
     <form action={action} noValidate className="flex flex-col gap-3" aria-label="Create an account">
       <Outcome state={state} />
+      <LinkOnce state={state} />
       <Field label="Name" name="name" error={fe.name}>
         <TextInput id="name" name="name" maxLength={120} invalid={!!fe.name} defaultValue={state.values?.name} />
       </Field>
-      <Field label="E-mail" name="email" error={fe.email}>
+      <Field label="E-mail" name="email" error={fe.email} hint="The person receives a one-time link to choose their own password.">
         <TextInput id="email" name="email" type="email" maxLength={254} invalid={!!fe.email} defaultValue={state.values?.email} />
-      </Field>
-      <Field label="Initial password" name="password" error={fe.password} hint="At least 12 characters. Share it with the person by a separate channel.">
-        <TextInput id="password" name="password" type="password" autoComplete="new-password" maxLength={200} invalid={!!fe.password} />
       </Field>
       <label className="flex items-center gap-2 text-sm">
         <input type="checkbox" name="isAdmin" /> Administrator (manages accounts; stays blinded)
@@ -56,7 +66,7 @@ export function AssignRoleForm({ users, trials }: { users: { id: number; label: 
           {trials.map((t) => <option key={t.id} value={t.id}>{t.label}</option>)}
         </SelectInput>
       </Field>
-      <Field label="Role" name="role" error={fe.role}>
+      <Field label="Role" name="role" error={fe.role} hint="Sponsor and coordinator are never combined with an unblinded role on one trial. Another administrator must give you an unblinded role.">
         <SelectInput id="role" name="role" defaultValue="" invalid={!!fe.role}>
           <option value="" disabled>Choose a role</option>
           {Object.entries(ROLE_LABELS).map(([k, v]) => <option key={k} value={k}>{v}</option>)}
@@ -75,5 +85,41 @@ export function RemoveRoleButton({ membershipId, label }: { membershipId: number
       <Button type="submit" variant="quiet" aria-label={label} disabled={pending}>Remove</Button>
       {state.error ? <span className="text-xs text-berry-700">{state.error}</span> : null}
     </form>
+  );
+}
+
+/** Per-account actions: a new set-password link, deactivate or reactivate. */
+export function AccountActions({ userId, name, isActive, isSelf }: { userId: number; name: string; isActive: boolean; isSelf: boolean }) {
+  const [linkState, linkAction, linkPending] = useActionState(sendPasswordLink, initial);
+  const [offState, offAction, offPending] = useActionState(deactivateAccount, initial);
+  const [onState, onAction, onPending] = useActionState(reactivateAccount, initial);
+  const activeState = isActive ? offState : onState;
+  const message = activeState.error ?? linkState.error;
+  return (
+    <div className="flex flex-col gap-1">
+      <div className="flex flex-wrap items-center gap-2">
+        {isActive ? (
+          <form action={linkAction}>
+            <input type="hidden" name="userId" value={userId} />
+            <Button type="submit" variant="quiet" aria-label={`Send a new set-password link to ${name}`} disabled={linkPending}>New link</Button>
+          </form>
+        ) : null}
+        {isSelf ? null : isActive ? (
+          <form action={offAction}>
+            <input type="hidden" name="userId" value={userId} />
+            <Button type="submit" variant="quiet" aria-label={`Deactivate ${name}`} disabled={offPending}>Deactivate</Button>
+          </form>
+        ) : (
+          <form action={onAction}>
+            <input type="hidden" name="userId" value={userId} />
+            <Button type="submit" variant="quiet" aria-label={`Reactivate ${name}`} disabled={onPending}>Reactivate</Button>
+          </form>
+        )}
+      </div>
+      {message ? <span role="alert" className="text-xs text-berry-700">{message}</span> : null}
+      {offState.ok && !isActive ? <span role="status" className="text-xs text-stone-700">{offState.ok}</span> : null}
+      {onState.ok && isActive ? <span role="status" className="text-xs text-stone-700">{onState.ok}</span> : null}
+      <LinkOnce state={linkState} />
+    </div>
   );
 }

@@ -6,7 +6,7 @@ import { fetchTrialsForUser } from "@/db/queries/trials";
 import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
-import { AssignRoleForm, CreateAccountForm, RemoveRoleButton } from "./forms";
+import { AccountActions, AssignRoleForm, CreateAccountForm, RemoveRoleButton } from "./forms";
 
 export const metadata: Metadata = { title: "Administration" };
 
@@ -24,13 +24,13 @@ export default async function AdminPage() {
           <CreateAccountForm />
         </Card>
         <Card title="Give a role on a trial">
-          <AssignRoleForm users={users.map((u) => ({ id: u.id, label: `${u.name} <${u.email}>` }))} trials={trials.map((t) => ({ id: t.id, label: `${t.code}: ${t.title}` }))} />
+          <AssignRoleForm users={users.filter((u) => u.isActive).map((u) => ({ id: u.id, label: `${u.name} <${u.email}>` }))} trials={trials.map((t) => ({ id: t.id, label: `${t.code}: ${t.title}` }))} />
         </Card>
       </div>
       <Card title={`Accounts (${users.length})`}>
         <table className="cairn-table" aria-label="Accounts">
           <thead>
-            <tr><th>Name</th><th>E-mail</th><th>Administrator</th><th>Active</th></tr>
+            <tr><th>Name</th><th>E-mail</th><th>Administrator</th><th>Active</th><th><span className="sr-only">Actions</span></th></tr>
           </thead>
           <tbody>
             {users.map((u) => (
@@ -38,7 +38,8 @@ export default async function AdminPage() {
                 <td>{u.name}</td>
                 <td>{u.email}</td>
                 <td>{u.isAdmin ? <Badge tone="teal">yes</Badge> : "no"}</td>
-                <td>{u.isActive ? "yes" : "no"}</td>
+                <td>{u.isActive ? "yes" : <Badge>deactivated</Badge>}</td>
+                <td><AccountActions userId={u.id} name={u.name} isActive={u.isActive} isSelf={u.id === admin.id} /></td>
               </tr>
             ))}
           </tbody>

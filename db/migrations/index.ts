@@ -25,6 +25,15 @@ import * as m24 from "./20261202002400_create_calibration_jobs";
 import * as m25 from "./20261202002500_create_sign_in_failures";
 import * as mReviewVersionA from "./20261203040100_add_analyses_review_version";
 import * as mReviewVersionR from "./20261203040200_add_recommendations_review_version";
+import * as a1 from "./20261203050100_users_add_session_version";
+import * as a2 from "./20261203050200_create_password_links";
+import * as a3 from "./20261203050300_signatures_refuse_update";
+import * as a4 from "./20261203050400_signatures_refuse_delete";
+import * as a5 from "./20261203050500_recommendations_refuse_update";
+import * as a6 from "./20261203050600_recommendations_refuse_delete";
+import * as a7 from "./20261203050700_sign_in_failures_add_pair_scope";
+import * as a8 from "./20261203050800_email_messages_trial_optional";
+import * as a9 from "./20261203050900_email_messages_account_kinds";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
 const migrations: Array<[string, Migration]> = [
@@ -50,6 +59,15 @@ const migrations: Array<[string, Migration]> = [
   ["20261202002500_create_sign_in_failures", m25],
   ["20261203040100_add_analyses_review_version", mReviewVersionA],
   ["20261203040200_add_recommendations_review_version", mReviewVersionR],
+  ["20261203050100_users_add_session_version", a1],
+  ["20261203050200_create_password_links", a2],
+  ["20261203050300_signatures_refuse_update", a3],
+  ["20261203050400_signatures_refuse_delete", a4],
+  ["20261203050500_recommendations_refuse_update", a5],
+  ["20261203050600_recommendations_refuse_delete", a6],
+  ["20261203050700_sign_in_failures_add_pair_scope", a7],
+  ["20261203050800_email_messages_trial_optional", a8],
+  ["20261203050900_email_messages_account_kinds", a9],
 ];
 
 export const migrationSource: Knex.MigrationSource<[string, Migration]> = {

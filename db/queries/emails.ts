@@ -4,7 +4,7 @@ import { db, type Tx } from "../knex";
 import type { EmailKind, EmailMessageRow } from "../types";
 
 export type NewEmail = {
-  trialId: number;
+  trialId: number | null;
   meetingId: number | null;
   packetId: number | null;
   toUserId: number | null;

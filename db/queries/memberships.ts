@@ -7,6 +7,12 @@ export async function fetchAnyRoleHeld(userId: number, role: TrialRole, tx: Tx =
   return Boolean(row);
 }
 
+/** The roles this person holds on this trial (for the separation-of-duties rule). */
+export async function fetchRolesOnTrial(userId: number, trialId: number, tx: Tx = db): Promise<TrialRole[]> {
+  const rows = await tx("trial_memberships").where({ user_id: userId, trial_id: trialId }).select("role");
+  return rows.map((r: { role: TrialRole }) => r.role);
+}
+
 export type MembershipListing = { id: number; trialId: number; trialCode: string; userId: number; userName: string; userEmail: string; role: TrialRole };
 
 export async function fetchMemberships(filter: { trialId?: number } = {}, tx: Tx = db): Promise<MembershipListing[]> {

@@ -2,12 +2,13 @@ import "server-only";
 /** Failed sign-in attempts within the throttling window (lib/auth/rate-limit.ts has the rules). */
 import { db, writeTransaction } from "../knex";
 
-export type SignInScope = "account" | "address";
+/** "pair" is one account from one address; "account" rows are no longer written (kept for old rows). */
+export type SignInScope = "account" | "address" | "pair";
 export type SignInSubject = { scope: SignInScope; subject: string };
 
 /** Times (ms) of the failures after `since` for each of the given subjects, oldest first. */
 export async function fetchSignInFailureTimes(subjects: SignInSubject[], since: Date): Promise<Record<SignInScope, number[]>> {
-  const out: Record<SignInScope, number[]> = { account: [], address: [] };
+  const out: Record<SignInScope, number[]> = { account: [], address: [], pair: [] };
   if (!subjects.length) return out;
   const rows = (await db("sign_in_failures")
     .where("failed_at", ">", since)

@@ -41,7 +41,7 @@ export async function fetchTrial(trialId: number, tx: Tx = db): Promise<TrialRow
   return tx("trials as t").where("t.id", trialId).first(TRIAL_COLUMNS);
 }
 
-export type AccessFacts = { user: PublicUser | undefined; trial: TrialRow | undefined; roles: TrialRole[] };
+export type AccessFacts = { user: PublicUser | undefined; sessionVersion: number; trial: TrialRow | undefined; roles: TrialRole[] };
 
 /**
  * Everything an authorization decision reads, in one round trip (it runs on every request):
@@ -52,11 +52,12 @@ export async function fetchAccessFacts(userId: number, trialId: number, tx: Tx =
     .leftJoin("trials as t", (j) => j.onVal("t.id", "=", trialId))
     .leftJoin("trial_memberships as m", (j) => j.on("m.user_id", "=", "u.id").andOn("m.trial_id", "=", "t.id"))
     .where("u.id", userId)
-    .select(["u.id as user_id", "u.email as user_email", "u.name as user_name", "u.is_admin as user_is_admin", "u.is_active as user_is_active", ...TRIAL_COLUMNS, "m.role as membership_role"]);
-  if (!rows.length) return { user: undefined, trial: undefined, roles: [] };
-  const { user_id, user_email, user_name, user_is_admin, user_is_active, membership_role: _role, ...trial } = rows[0];
+    .select(["u.id as user_id", "u.email as user_email", "u.name as user_name", "u.is_admin as user_is_admin", "u.is_active as user_is_active", "u.session_version as user_session_version", ...TRIAL_COLUMNS, "m.role as membership_role"]);
+  if (!rows.length) return { user: undefined, sessionVersion: 0, trial: undefined, roles: [] };
+  const { user_id, user_email, user_name, user_is_admin, user_is_active, user_session_version, membership_role: _role, ...trial } = rows[0];
   return {
     user: { id: user_id, email: user_email, name: user_name, isAdmin: Boolean(user_is_admin), isActive: Boolean(user_is_active) },
+    sessionVersion: Number(user_session_version),
     trial: trial.id === null ? undefined : (trial as TrialRow),
     roles: rows.map((r: { membership_role: TrialRole | null }) => r.membership_role).filter((r): r is TrialRole => r !== null),
   };

@@ -5,7 +5,7 @@ import "server-only";
  * request, so a removed role or deactivated account takes effect at the next request.
  */
 import { notFound, redirect, forbidden } from "next/navigation";
-import { sessionUserId } from "./session";
+import { sessionClaims } from "./session";
 import { fetchUserById, toPublicUser } from "@/db/queries/users";
 import { fetchAnyRoleHeld } from "@/db/queries/memberships";
 import { fetchAccessFacts, type AccessFacts } from "@/db/queries/trials";
@@ -17,12 +17,15 @@ export { allows, isUnblinded, type Capability } from "./permissions";
 
 export type TrialAccess = { user: PublicUser; trial: TrialRow; roles: TrialRole[]; principal: Principal; unblinded: boolean };
 
-/** The signed-in, active user, or null. */
+/**
+ * The signed-in, active user, or null. A session issued under an older session version (the
+ * account signed out, changed its password or was deactivated since) counts as no session.
+ */
 export async function currentUser(): Promise<PublicUser | null> {
-  const id = await sessionUserId();
-  if (!id) return null;
-  const row = await fetchUserById(id);
-  if (!row || !row.is_active) return null;
+  const claims = await sessionClaims();
+  if (!claims) return null;
+  const row = await fetchUserById(claims.userId);
+  if (!row || !row.is_active || Number(row.session_version) !== claims.sessionVersion) return null;
   return toPublicUser(row);
 }
 
@@ -49,10 +52,10 @@ export async function mayCreateTrial(u: PublicUser): Promise<boolean> {
  * is not revealed), 403 when on it without the capability.
  */
 export async function requireTrialAccess(trialId: number, cap: Capability): Promise<TrialAccess> {
-  const id = await sessionUserId();
-  if (!id) throw unauthorized();
-  const facts = await fetchAccessFacts(id, validTrialId(trialId));
-  if (!facts.user || !facts.user.isActive) throw unauthorized();
+  const claims = await sessionClaims();
+  if (!claims) throw unauthorized();
+  const facts = await fetchAccessFacts(claims.userId, validTrialId(trialId));
+  if (!facts.user || !facts.user.isActive || facts.sessionVersion !== claims.sessionVersion) throw unauthorized();
   return decideTrialAccess(facts.user, facts, cap);
 }
 

@@ -19,7 +19,7 @@ export const DEFAULT_RETRY: RetryPolicy = { maxAttempts: 3, delaysMs: [5_000, 30
 
 export type AttemptOutcome = "sent" | "retry" | "failed" | "skipped";
 
-async function record(id: number, trialId: number, action: string, values: Record<string, unknown>, write: (tx: import("knex").Knex.Transaction) => Promise<void>) {
+async function record(id: number, trialId: number | null, action: string, values: Record<string, unknown>, write: (tx: import("knex").Knex.Transaction) => Promise<void>) {
   await writeTransaction(async (tx) => {
     await write(tx);
     await appendAudit(tx, { actorUserId: null, actorEmail: "cairn-mail", trialId, action, entityType: "email_message", entityId: id, visibility: "open", newValues: values });
@@ -38,7 +38,7 @@ export async function attemptDelivery(id: number, policy: RetryPolicy = DEFAULT_
       const packet = msg.packet_id ? await fetchPacketPdf(msg.packet_id) : undefined;
       // By construction only an open packet can travel as an attachment.
       if (!packet || packet.audience !== "open") throw new Error("the open packet to attach is missing");
-      const trial = await fetchTrial(msg.trial_id);
+      const trial = msg.trial_id === null ? undefined : await fetchTrial(msg.trial_id);
       attachments.push({ filename: `${trial?.code ?? "trial"}-open-report-v${packet.version}.pdf`, content: Buffer.from(packet.pdf), contentType: "application/pdf" });
     }
     const info = await mailTransport().sendMail({

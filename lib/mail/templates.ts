@@ -63,3 +63,27 @@ export function reminderMail(c: Omit<PacketMailContext, "senderName"> & { daysBe
       FOOTER("You receive this because you are invited to this meeting."),
   };
 }
+
+export function passwordLinkMail(c: { recipientName: string; link: string; expiresAt: string; issuerName: string }): MailContent {
+  return {
+    subject: oneLine("Cairn: set your password"),
+    text:
+      `Dear ${c.recipientName},\n\n` +
+      `${c.issuerName} opened a Cairn account for you (or asked for a new password to be set). Choose your password here:\n\n${c.link}\n\n` +
+      `The link works once and until ${c.expiresAt}. Your password is yours alone: nobody at Cairn, administrators included, will ever ask for it. ` +
+      `It is also the password you type to sign records electronically.\n\n` +
+      `If you did not expect this message, tell your trial's administrator.` +
+      FOOTER("You receive this because an account in Cairn carries your e-mail address."),
+  };
+}
+
+export function passwordChangedMail(c: { recipientName: string; when: string; how: "link" | "account page" }): MailContent {
+  return {
+    subject: oneLine("Cairn: your password was changed"),
+    text:
+      `Dear ${c.recipientName},\n\n` +
+      `The password of your Cairn account was ${c.how === "link" ? "set through a set-password link" : "changed on the account page"} on ${c.when}. Every session of the account was signed out.\n\n` +
+      `If this was not you, tell your trial's administrator at once: someone else may be able to sign in, and sign, as you.` +
+      FOOTER("You receive this because an account in Cairn carries your e-mail address."),
+  };
+}

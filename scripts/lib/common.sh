@@ -119,14 +119,23 @@ SQL
 }
 
 # Table-level grants, renewed after every migration: full DML everywhere except the audit trail,
-# which the application may only read and append to.
+# signatures and recommendations, which the application may only read and append to, and users,
+# which it may not delete.
 grant_app_privileges() {
   local db="$1" tables t
   tables=$(mysql_root -N -e "SELECT table_name FROM information_schema.tables WHERE table_schema='$db' AND table_type='BASE TABLE'")
   {
     for t in $tables; do
       case "$t" in
-        audit_events) echo "GRANT SELECT, INSERT ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
+        # Append-only: the application may read and add, never change or remove. The REVOKE removes
+        # UPDATE/DELETE granted before this rule; the GRANT before it ensures REVOKE finds a grant row.
+        audit_events|signatures|recommendations)
+          echo "GRANT SELECT, INSERT ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';"
+          echo "REVOKE UPDATE, DELETE ON \`$db\`.\`$t\` FROM '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
+        # Accounts are deactivated, never deleted.
+        users)
+          echo "GRANT SELECT, INSERT, UPDATE ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';"
+          echo "REVOKE DELETE ON \`$db\`.\`$t\` FROM '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
         knex_migrations|knex_migrations_lock) echo "GRANT SELECT ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
         *) echo "GRANT SELECT, INSERT, UPDATE, DELETE ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
       esac

@@ -53,3 +53,21 @@ for (const who of Object.keys(ACCOUNTS) as AccountKey[]) {
     await expect(page).toHaveURL(/\/signin$/);
   });
 }
+
+test("a copied session cookie is refused after sign-out", async ({ browser }) => {
+  const ownerCtx = await browser.newContext();
+  const owner = await ownerCtx.newPage();
+  await signIn(owner, "sponsor");
+  // Someone copies the session cookie (a shared computer, a stolen backup of the browser profile).
+  const thiefCtx = await browser.newContext({ storageState: await ownerCtx.storageState() });
+  expect((await thiefCtx.request.get("/api/trials/1/open-status")).status()).toBe(200);
+  await owner.getByRole("button", { name: "Sign out" }).click();
+  await expect(owner).toHaveURL(/\/signin$/);
+  // The copy still carries a validly signed token, but of an ended session version.
+  expect((await thiefCtx.request.get("/api/trials/1/open-status")).status()).toBe(401);
+  const thief = await thiefCtx.newPage();
+  await thief.goto("/trials");
+  await expect(thief).toHaveURL(/\/signin$/);
+  await ownerCtx.close();
+  await thiefCtx.close();
+});

@@ -7,6 +7,7 @@ import { beforeAll, describe, expect, it, vi } from "vitest";
 import { StatsDomainError } from "@/lib/stats/validate";
 import { insertDesignVersion, markDesignLocked } from "@/db/queries/designs";
 import { insertSignature } from "@/db/queries/signatures";
+import { bumpSessionVersion } from "@/db/queries/users";
 import { createPlannedLooks } from "@/db/queries/analyses";
 import { replaceArmCounts } from "@/db/queries/closed";
 import type { TwoArmDesign } from "@/lib/stats/types";
@@ -15,9 +16,14 @@ import { statusOf } from "./support/status";
 import { db, giveRole, makeTrial, makeUser, resetDatabase } from "./support/db";
 
 let signedIn: number | null = null;
-vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => signedIn) }));
+/** The session version the mocked session token carries (fresh accounts start at 0). */
+let signedInVersion = 0;
+vi.mock("@/lib/auth/session", () => ({
+  sessionUserId: vi.fn(async () => signedIn),
+  sessionClaims: vi.fn(async () => (signedIn === null ? null : { userId: signedIn, sessionVersion: signedInVersion })),
+}));
 
-const { requireTrialAccess } = await import("@/lib/auth");
+const { currentUser, requireTrialAccess } = await import("@/lib/auth");
 const { loadArmPosterior, loadReviewInput } = await import("@/lib/review/load-review");
 const { armPosterior } = await import("@/lib/review/compute-review");
 
@@ -78,6 +84,22 @@ describe("requireTrialAccess (one query per request)", () => {
     expect(await statusOf(requireTrialAccess(trial.id, "viewOpen"))).toBe(401);
     signedIn = 987_654_321;
     expect(await statusOf(requireTrialAccess(trial.id, "viewOpen"))).toBe(401);
+  });
+
+  it("a copied session token is refused once the account's session version has moved on (sign-out, new password, deactivation)", async () => {
+    const u = await makeUser();
+    await giveRole(u.id, trial.id, "sponsor");
+    signedIn = u.id;
+    signedInVersion = 0;
+    expect(await statusOf(requireTrialAccess(trial.id, "viewOpen"))).toBe(200);
+    await db.transaction((tx) => bumpSessionVersion(tx, u.id));
+    expect(await statusOf(requireTrialAccess(trial.id, "viewOpen"))).toBe(401);
+    expect(await currentUser()).toBeNull();
+    // A token issued after the bump carries the new version and works.
+    signedInVersion = 1;
+    expect(await statusOf(requireTrialAccess(trial.id, "viewOpen"))).toBe(200);
+    expect((await currentUser())?.id).toBe(u.id);
+    signedInVersion = 0;
   });
 
   it("collects every role held on the trial, and only on that trial", async () => {

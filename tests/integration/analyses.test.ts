@@ -43,7 +43,8 @@ async function trialWithLockedDesign(design: Design, designType: "single" | "two
   return { trialId, arms: arms as Array<{ id: number; label: string; arm_role: string }>, lookIds: looks.map((l: { id: number }) => l.id) as number[] };
 }
 
-const auditCount = async () => Number((await db("audit_events").count({ n: "*" }).first())?.n ?? 0);
+// A wrong signing password is refused and audited on purpose (an open row, no secret): counted apart.
+const auditCount = async () => Number((await db("audit_events").whereNot({ action: "signature_password_failed" }).count({ n: "*" }).first())?.n ?? 0);
 const lastAudit = async (): Promise<AuditEventRow> => db("audit_events").orderBy("id", "desc").first();
 const look = async (id: number) => db("analyses").where({ id }).first();
 const patientRows = async (id: number) => Number((await db("patient_outcomes").where({ analysis_id: id }).count({ n: "*" }).first())?.n ?? 0);
@@ -168,8 +169,11 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
   });
 
   it("locking needs the right password; a wrong one writes nothing", async () => {
+    const failedBefore = await db("audit_events").where({ action: "signature_password_failed" }).count({ n: "*" }).first();
     const err = await expectNothingWritten(a1, () => lockAnalysis(stat, t.trialId, a1, { rowVersion: 4, password: "not-my-password" }), 422);
     expect((err as Error).message).toMatch(/password is not correct/);
+    const failedAfter = await db("audit_events").where({ action: "signature_password_failed" }).count({ n: "*" }).first();
+    expect(Number(failedAfter?.n)).toBe(Number(failedBefore?.n) + 1);
   });
 
   it("locking signs the counts ('analysis locked') and writes one open audit row", async () => {

@@ -127,12 +127,14 @@ describe("drafts", () => {
 });
 
 describe("lock with an electronic signature", () => {
-  it("a wrong password is a 422 and writes nothing", async () => {
+  it("a wrong password is a 422 and writes nothing but the failed attempt's open audit row", async () => {
     const d = await createDraftDesign(access, design);
     const before = await counts();
     expect(await statusOf(lockDesign(access, d.id, d.row_version, "not-the-password"))).toBe(422);
+    // An empty password is refused by the schema before any check: no audit row.
     expect(await statusOf(lockDesign(access, d.id, d.row_version, ""))).toBe(422);
-    expect(await counts()).toEqual(before);
+    expect(await counts()).toEqual({ ...before, audit: before.audit + 1 });
+    expect(await db("audit_events").orderBy("id", "desc").first()).toMatchObject({ action: "signature_password_failed", visibility: "open" });
   });
 
   it("locking writes the signature bound to the version, the planned looks and exactly one audit row", async () => {

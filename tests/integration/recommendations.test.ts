@@ -100,11 +100,14 @@ describe("recording a recommendation", () => {
     expect(await statusOf(checkTrialAccess(sponsor, trialId, "recordRecommendation"))).toBe(403);
   });
 
-  it("a wrong password signs nothing and writes nothing (422)", async () => {
+  it("a wrong password signs nothing and writes nothing but its open audit row (422)", async () => {
     const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
     const before = await counts();
     expect(await statusOf(recordRecommendation(access, lockedLook, { ...good, password: "wrong-password" }))).toBe(422);
-    expect(await counts()).toEqual(before);
+    expect(await counts()).toEqual({ ...before, audit: before.audit + 1 });
+    const last = await db("audit_events").orderBy("id", "desc").first();
+    expect(last).toMatchObject({ action: "signature_password_failed", actor_user_id: dmc.id, visibility: "open" });
+    expect(JSON.stringify(last)).not.toContain("wrong-password");
   });
 
   it("invalid input is refused by the schema and writes nothing", async () => {

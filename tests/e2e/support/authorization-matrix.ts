@@ -53,6 +53,9 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   page("/trials/{trial}/meetings", everyone(307)),
   page("/admin", adminOnly(307)),
   page("/admin/mail", adminOnly(307)),
+  page("/account", everyone(307)),
+  // Public: the one-time token in the link's fragment is the credential, checked when the form is sent.
+  page("/set-password", everyone(200)),
   // Route handlers (GET)
   api("/api/trials/{trial}/open-status", everyone(401)),
   api("/api/trials/{trial}/designs", everyone(401)),

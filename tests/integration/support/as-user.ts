@@ -22,3 +22,15 @@ export function jsonRequest(url: string, method: string, body?: unknown, headers
   const text = body === undefined ? undefined : typeof body === "string" ? body : JSON.stringify(body);
   return new Request(`http://localhost${url}`, { method, body: text, headers: { "content-type": "application/json", ...headers } });
 }
+
+/**
+ * What a mocked lib/auth/session's sessionClaims answers: the acting user with the account's
+ * current session version, as a token issued just now would carry. Tests of stale sessions pass
+ * their own claims instead.
+ */
+export async function currentClaims(): Promise<{ userId: number; sessionVersion: number } | null> {
+  if (!session) return null;
+  const { db } = await import("@/db/knex");
+  const row = await db("users").where({ id: session.user.id }).first("session_version");
+  return { userId: session.user.id, sessionVersion: Number(row?.session_version ?? 0) };
+}

@@ -1,3 +1,4 @@
+import type { EmailKind } from "@/db/types";
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
@@ -17,7 +18,7 @@ import { cancelMeeting, generatePackets, retryFailedEmail, saveAttendance, sendP
 
 export const metadata: Metadata = { title: "DMC meeting" };
 
-const KIND_LABELS = { packet_open: "Open report (attached)", packet_closed_notice: "Closed report (link)", meeting_reminder: "Reminder" } as const;
+const KIND_LABELS: Record<EmailKind, string> = { packet_open: "Open report (attached)", packet_closed_notice: "Closed report (link)", meeting_reminder: "Reminder", password_link: "Set-password link", password_changed: "Password changed" };
 const STATUS_TONES = { queued: "amber", sending: "amber", sent: "lichen", failed: "berry" } as const;
 
 /** A UTC time stamp, independent of the server's own time zone. */
