@@ -6,10 +6,11 @@
  * CLOSED output: arm-level counts, posteriors, predictive probabilities and boundary positions.
  * Only code that has passed requireTrialAccess(..., "viewClosed") may call this.
  */
-import type { Design, LookDecision, MixtureBeta, PriorSpec, SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
+import type { Design, LookDecision, MixtureBeta, MonitoringRule, PriorSpec, SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { resolvePrior, mixtureSurvival } from "@/lib/stats/priors";
 import { posteriorMixture, predictiveProbabilitySingleArm, singleArmFinalSuccess } from "@/lib/stats/predictive";
-import { decideAtLook, type LookEvaluation } from "@/lib/stats/decision";
+import { decideAtLook, safetyLimitPhrase, safetyProbabilityFromPosterior, type LookEvaluation } from "@/lib/stats/decision";
+import { exceedsThreshold } from "@/lib/stats/compare";
 import { singleArmBoundaries, twoArmBoundaries, type ResponseBoundary, type SafetyBoundary } from "@/lib/stats/boundaries";
 import { probDifferenceExceeds, differenceDensityGrid } from "@/lib/stats/difference";
 import { expandLooks } from "@/lib/stats/looks";
@@ -81,7 +82,10 @@ export type BoundaryRow = ResponseBoundary & {
 };
 
 export type SafetyReview = {
+  /** The fixed limit qmax; for the uncertain-standard form, the standard's mean plus the margin (the chart's reference line). */
   qmax: number;
+  /** What the toxicity rate is compared with, in words (fixed limit or uncertain standard plus margin). */
+  limitLabel: string;
   thetaS: number;
   n: number;
   toxicities: number;
@@ -89,7 +93,7 @@ export type SafetyReview = {
   posterior: MixtureBeta;
   summary: PosteriorSummary;
   probAboveLimit: number;
-  /** True when P(q > qmax | data) > thetaS (strict, as the rule reads). */
+  /** True when the safety probability exceeds thetaS (strict, ties do not count: lib/stats/compare.ts). */
   crossed: boolean;
   boundary: SafetyBoundary[];
   observedPath: { lookNumber: number; n: number; toxicities: number }[];
@@ -122,7 +126,7 @@ export type Review = {
   decision: LookDecision;
   /** This look and every earlier locked look, in order: the predictive probability line over looks. */
   history: LookReview[];
-  ruleKind: "predictive" | "posterior";
+  ruleKind: MonitoringRule["kind"];
   plannedLooks: number[];
   boundaries: BoundaryRow[];
   /** Cumulative responders (two arms: experimental) against evaluable patients (per arm), look by look. */
@@ -239,9 +243,10 @@ function safetyReview(design: Design, history: LookReview[], current: LookReview
   if (current.toxicities === null) throw new StatsDomainError("toxicities", null, "are required at this look because the design has a safety rule");
   const prior = resolvePrior(rule.prior);
   const posterior = posteriorMixture(prior, current.toxicities, current.n);
-  const probAboveLimit = mixtureSurvival(posterior, rule.qmax);
+  const probAboveLimit = safetyProbabilityFromPosterior(rule, posterior);
   return {
-    qmax: rule.qmax,
+    qmax: rule.kind === "uncertainStandard" ? Math.min(1, Math.max(0, rule.standard.a / (rule.standard.a + rule.standard.b) + rule.margin)) : rule.qmax,
+    limitLabel: safetyLimitPhrase(rule),
     thetaS: rule.thetaS,
     n: current.n,
     toxicities: current.toxicities,
@@ -249,7 +254,7 @@ function safetyReview(design: Design, history: LookReview[], current: LookReview
     posterior,
     summary: summarisePosterior(prior, current.toxicities, current.n, level),
     probAboveLimit,
-    crossed: probAboveLimit > rule.thetaS,
+    crossed: exceedsThreshold(probAboveLimit, rule.thetaS),
     boundary: boundary ?? [],
     observedPath: history.filter((h) => h.toxicities !== null).map((h) => ({ lookNumber: h.lookNumber, n: h.n, toxicities: h.toxicities as number })),
     curves: mixtureCurves(posterior, points),
