@@ -27,7 +27,7 @@ import { singleArmBoundaries, safetyBoundaries } from "./boundaries";
 import { monitoringRuleLabel, safetyRuleLabel } from "./labels";
 import { parseDesign, singleArmDesignSchema, twoArmDesignSchema } from "./design-schema";
 import { singleArmOperatingCharacteristics } from "./operating-characteristics";
-import type { SingleArmDesign } from "./types";
+import type { SingleArmDesign, TwoArmDesign } from "./types";
 import { StatsDomainError } from "./validate";
 
 /** P(E > S + delta), E ~ Beta(aE, bE), S ~ Beta(aS, bS), by the midpoint rule over s. */
@@ -206,7 +206,8 @@ describe("finding 7: design schema stays backwards compatible", () => {
     };
     expect(twoArmDesignSchema.safeParse(two).success).toBe(true);
     expect(twoArmDesignSchema.safeParse({ ...two, rule: { ...two.rule, standard: { a: 3, b: 7 } } }).success).toBe(false);
-    expect(() => decideAtLook({ ...(two as never), rule: { ...two.rule, standard: { a: 3, b: 7 } } } as never, { nT: 10, respondersT: 3, nC: 10, respondersC: 3 })).toThrow(StatsDomainError);
+    const withStandard = { ...two, rule: { ...two.rule, standard: { a: 3, b: 7 } } } as unknown as TwoArmDesign;
+    expect(() => decideAtLook(withStandard, { nT: 10, respondersT: 3, nC: 10, respondersC: 3 })).toThrow(StatsDomainError);
   });
   it("rejects in the engine: the uncertain-standard rule without a standard, and a safety margin outside (-1, 1)", () => {
     expect(() => decideAtLook({ ...design, rule: { ...design.rule, standard: null } }, { n: 10, responders: 1 })).toThrow(StatsDomainError);
