@@ -11,7 +11,6 @@
  * statistics, count by count, not from that argument.
  */
 import type { MixtureBeta, MonitoringRule, SafetyRule, SingleArmDesign, TwoArmDesign } from "./types";
-import { mixtureSurvival } from "./priors";
 import { probDifferenceExceeds } from "./difference";
 import {
   monotoneThresholds,
