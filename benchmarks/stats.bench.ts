@@ -9,6 +9,7 @@ import {
   clearTwoArmFinalRuleCache,
   exactOperatingCharacteristics,
   exactTwoArmOperatingCharacteristics,
+  operatingCharacteristicsWithSafety,
   simulateBoundaryTable,
   singleArmBoundaries,
   twoArmBoundaries,
@@ -97,6 +98,20 @@ const thetaLGrid = grid(0, 0.3);
 bench("calibration 40 x 40 grid, 1 arm, Nmax 100, every patient", 2000, 7, () => {
   const r = calibrateSingleArm(calib, { thetaTGrid, thetaLGrid, typeIErrorLimit: 0.05, powerTarget: 0.8 });
   check(r.evaluated === 1600 && r.best.length > 0 && r.best[0].typeIError <= 0.05 && r.best[0].power >= 0.8, "calibration finds a feasible design");
+});
+
+// ---- uncertain-standard rule and safety: boundaries + joint OC over 13 toxicity rates -----------
+const withSafety: SingleArmDesign = {
+  ...single200,
+  nMax: 100,
+  looks: { kind: "every", first: 10, every: 5 },
+  rule: { ...single200.rule, kind: "uncertainStandard", standard: { a: 20, b: 80 }, futilityThreshold: 0.05, efficacyThreshold: 0.99 },
+  safety: { kind: "uncertainStandard", standard: { a: 10, b: 40 }, margin: 0.1, prior: { family: "beta", a: 0.5, b: 1.5 }, thetaS: 0.9 },
+};
+bench("uncertain standard + safety: boundaries + joint OC at 13 toxicity rates, 1 arm, Nmax 100, look every 5", 1000, 7, () => {
+  const ocs = operatingCharacteristicsWithSafety(withSafety, 0.3, Array.from({ length: 13 }, (_, i) => i * 0.05));
+  const total = ocs[6].looks.reduce((s, l) => s + l.pStopFutility + l.pStopEfficacy + l.pStopSafety, 0);
+  check(Math.abs(total - 1) < 1e-12 && ocs[12].pSafetyStop > ocs[0].pSafetyStop, "joint OC with safety sums to one");
 });
 
 const pad = (s: string, n: number) => s + " ".repeat(Math.max(0, n - s.length));

@@ -133,7 +133,8 @@ export function CalibrationPanel({ trialId, design, onUse }: { trialId: number; 
                   <th>Type I error</th>
                   <th>Power</th>
                   <th>E(N) at p0</th>
-                  <th>PET at p0</th>
+                  <th title="Probability of stopping early for futility, under p0">Early futility stop at p0</th>
+                  <th title="Probability of stopping early for efficacy, under p0">Early efficacy stop at p0</th>
                   <th />
                 </tr>
               </thead>
@@ -146,7 +147,9 @@ export function CalibrationPanel({ trialId, design, onUse }: { trialId: number; 
                     <td>{formatProbability(b.typeIError)}</td>
                     <td>{formatProbability(b.power)}</td>
                     <td>{b.expectedSampleSizeNull.toFixed(1)}</td>
-                    <td>{formatProbability(b.pEarlyTerminationNull)}</td>
+                    {/* Jobs stored before the split carry only the total; show a dash rather than a guess. */}
+                    <td>{typeof b.pEarlyFutilityNull === "number" ? formatProbability(b.pEarlyFutilityNull) : "—"}</td>
+                    <td>{typeof b.pEarlyEfficacyNull === "number" ? formatProbability(b.pEarlyEfficacyNull) : "—"}</td>
                     <td>
                       <Button type="button" variant="quiet" onClick={() => onUse(b)} aria-label={`Use this design: θT ${b.thetaT}, futility ${b.thetaL}`}>
                         Use this design

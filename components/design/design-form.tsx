@@ -6,6 +6,7 @@
 import type { ReactNode } from "react";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
 import { PRIOR_FAMILY_LABELS, type DesignForm, type FieldErrors, type PriorFamily, type PriorForm } from "@/lib/design/form-model";
+import { monitoringRuleLabel } from "@/lib/stats/labels";
 
 type Props = {
   form: DesignForm;
@@ -129,12 +130,24 @@ export function DesignFormFields({ form, errors, readOnly, armLabels, onChange }
         <Field label="Rule" name="ruleKind" error={errors.ruleKind}>
           <SelectInput id="ruleKind" name="ruleKind" value={form.ruleKind} onChange={(e) => set("ruleKind")(e.target.value as DesignForm["ruleKind"])}>
             <option value="predictive">Predictive probability of success (Lee &amp; Liu 2008)</option>
-            <option value="posterior">Posterior probability (Thall &amp; Simon 1994)</option>
+            <option value="posterior">{monitoringRuleLabel("posterior", form.arms)}</option>
+            <option value="uncertainStandard">{monitoringRuleLabel("uncertainStandard", form.arms)}</option>
           </SelectInput>
         </Field>
+        {form.ruleKind === "uncertainStandard" && form.arms === "single" ? (
+          <div className="grid grid-cols-2 gap-3">
+            {num("standardA", "Standard rate aS", "pS ~ Beta(aS, bS), e.g. from historical responders and non-responders.")}
+            {num("standardB", "Standard rate bS", "Interims use P(pE > pS + δ | data), pS uncertain and independent of pE.")}
+          </div>
+        ) : null}
+        {form.ruleKind === "uncertainStandard" && form.arms === "two" ? (
+          <p className="text-xs text-stone-600">The control arm&apos;s posterior is the uncertain standard: interims use P(pT &gt; pC + δ | data).</p>
+        ) : null}
         {num("thetaT", "Final success threshold θT", form.arms === "single" ? "Success at the end if P(p > p0 | data) > θT." : "Success at the end if P(pT − pC > δ | data) > θT.")}
         {num("futilityThreshold", predictive ? "Futility threshold θL" : "Futility threshold pL", predictive ? "Stop if the predictive probability < θL." : "Stop if the posterior probability < pL.")}
-        {form.arms === "single" && !predictive ? num("delta", "Margin δ for the interim rule", "Interims use P(p > p0 + δ | data).") : null}
+        {form.arms === "single" && !predictive
+          ? num("delta", "Margin δ for the interim rule", form.ruleKind === "uncertainStandard" ? "Interims use P(pE > pS + δ | data)." : "Interims use P(p > p0 + δ | data).")
+          : null}
         <label className="flex items-center gap-2 text-sm">
           <input type="checkbox" checked={form.efficacyStopping} onChange={(e) => set("efficacyStopping")(e.target.checked)} /> Stop early for efficacy
         </label>
@@ -146,10 +159,27 @@ export function DesignFormFields({ form, errors, readOnly, armLabels, onChange }
         </label>
         {form.safetyOn ? (
           <>
-            <div className="grid grid-cols-2 gap-3">
-              {num("qmax", "Toxicity limit qmax")}
-              {num("thetaS", "Safety threshold θS", "Flag if P(q > qmax | data) > θS.")}
-            </div>
+            <Field label="Compare the toxicity rate with" name="safetyKind" error={errors.safetyKind}>
+              <SelectInput id="safetyKind" name="safetyKind" value={form.safetyKind} onChange={(e) => set("safetyKind")(e.target.value as DesignForm["safetyKind"])}>
+                <option value="fixedLimit">A fixed limit qmax</option>
+                <option value="uncertainStandard">An uncertain standard rate plus a margin (Thall, Simon &amp; Estey 1995)</option>
+              </SelectInput>
+            </Field>
+            {form.safetyKind === "uncertainStandard" ? (
+              <>
+                <div className="grid grid-cols-3 gap-3">
+                  {num("safetyStandardA", "Standard toxicity aS")}
+                  {num("safetyStandardB", "Standard toxicity bS")}
+                  {num("safetyMargin", "Margin", "Extra toxicity tolerated above qS.")}
+                </div>
+                {num("thetaS", "Safety threshold θS", "Flag if P(q > qS + margin | data) > θS, qS ~ Beta(aS, bS).")}
+              </>
+            ) : (
+              <div className="grid grid-cols-2 gap-3">
+                {num("qmax", "Toxicity limit qmax")}
+                {num("thetaS", "Safety threshold θS", "Flag if P(q > qmax | data) > θS.")}
+              </div>
+            )}
             <PriorFields prefix="safetyPrior" title="Prior on the toxicity rate" prior={form.safetyPrior} errors={errors} readOnly={readOnly} onChange={set("safetyPrior")} />
           </>
         ) : null}

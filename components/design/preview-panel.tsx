@@ -64,9 +64,11 @@ function OcSummaryBlock({ p, nullLabel, targetLabel, typeILabel, typeINote, extr
       <Stat label={typeILabel ?? `Type I error (${nullLabel})`} value={formatProbability(p.typeIError)} testId="oc-type-i-error" note={typeINote} />
       {extra}
       <Stat label={`Power (${targetLabel})`} value={formatProbability(p.power)} testId="oc-power" />
-      <Stat label={`Early termination (${nullLabel})`} value={formatProbability(p.atNull.pEarlyTermination)} testId="oc-pet-null" />
+      <Stat label={`Early stop for futility (${nullLabel})`} value={formatProbability(p.atNull.pEarlyFutility)} testId="oc-early-futility-null" />
+      <Stat label={`Early stop for efficacy (${nullLabel})`} value={formatProbability(p.atNull.pEarlyEfficacy)} testId="oc-early-efficacy-null" />
       <Stat label={`Expected sample size (${nullLabel})`} value={fmtN(p.atNull.expectedSampleSize)} testId="oc-en-null" note={p.arms === "two" ? "per arm" : undefined} />
-      <Stat label={`Early termination (${targetLabel})`} value={formatProbability(p.atTarget.pEarlyTermination)} testId="oc-pet-target" />
+      <Stat label={`Early stop for futility (${targetLabel})`} value={formatProbability(p.atTarget.pEarlyFutility)} testId="oc-early-futility-target" />
+      <Stat label={`Early stop for efficacy (${targetLabel})`} value={formatProbability(p.atTarget.pEarlyEfficacy)} testId="oc-early-efficacy-target" />
       <Stat label={`Expected sample size (${targetLabel})`} value={fmtN(p.atTarget.expectedSampleSize)} testId="oc-en-target" note={p.arms === "two" ? "per arm" : undefined} />
     </dl>
   );
@@ -103,6 +105,7 @@ function SingleArmResult({ p, design }: { p: SingleArmPreview; design: Extract<D
       <DataGrid rows={rows} columns={SINGLE_COLUMNS} label="Stopping boundaries" height={Math.min(360, 60 + rows.length * 42)} csvFileName="cairn-boundaries.csv" />
       <CairnPlot title="Stopping boundaries: cumulative responders against patients enrolled" data={data} layout={{ xaxis: { title: { text: "Patients enrolled" }, range: [0, p.nMax + 1] }, yaxis: { title: { text: "Cumulative responders" }, rangemode: "tozero" } }} fileName="cairn-boundaries" />
       <OcCurve p={p} xLabel="True response rate" marks={[design.p0, design.p1]} />
+      <SafetyOcTable p={p} nullLabel={`p0 = ${design.p0}`} targetLabel={`p1 = ${design.p1}`} />
     </>
   );
 }
@@ -160,6 +163,46 @@ function TwoArmResult({ p, design }: { p: TwoArmPreview; design: Extract<Design,
       ) : null}
       <CairnPlot title="Experimental responders that stop, against control responders, by look" data={data} layout={{ xaxis: { title: { text: "Control responders" } }, yaxis: { title: { text: "Experimental responders" }, rangemode: "tozero" } }} fileName="cairn-boundaries-two-arm" />
       <OcCurve p={p} xLabel={`True experimental rate (control at ${design.controlRate})`} marks={[design.controlRate, design.experimentalRate]} />
+      <SafetyOcTable p={p} nullLabel={`both at ${design.controlRate}`} targetLabel={`${design.experimentalRate} vs ${design.controlRate}`} />
+    </>
+  );
+}
+
+type SafetyRow = { q: string; safetyNull: string; futilityNull: string; efficacyNull: string; successNull: string; enNull: string; safetyTarget: string; successTarget: string; enTarget: string };
+
+/** Joint response-and-safety characteristics over true toxicity rates, with the assumption they rest on. */
+function SafetyOcTable({ p, nullLabel, targetLabel }: { p: DesignPreview; nullLabel: string; targetLabel: string }) {
+  if (!p.safetyGrid) return null;
+  const rows: SafetyRow[] = p.safetyGrid.map((r) => ({
+    q: `${(r.q * 100).toFixed(1)}%`,
+    safetyNull: formatProbability(r.atNull.pSafetyStop),
+    futilityNull: formatProbability(r.atNull.pEarlyFutility),
+    efficacyNull: formatProbability(r.atNull.pEarlyEfficacy),
+    successNull: formatProbability(r.atNull.pDeclareSuccess),
+    enNull: fmtN(r.atNull.expectedSampleSize),
+    safetyTarget: formatProbability(r.atTarget.pSafetyStop),
+    successTarget: formatProbability(r.atTarget.pDeclareSuccess),
+    enTarget: fmtN(r.atTarget.expectedSampleSize),
+  }));
+  const columns: ColDef<SafetyRow>[] = [
+    { field: "q", headerName: "True toxicity rate" },
+    { field: "safetyNull", headerName: `Safety stop (${nullLabel})` },
+    { field: "futilityNull", headerName: `Early futility stop (${nullLabel})` },
+    { field: "efficacyNull", headerName: `Early efficacy stop (${nullLabel})` },
+    { field: "successNull", headerName: `Efficacy declared (${nullLabel})` },
+    { field: "enNull", headerName: `Expected N (${nullLabel})` },
+    { field: "safetyTarget", headerName: `Safety stop (${targetLabel})` },
+    { field: "successTarget", headerName: `Efficacy declared (${targetLabel})` },
+    { field: "enTarget", headerName: `Expected N (${targetLabel})` },
+  ];
+  return (
+    <>
+      <h3 className="mt-2 text-sm font-semibold">With the safety rule, over true toxicity rates</h3>
+      <p className="text-xs text-stone-600" data-testid="safety-oc-assumption">
+        Computed exactly on the assumption that each patient&apos;s response and toxicity are independent. If they are related in this
+        disease or drug, these numbers are off; treat them as a guide for the DMC, whose charter and protocol decide.
+      </p>
+      <DataGrid rows={rows} columns={columns} label="Operating characteristics with the safety rule" height={Math.min(420, 60 + rows.length * 42)} csvFileName="cairn-safety-characteristics.csv" />
     </>
   );
 }
@@ -191,7 +234,8 @@ function OcCurve({ p, xLabel, marks }: { p: DesignPreview; xLabel: string; marks
       title="P(declare success) and expected sample size over true rates"
       data={[
         { x, y: p.curve.map((c) => c.pDeclareSuccess), name: "P(declare success)", mode: "lines", line: { color: CAIRN_COLOURS.efficacy } },
-        { x, y: p.curve.map((c) => c.pEarlyTermination), name: "P(early termination)", mode: "lines", line: { color: CAIRN_COLOURS.futility, dash: "dash" } },
+        { x, y: p.curve.map((c) => c.pEarlyFutility), name: "P(early stop for futility)", mode: "lines", line: { color: CAIRN_COLOURS.futility, dash: "dash" } },
+        { x, y: p.curve.map((c) => c.pEarlyEfficacy), name: "P(early stop for efficacy)", mode: "lines", line: { color: CAIRN_COLOURS.efficacy, dash: "dash" } },
         { x, y: p.curve.map((c) => c.expectedSampleSize), name: "Expected sample size", mode: "lines", yaxis: "y2", line: { color: CAIRN_COLOURS.control, dash: "dot" } },
       ]}
       layout={{

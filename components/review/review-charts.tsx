@@ -66,7 +66,7 @@ export function CumulativePlot({ review }: { review: Pick<Review, "arms" | "refe
   return <CairnPlot title="Posterior cumulative distribution" fileName="posterior-cumulative" data={data} layout={{ xaxis: { title: { text: "Response rate" }, range: [0, 1] }, yaxis: { title: { text: "Cumulative probability" }, range: [0, 1] }, shapes: shapes as never }} />;
 }
 
-export function PredictiveOverLooksPlot({ history, ruleKind, futilityThreshold, efficacyThreshold }: { history: LookReview[]; ruleKind: "predictive" | "posterior"; futilityThreshold: number; efficacyThreshold: number | null }) {
+export function PredictiveOverLooksPlot({ history, ruleKind, futilityThreshold, efficacyThreshold }: { history: LookReview[]; ruleKind: "predictive" | "posterior" | "uncertainStandard"; futilityThreshold: number; efficacyThreshold: number | null }) {
   const y = history.map((h) => (ruleKind === "predictive" ? h.evaluation.predictiveProbability : h.evaluation.posteriorProbabilityMonitoring));
   const x = history.map((h) => `Look ${h.lookNumber} (n = ${h.n})`);
   const label = ruleKind === "predictive" ? "Predictive probability of success" : "Posterior monitoring probability";

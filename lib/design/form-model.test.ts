@@ -27,8 +27,16 @@ const two: Design = {
   safety: null,
 };
 
+const uncertainSingle: Design = {
+  ...single,
+  delta: 0.05,
+  rule: { kind: "uncertainStandard", standard: { a: 12, b: 36 }, thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
+  safety: { kind: "uncertainStandard", standard: { a: 6, b: 24 }, margin: 0.1, prior: { family: "uniform" }, thetaS: 0.85 },
+};
+const uncertainTwo: Design = { ...two, rule: { ...two.rule, kind: "uncertainStandard" } } as Design;
+
 describe("design form model", () => {
-  for (const d of [single, two, defaultDesign("single"), defaultDesign("two")])
+  for (const d of [single, two, defaultDesign("single"), defaultDesign("two"), uncertainSingle, uncertainTwo])
     it(`a ${d.arms}-arm design survives design -> form -> design unchanged`, () => {
       const back = validateDesignCandidate(formToCandidate(designToForm(d)));
       expect(back.ok).toBe(true);
@@ -80,5 +88,20 @@ describe("design form model", () => {
     expect(fieldForIssuePath(["safety", "prior", "a"])).toBe("safetyPrior.a");
     expect(fieldForIssuePath(["priorC", "mean"])).toBe("priorC.mean");
     expect(fieldForIssuePath(["nMaxPerArm"])).toBe("nMaxPerArm");
+    expect(fieldForIssuePath(["rule", "standard", "b"])).toBe("standardB");
+    expect(fieldForIssuePath(["safety", "margin"])).toBe("safetyMargin");
+    expect(fieldForIssuePath(["safety", "standard", "a"])).toBe("safetyStandardA");
+  });
+
+  it("finding 7: the uncertain-standard forms report a missing standard or margin next to their fields", () => {
+    const f = designToForm(uncertainSingle);
+    f.standardA = "";
+    f.safetyMargin = "";
+    const r = validateDesignCandidate(formToCandidate(f));
+    expect(r.ok).toBe(false);
+    if (!r.ok) {
+      expect(r.errors.standardA).toMatch(/number/i);
+      expect(r.errors.safetyMargin).toMatch(/number/i);
+    }
   });
 });

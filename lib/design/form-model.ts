@@ -3,7 +3,7 @@
  * text the statistician typed (so a half-typed number is not lost); `formToCandidate` turns them
  * into numbers for the zod design schema, which is the one judge of validity, client and server.
  */
-import type { Design, PriorSpec } from "@/lib/stats/types";
+import type { Design, MonitoringRule, PriorSpec } from "@/lib/stats/types";
 import { singleArmDesignSchema, twoArmDesignSchema } from "@/lib/stats/design-schema";
 
 export type PriorFamily = PriorSpec["family"];
@@ -25,13 +25,21 @@ export type DesignForm = {
   looksList: string;
   looksFirst: string;
   looksEvery: string;
-  ruleKind: "predictive" | "posterior";
+  ruleKind: MonitoringRule["kind"];
+  /** Single arm, uncertain-standard rule: the standard rate's Beta(aS, bS). */
+  standardA: string;
+  standardB: string;
   thetaT: string;
   futilityThreshold: string;
   efficacyStopping: boolean;
   efficacyThreshold: string;
   safetyOn: boolean;
+  /** "fixedLimit": P(q > qmax) > θS; "uncertainStandard": P(q > qS + margin) > θS with qS ~ Beta(aS, bS). */
+  safetyKind: "fixedLimit" | "uncertainStandard";
   qmax: string;
+  safetyStandardA: string;
+  safetyStandardB: string;
+  safetyMargin: string;
   thetaS: string;
   safetyPrior: PriorForm;
 };
@@ -91,12 +99,18 @@ export function designToForm(d: Design): DesignForm {
     looksFirst: d.looks.kind === "every" ? str(d.looks.first) : "10",
     looksEvery: d.looks.kind === "every" ? str(d.looks.every) : "10",
     ruleKind: d.rule.kind,
+    standardA: d.rule.standard ? str(d.rule.standard.a) : "20",
+    standardB: d.rule.standard ? str(d.rule.standard.b) : "80",
     thetaT: str(d.rule.thetaT),
     futilityThreshold: str(d.rule.futilityThreshold),
     efficacyStopping: d.rule.efficacyStopping,
     efficacyThreshold: d.rule.efficacyThreshold === null ? "0.99" : str(d.rule.efficacyThreshold),
     safetyOn: d.safety !== null,
-    qmax: d.safety ? str(d.safety.qmax) : "0.3",
+    safetyKind: (d.safety?.kind === "uncertainStandard" ? "uncertainStandard" : "fixedLimit") as DesignForm["safetyKind"],
+    qmax: d.safety && d.safety.kind !== "uncertainStandard" ? str(d.safety.qmax) : "0.3",
+    safetyStandardA: d.safety?.kind === "uncertainStandard" ? str(d.safety.standard.a) : "20",
+    safetyStandardB: d.safety?.kind === "uncertainStandard" ? str(d.safety.standard.b) : "80",
+    safetyMargin: d.safety?.kind === "uncertainStandard" ? str(d.safety.margin) : "0.1",
     thetaS: d.safety ? str(d.safety.thetaS) : "0.9",
     safetyPrior: d.safety ? priorToForm(d.safety.prior) : priorToForm({ family: "beta", a: 0.6, b: 1.4 }),
   };
@@ -145,14 +159,20 @@ export function parseLookList(s: string): number[] {
 /** The candidate object the zod design schema judges. */
 export function formToCandidate(f: DesignForm): unknown {
   const looks = f.looksKind === "list" ? { kind: "list", sizes: parseLookList(f.looksList) } : { kind: "every", first: num(f.looksFirst), every: num(f.looksEvery) };
-  const rule = {
+  const rule: Record<string, unknown> = {
     kind: f.ruleKind,
     thetaT: num(f.thetaT),
     futilityThreshold: num(f.futilityThreshold),
     efficacyStopping: f.efficacyStopping,
     efficacyThreshold: f.efficacyStopping ? num(f.efficacyThreshold) : null,
   };
-  const safety = f.safetyOn ? { qmax: num(f.qmax), prior: priorFromForm(f.safetyPrior), thetaS: num(f.thetaS) } : null;
+  // Only a single arm carries its own standard; two arms use the control arm's posterior.
+  if (f.ruleKind === "uncertainStandard" && f.arms === "single") rule.standard = { a: num(f.standardA), b: num(f.standardB) };
+  const safety = !f.safetyOn
+    ? null
+    : f.safetyKind === "uncertainStandard"
+      ? { kind: "uncertainStandard", standard: { a: num(f.safetyStandardA), b: num(f.safetyStandardB) }, margin: num(f.safetyMargin), prior: priorFromForm(f.safetyPrior), thetaS: num(f.thetaS) }
+      : { qmax: num(f.qmax), prior: priorFromForm(f.safetyPrior), thetaS: num(f.thetaS) };
   const delta = f.delta.trim() === "" ? 0 : num(f.delta);
   if (f.arms === "single") return { arms: "single", prior: priorFromForm(f.prior), p0: num(f.p0), p1: num(f.p1), delta, nMax: num(f.nMax), looks, rule, safety };
   return {
@@ -182,9 +202,12 @@ export function fieldForIssuePath(path: readonly PropertyKey[]): string {
       return "looks";
     case "rule":
       if (second === "kind") return "ruleKind";
+      if (second === "standard") return path[2] === "b" ? "standardB" : "standardA";
       return second ?? "rule";
     case "safety":
       if (second === "prior") return path[2] === undefined ? "safetyPrior" : `safetyPrior.${String(path[2])}`;
+      if (second === "standard") return path[2] === "b" ? "safetyStandardB" : "safetyStandardA";
+      if (second === "margin") return "safetyMargin";
       return second ?? "safety";
     case "prior":
     case "priorT":

@@ -5,7 +5,19 @@
  */
 import type { Design, SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { singleArmBoundaries, twoArmBoundaries } from "@/lib/stats/boundaries";
-import { exactOperatingCharacteristics, exactTwoArmOperatingCharacteristics, twoArmErrorRatesFromBoundaries, TWO_ARM_NULL_CONTROL_RATES, type OperatingCharacteristics, type TwoArmNullPoint, type TwoArmOperatingCharacteristics } from "@/lib/stats/operating-characteristics";
+import {
+  combineResponseAndSafety,
+  exactOperatingCharacteristics,
+  exactSafetyOperatingCharacteristics,
+  exactTwoArmOperatingCharacteristics,
+  twoArmErrorRatesFromBoundaries,
+  TWO_ARM_NULL_CONTROL_RATES,
+  type OperatingCharacteristics,
+  type SafetyAwareOperatingCharacteristics,
+  type TwoArmNullPoint,
+  type TwoArmOperatingCharacteristics,
+} from "@/lib/stats/operating-characteristics";
+import { safetyBoundaries } from "@/lib/stats/boundaries";
 import { summarisePrior } from "./prior-summary";
 
 export type OcSummary = {
@@ -16,6 +28,17 @@ export type OcSummary = {
   expectedSampleSize: number;
   sampleSizeDistribution: { n: number; probability: number }[];
 };
+
+/** Joint response-and-safety characteristics at one true toxicity rate (response and toxicity assumed independent). */
+export type SafetyOcSummary = {
+  pSafetyStop: number;
+  pEarlySafety: number;
+  pEarlyFutility: number;
+  pEarlyEfficacy: number;
+  pDeclareSuccess: number;
+  expectedSampleSize: number;
+};
+export type SafetyOcRow = { q: number; atNull: SafetyOcSummary; atTarget: SafetyOcSummary };
 
 export type PriorPreview = { label: string; mean: number; ess: number; density: { x: number[]; y: number[] } };
 
@@ -29,7 +52,9 @@ export type SingleArmPreview = {
   atNull: OcSummary;
   atTarget: OcSummary;
   /** P(declare success) and E(N) over true response rates. */
-  curve: { rate: number; pDeclareSuccess: number; expectedSampleSize: number; pEarlyTermination: number }[];
+  curve: CurvePoint[];
+  /** Over true toxicity rates, when the design has a safety rule; null otherwise. */
+  safetyGrid: SafetyOcRow[] | null;
   priors: PriorPreview[];
 };
 
@@ -58,11 +83,51 @@ export type TwoArmPreview = {
   atNull: OcSummary;
   atTarget: OcSummary;
   /** Over experimental rates with the control rate fixed at the assumed one. */
-  curve: { rate: number; pDeclareSuccess: number; expectedSampleSize: number; pEarlyTermination: number }[];
+  curve: CurvePoint[];
+  /** Over true toxicity rates, when the design has a safety rule; null otherwise. */
+  safetyGrid: SafetyOcRow[] | null;
   priors: PriorPreview[];
 };
 
 export type DesignPreview = SingleArmPreview | TwoArmPreview;
+
+/** One true rate of the OC curve; early termination split by reason (it is also given as the total). */
+export type CurvePoint = { rate: number; pDeclareSuccess: number; expectedSampleSize: number; pEarlyTermination: number; pEarlyFutility: number; pEarlyEfficacy: number };
+
+function curvePoint(rate: number, oc: OperatingCharacteristics | TwoArmOperatingCharacteristics): CurvePoint {
+  return { rate, pDeclareSuccess: oc.pDeclareSuccess, expectedSampleSize: oc.expectedSampleSize, pEarlyTermination: oc.pEarlyTermination, pEarlyFutility: oc.pEarlyFutility, pEarlyEfficacy: oc.pEarlyEfficacy };
+}
+
+function safetySummary(oc: SafetyAwareOperatingCharacteristics): SafetyOcSummary {
+  return {
+    pSafetyStop: oc.pSafetyStop,
+    pEarlySafety: oc.pEarlySafety,
+    pEarlyFutility: oc.pEarlyFutility,
+    pEarlyEfficacy: oc.pEarlyEfficacy,
+    pDeclareSuccess: oc.pDeclareSuccess,
+    expectedSampleSize: oc.expectedSampleSize,
+  };
+}
+
+/** Toxicity rates 0, 0.05, ..., 0.6 plus the rule's own reference rate (qmax, or mean of qS plus the margin). */
+export function toxicityGrid(design: Design): number[] {
+  const s = design.safety;
+  if (!s) return [];
+  const ref = s.kind === "uncertainStandard" ? s.standard.a / (s.standard.a + s.standard.b) + s.margin : s.qmax;
+  const grid = Array.from({ length: 13 }, (_, i) => Math.round(i * 0.05 * 1e6) / 1e6);
+  if (ref > 0 && ref < 1) grid.push(Math.round(ref * 1e6) / 1e6);
+  return [...new Set(grid)].sort((a, b) => a - b);
+}
+
+/** The safety grid from the response rule's per-look outcomes at the null and target rates. */
+function safetyGridFor(design: Design, looks: number[], atNull: OperatingCharacteristics["looks"], atTarget: OperatingCharacteristics["looks"]): SafetyOcRow[] | null {
+  if (!design.safety) return null;
+  const table = safetyBoundaries(design.safety, looks);
+  return toxicityGrid(design).map((q) => {
+    const s = exactSafetyOperatingCharacteristics(table, q);
+    return { q, atNull: safetySummary(combineResponseAndSafety(atNull, s)), atTarget: safetySummary(combineResponseAndSafety(atTarget, s)) };
+  });
+}
 
 function summary(oc: OperatingCharacteristics | TwoArmOperatingCharacteristics): OcSummary {
   return {
@@ -86,8 +151,7 @@ export function singleArmPreview(design: SingleArmDesign, labels: { arm?: string
   const atTarget = exactOperatingCharacteristics(b.response, design.p1);
   const rates = [...new Set([...rateGrid(50), design.p0, design.p1])].sort((x, y) => x - y);
   const curve = rates.map((rate) => {
-    const oc = exactOperatingCharacteristics(b.response, rate);
-    return { rate, pDeclareSuccess: oc.pDeclareSuccess, expectedSampleSize: oc.expectedSampleSize, pEarlyTermination: oc.pEarlyTermination };
+    return curvePoint(rate, exactOperatingCharacteristics(b.response, rate));
   });
   const priors: PriorPreview[] = [{ label: labels.arm ?? "Response rate", ...summarisePrior(design.prior) }];
   if (design.safety) priors.push({ label: "Toxicity rate (safety rule)", ...summarisePrior(design.safety.prior) });
@@ -101,6 +165,7 @@ export function singleArmPreview(design: SingleArmDesign, labels: { arm?: string
     atNull: summary(atNull),
     atTarget: summary(atTarget),
     curve,
+    safetyGrid: safetyGridFor(design, b.looks, atNull.looks, atTarget.looks),
     priors: priors.map(({ label, mean, ess, density }) => ({ label, mean, ess, density })),
   };
 }
@@ -123,8 +188,7 @@ export function twoArmPreview(design: TwoArmDesign, labels: { experimental?: str
   const errors = twoArmErrorRatesFromBoundaries(b.response, design, nullCurveControlRates(design.nMaxPerArm));
   const rates = [...new Set([...rateGrid(20), design.controlRate, design.experimentalRate])].sort((x, y) => x - y);
   const curve = rates.map((rate) => {
-    const oc = exactTwoArmOperatingCharacteristics(b.response, rate, design.controlRate);
-    return { rate, pDeclareSuccess: oc.pDeclareSuccess, expectedSampleSize: oc.expectedSampleSize, pEarlyTermination: oc.pEarlyTermination };
+    return curvePoint(rate, exactTwoArmOperatingCharacteristics(b.response, rate, design.controlRate));
   });
   const boundaries = b.response.flatMap((r) => r.futilityMaxT.map((f, xC) => ({ n: r.n, final: r.final, xC, futilityMaxT: f, efficacyMinT: r.efficacyMinT[xC] })));
   const priors: PriorPreview[] = [
@@ -150,6 +214,7 @@ export function twoArmPreview(design: TwoArmDesign, labels: { experimental?: str
     atNull: summary(errors.atNull),
     atTarget: summary(errors.atTarget),
     curve,
+    safetyGrid: safetyGridFor(design, b.looks, errors.atNull.looks, errors.atTarget.looks),
     priors: priors.map(({ label, mean, ess, density }) => ({ label, mean, ess, density })),
   };
 }

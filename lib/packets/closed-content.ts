@@ -247,7 +247,7 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
             rows: [
               ["Toxicities", `${s.toxicities} of ${s.n} evaluable patients`],
               ["Posterior of the toxicity rate", `${mixtureText(s.posterior)}, mean ${formatRate(s.summary.mean)}`],
-              [`P(q > ${formatRate(s.qmax)} | data)`, formatProbability(s.probAboveLimit)],
+              [`P(q > ${s.limitLabel ?? formatRate(s.qmax)} | data)`, formatProbability(s.probAboveLimit)],
               ["Safety threshold", `${s.thetaS} (${s.crossed ? "CROSSED: the data favour stopping for safety" : "not crossed"})`],
             ],
           },

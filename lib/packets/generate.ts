@@ -17,6 +17,7 @@ import { fetchArmCountsForTrial } from "@/db/queries/closed";
 import { CAUTION_TEXT } from "@/components/caution";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { ENGINE_VERSION } from "@/lib/stats/version";
+import { monitoringRuleLabel } from "@/lib/stats/labels";
 import { StatsDomainError } from "@/lib/stats/validate";
 import { computeReview, reproducibilityRecord, type ReviewInput } from "@/lib/review/compute-review";
 import { HttpError } from "@/lib/http";
@@ -99,7 +100,7 @@ async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typ
         ruleLabel:
           design.spec.rule.kind === "predictive"
             ? `Predictive probability (Lee & Liu 2008): success if P > ${design.spec.rule.thetaT} at the end; futility if PP < ${design.spec.rule.futilityThreshold}${design.spec.rule.efficacyStopping ? `; efficacy if PP > ${design.spec.rule.efficacyThreshold}` : "; no efficacy stopping"}`
-            : `Posterior probability (Thall & Simon 1994 style): futility if P < ${design.spec.rule.futilityThreshold}${design.spec.rule.efficacyStopping ? `; efficacy if P > ${design.spec.rule.efficacyThreshold}` : "; no efficacy stopping"}; success if P > ${design.spec.rule.thetaT} at the end`,
+            : `${monitoringRuleLabel(design.spec.rule.kind, design.spec.arms)}: futility if P < ${design.spec.rule.futilityThreshold}${design.spec.rule.efficacyStopping ? `; efficacy if P > ${design.spec.rule.efficacyThreshold}` : "; no efficacy stopping"}; success if P > ${design.spec.rule.thetaT} at the end`,
       },
       lock: { signedBy: lock.signerName, lockedAt: lock.lockedAt ? new Date(lock.lockedAt) : null },
     });

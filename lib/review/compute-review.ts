@@ -6,10 +6,10 @@
  * CLOSED output: arm-level counts, posteriors, predictive probabilities and boundary positions.
  * Only code that has passed requireTrialAccess(..., "viewClosed") may call this.
  */
-import type { Design, LookDecision, MixtureBeta, PriorSpec, SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
+import type { Design, LookDecision, MixtureBeta, MonitoringRule, PriorSpec, SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { resolvePrior, mixtureSurvival } from "@/lib/stats/priors";
 import { posteriorMixture, predictiveProbabilitySingleArm, predictiveProbabilityTwoArm, singleArmFinalSuccess } from "@/lib/stats/predictive";
-import { decideAtLook, twoArmFinalRuleForDesign, validateSingleArmDesign, validateTwoArmDesign, type LookEvaluation } from "@/lib/stats/decision";
+import { decideAtLook, safetyLimitPhrase, safetyProbabilityFromPosterior, twoArmFinalRuleForDesign, validateSingleArmDesign, validateTwoArmDesign, type LookEvaluation } from "@/lib/stats/decision";
 import {
   boundaryFromStatistics,
   finalBoundaryFromSuccess,
@@ -20,6 +20,7 @@ import {
   type ResponseBoundary,
   type SafetyBoundary,
 } from "@/lib/stats/boundaries";
+import { exceedsThreshold } from "@/lib/stats/compare";
 import { probDifferenceExceeds, differenceDensityGrid } from "@/lib/stats/difference";
 import { expandLooks } from "@/lib/stats/looks";
 import { ENGINE_VERSION } from "@/lib/stats/version";
@@ -136,7 +137,10 @@ export type BoundaryRow = ResponseBoundary & {
 };
 
 export type SafetyReview = {
+  /** The fixed limit qmax; for the uncertain-standard form, the standard's mean plus the margin (the chart's reference line). */
   qmax: number;
+  /** What the toxicity rate is compared with, in words (fixed limit or uncertain standard plus margin). */
+  limitLabel: string;
   thetaS: number;
   n: number;
   toxicities: number;
@@ -144,7 +148,7 @@ export type SafetyReview = {
   posterior: MixtureBeta;
   summary: PosteriorSummary;
   probAboveLimit: number;
-  /** True when P(q > qmax | data) > thetaS (strict, as the rule reads). */
+  /** True when the safety probability exceeds thetaS (strict, ties do not count: lib/stats/compare.ts). */
   crossed: boolean;
   boundary: SafetyBoundary[];
   observedPath: { lookNumber: number; n: number; toxicities: number }[];
@@ -179,7 +183,7 @@ export type Review = {
   decision: LookDecision;
   /** This look and every earlier locked look, in order: the predictive probability line over looks. */
   history: LookReview[];
-  ruleKind: "predictive" | "posterior";
+  ruleKind: MonitoringRule["kind"];
   plannedLooks: number[];
   boundaries: BoundaryRow[];
   /** Each look's observation against the boundaries at its actual evaluable count (and at the planned size). */
@@ -365,11 +369,12 @@ function safetyReview(design: Design, history: LookReview[], current: LookReview
   if (current.toxicities === null) throw new StatsDomainError("toxicities", null, "are required at this look because the design has a safety rule");
   const prior = resolvePrior(rule.prior);
   const posterior = posteriorMixture(prior, current.toxicities, current.safetyN);
-  const probAboveLimit = mixtureSurvival(posterior, rule.qmax);
+  const probAboveLimit = safetyProbabilityFromPosterior(rule, posterior);
   const seen = history.filter((h) => h.toxicities !== null);
   const atActual = safetyBoundaries(rule, seen.map((h) => h.safetyN));
   return {
-    qmax: rule.qmax,
+    qmax: rule.kind === "uncertainStandard" ? Math.min(1, Math.max(0, rule.standard.a / (rule.standard.a + rule.standard.b) + rule.margin)) : rule.qmax,
+    limitLabel: safetyLimitPhrase(rule),
     thetaS: rule.thetaS,
     n: current.safetyN,
     toxicities: current.toxicities,
@@ -377,7 +382,7 @@ function safetyReview(design: Design, history: LookReview[], current: LookReview
     posterior,
     summary: summarisePosterior(prior, current.toxicities, current.safetyN, level),
     probAboveLimit,
-    crossed: probAboveLimit > rule.thetaS,
+    crossed: exceedsThreshold(probAboveLimit, rule.thetaS),
     boundary: boundary ?? [],
     observedPath: seen.map((h) => ({ lookNumber: h.lookNumber, n: h.safetyN, toxicities: h.toxicities as number })),
     observed: seen.map((h, k) => {

@@ -11,7 +11,6 @@
  * statistics, count by count, not from that argument.
  */
 import type { MixtureBeta, MonitoringRule, SafetyRule, SingleArmDesign, TwoArmDesign } from "./types";
-import { mixtureSurvival } from "./priors";
 import { probDifferenceExceeds } from "./difference";
 import {
   monotoneThresholds,
@@ -20,8 +19,16 @@ import {
   singleArmPredictiveTable,
   twoArmPredictiveTableAtLook,
 } from "./predictive";
-import { twoArmFinalRuleForDesign, validateSafety, validateSingleArmDesign, validateTwoArmDesign } from "./decision";
+import {
+  safetyProbabilityFromPosterior,
+  singleArmMonitoringProbability,
+  twoArmFinalRuleForDesign,
+  validateSafety,
+  validateSingleArmDesign,
+  validateTwoArmDesign,
+} from "./decision";
 import { requireCount, StatsDomainError } from "./validate";
+import { exceedsThreshold, fallsBelowThreshold } from "./compare";
 
 /** One look of a single-arm response boundary. Counts are cumulative responders at n patients. */
 export type ResponseBoundary = {
@@ -50,9 +57,9 @@ export type SingleArmBoundaries = {
 export function boundaryFromStatistics(n: number, stat: ArrayLike<number>, rule: Pick<MonitoringRule, "futilityThreshold" | "efficacyStopping" | "efficacyThreshold">): ResponseBoundary {
   let futilityMax: number | null = null;
   let efficacyMin: number | null = null;
-  for (let x = 0; x <= n; x++) if (stat[x] < rule.futilityThreshold) futilityMax = x;
+  for (let x = 0; x <= n; x++) if (fallsBelowThreshold(stat[x], rule.futilityThreshold)) futilityMax = x;
   if (rule.efficacyStopping && rule.efficacyThreshold !== null)
-    for (let x = n; x >= 0; x--) if (stat[x] > rule.efficacyThreshold) efficacyMin = x;
+    for (let x = n; x >= 0; x--) if (exceedsThreshold(stat[x], rule.efficacyThreshold)) efficacyMin = x;
   return { n, final: false, futilityMax, efficacyMin };
 }
 
@@ -68,7 +75,8 @@ export function finalBoundaryFromSuccess(success: Uint8Array): ResponseBoundary 
 
 /**
  * The interim monitoring statistic at every count of every interim look of a single-arm design:
- * PP for the predictive rule, P(p > p0 + delta | x, n) for the posterior rule. `stats[k][x]` for
+ * PP for the predictive rule, P(p > p0 + delta | x, n) against a fixed rate, P(pE > pS + delta | x, n)
+ * against an uncertain standard. `stats[k][x]` for
  * look k (interims only, final excluded).
  */
 export function singleArmInterimStatistics(
@@ -78,17 +86,17 @@ export function singleArmInterimStatistics(
   finalSuccess: Uint8Array,
 ): Float64Array[] {
   if (design.rule.kind === "predictive") return singleArmPredictiveTable(prior, interimLooks, design.nMax, finalSuccess);
-  const target = design.p0 + design.delta;
   return interimLooks.map((n) => {
     const out = new Float64Array(n + 1);
-    for (let x = 0; x <= n; x++) out[x] = mixtureSurvival(posteriorMixture(prior, x, n), target);
+    for (let x = 0; x <= n; x++) out[x] = singleArmMonitoringProbability(posteriorMixture(prior, x, n), design);
     return out;
   });
 }
 
 /**
- * Safety boundary at each look: smallest t with P(q > qmax | t of n) > thetaS (null when none).
- * @param safety - the safety rule (qmax in (0,1), thetaS in [0,1], a prior)
+ * Safety boundary at each look: smallest t with P(q > qmax | t of n) > thetaS, or
+ * P(q > qS + margin | t of n) > thetaS for the uncertain-standard form (null when none).
+ * @param safety - the safety rule (either form; thetaS in [0,1], a prior)
  * @param looks - look sizes, non-negative integers
  */
 export function safetyBoundaries(safety: SafetyRule, looks: number[]): SafetyBoundary[] {
@@ -96,7 +104,7 @@ export function safetyBoundaries(safety: SafetyRule, looks: number[]): SafetyBou
   return looks.map((n) => {
     requireCount("look", n);
     let toxicityMin: number | null = null;
-    for (let t = n; t >= 0; t--) if (mixtureSurvival(posteriorMixture(prior, t, n), safety.qmax) > safety.thetaS) toxicityMin = t;
+    for (let t = n; t >= 0; t--) if (exceedsThreshold(safetyProbabilityFromPosterior(safety, posteriorMixture(prior, t, n)), safety.thetaS)) toxicityMin = t;
     return { n, toxicityMin };
   });
 }
@@ -164,10 +172,10 @@ export function twoArmBoundaries(design: TwoArmDesign): TwoArmBoundaries {
       }
       const prob = (xT: number, xC: number) => probDifferenceExceeds(postT[xT], postC[xC], design.delta);
       // Smallest xT that is not futile (P >= pL), and smallest that is efficacious (P > pU).
-      const notFutile = monotoneThresholds(n, n, (xT, xC) => prob(xT, xC) >= rule.futilityThreshold);
+      const notFutile = monotoneThresholds(n, n, (xT, xC) => !fallsBelowThreshold(prob(xT, xC), rule.futilityThreshold));
       const efficacious =
         rule.efficacyStopping && rule.efficacyThreshold !== null
-          ? monotoneThresholds(n, n, (xT, xC) => prob(xT, xC) > (rule.efficacyThreshold as number))
+          ? monotoneThresholds(n, n, (xT, xC) => exceedsThreshold(prob(xT, xC), rule.efficacyThreshold as number))
           : null;
       for (let xC = 0; xC <= n; xC++) {
         fut.push(notFutile[xC] > 0 ? notFutile[xC] - 1 : null);

@@ -15,6 +15,7 @@ import { posteriorMixture, singleArmPredictiveTable } from "./predictive";
 import { validateSingleArmDesign } from "./decision";
 import { singleArmInterimStatistics } from "./boundaries";
 import { requireProbability, StatsDomainError } from "./validate";
+import { exceedsThreshold, fallsBelowThreshold } from "./compare";
 
 export type CalibrationOptions = {
   /** Final success thresholds to try, each in [0, 1]. */
@@ -47,6 +48,9 @@ export type CalibratedDesign = {
   expectedSampleSizeNull: number;
   expectedSampleSizeTarget: number;
   pEarlyTerminationNull: number;
+  /** Early termination under p0 split by reason: futility stops and efficacy stops before nMax. */
+  pEarlyFutilityNull: number;
+  pEarlyEfficacyNull: number;
 };
 
 export type CalibrationResult = {
@@ -67,7 +71,7 @@ export type CalibrationResult = {
   expectedSampleSizeNull: Float64Array;
 };
 
-type Summary = { declareSuccess: number; expectedSampleSize: number; earlyTermination: number };
+type Summary = { declareSuccess: number; expectedSampleSize: number; earlyTermination: number; earlyFutility: number; earlyEfficacy: number };
 
 /**
  * Exact single-arm recursion on integer bounds (fMax = -1: none; eMin = n + 1: none), with the
@@ -81,6 +85,8 @@ function recurse(looks: number[], fMax: Int32Array, eMin: Int32Array, incs: Floa
   let lo = 0;
   let hi = 0;
   let early = 0;
+  let earlyFut = 0;
+  let earlyEff = 0;
   let eff = 0;
   let en = 0;
   const last = looks.length - 1;
@@ -111,6 +117,8 @@ function recurse(looks: number[], fMax: Int32Array, eMin: Int32Array, incs: Floa
     if (e - 1 < hi) hi = e - 1;
     if (k < last) {
       early += fut + ef;
+      earlyFut += fut;
+      earlyEff += ef;
       eff += ef;
       en += n * (fut + ef);
     } else {
@@ -121,10 +129,10 @@ function recurse(looks: number[], fMax: Int32Array, eMin: Int32Array, incs: Floa
     }
     if (lo > hi) {
       // Every trial has stopped.
-      return { declareSuccess: eff, expectedSampleSize: en, earlyTermination: early };
+      return { declareSuccess: eff, expectedSampleSize: en, earlyTermination: early, earlyFutility: earlyFut, earlyEfficacy: earlyEff };
     }
   }
-  return { declareSuccess: eff, expectedSampleSize: en, earlyTermination: early };
+  return { declareSuccess: eff, expectedSampleSize: en, earlyTermination: early, earlyFutility: earlyFut, earlyEfficacy: earlyEff };
 }
 
 function requireGrid(name: string, g: number[]): void {
@@ -187,7 +195,7 @@ export function calibrateSingleArm(design: SingleArmDesign, options: Calibration
     const success = new Uint8Array(nMax + 1);
     let successMin = nMax + 1;
     for (let x = nMax; x >= 0; x--)
-      if (finalProb[x] > thetaT) {
+      if (exceedsThreshold(finalProb[x], thetaT)) {
         success[x] = 1;
         successMin = x;
       }
@@ -207,7 +215,7 @@ export function calibrateSingleArm(design: SingleArmDesign, options: Calibration
       for (let k = 0; k < K - 1; k++) {
         const s = (stats as Float64Array[])[k];
         let f = -1;
-        for (let x = 0; x < s.length; x++) if (s[x] < thetaL) f = x;
+        for (let x = 0; x < s.length; x++) if (fallsBelowThreshold(s[x], thetaL)) f = x;
         fMax[k] = f;
       }
       for (let iU = 0; iU < nU; iU++) {
@@ -221,7 +229,7 @@ export function calibrateSingleArm(design: SingleArmDesign, options: Calibration
         for (let k = 0; k < K - 1; k++) {
           const s = (stats as Float64Array[])[k];
           let e = s.length;
-          if (thetaU !== null) for (let x = s.length - 1; x >= 0; x--) if (s[x] > thetaU) e = x;
+          if (thetaU !== null) for (let x = s.length - 1; x >= 0; x--) if (exceedsThreshold(s[x], thetaU)) e = x;
           // A count cannot both stop for futility and efficacy; thetaU > thetaL guarantees it for monotone statistics.
           eMin[k] = e <= fMax[k] ? fMax[k] + 1 : e;
         }
@@ -243,6 +251,8 @@ export function calibrateSingleArm(design: SingleArmDesign, options: Calibration
             expectedSampleSizeNull: at0.expectedSampleSize,
             expectedSampleSizeTarget: at1.expectedSampleSize,
             pEarlyTerminationNull: at0.earlyTermination,
+            pEarlyFutilityNull: at0.earlyFutility,
+            pEarlyEfficacyNull: at0.earlyEfficacy,
           });
           if (feasibleList.length > 4 * keep) trim(feasibleList, keep);
         }

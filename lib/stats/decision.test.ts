@@ -3,12 +3,14 @@
  * (@stdlib/stats-base-dists-beta-cdf) for the posterior probabilities the decisions rest on, and the
  * exact series for P(X > Y) between Beta variables with integer shapes (two arms). The tie
  * convention (a probability equal to its threshold does not trigger) is pinned with thresholds set
- * to the very value the engine reports, and with the next representable number above it.
+ * to the very value the engine reports, one rounding step away (still a tie: lib/stats/compare.ts),
+ * and just beyond the tie tolerance (which triggers).
  */
 import { describe, expect, it } from "vitest";
 import betaCdf from "@stdlib/stats-base-dists-beta-cdf";
 import betaln from "@stdlib/math-base-special-betaln";
 import { decideAtLook, formatAgainst } from "./decision";
+import { TIE_TOLERANCE } from "./compare";
 import type { SingleArmDesign, TwoArmDesign } from "./types";
 import { StatsDomainError } from "./validate";
 
@@ -48,24 +50,28 @@ describe("decideAtLook, single arm, predictive rule", () => {
     expect(r.decision.reason).toContain("efficacy stopping is off");
   });
 
-  it("a tie does not trigger futility; the next number above PP does", () => {
+  it("a tie does not trigger futility, nor does one rounding step above PP; a threshold beyond the tie tolerance does", () => {
     const pp = decideAtLook(single, { n: 20, responders: 4 }).predictiveProbability!;
     expect(pp).toBeGreaterThan(0);
     expect(pp).toBeLessThan(1);
     const tie = { ...single, rule: { ...single.rule, futilityThreshold: pp } };
     expect(decideAtLook(tie, { n: 20, responders: 4 }).decision.action).toBe("continue");
-    const above = { ...single, rule: { ...single.rule, futilityThreshold: nextUp(pp) } };
+    const ulp = { ...single, rule: { ...single.rule, futilityThreshold: nextUp(pp) } };
+    expect(decideAtLook(ulp, { n: 20, responders: 4 }).decision.action).toBe("continue");
+    const above = { ...single, rule: { ...single.rule, futilityThreshold: pp + 2 * TIE_TOLERANCE } };
     expect(decideAtLook(above, { n: 20, responders: 4 }).decision).toMatchObject({ action: "stop", stop: "futility" });
   });
 
-  it("a tie does not trigger efficacy; the largest number below PP does", () => {
+  it("a tie does not trigger efficacy, nor does one rounding step below PP; a threshold beyond the tie tolerance does", () => {
     const withEff = { ...single, rule: { ...single.rule, futilityThreshold: 0.01, efficacyStopping: true, efficacyThreshold: 0.99 } };
     const pp = decideAtLook(withEff, { n: 30, responders: 11 }).predictiveProbability!;
     expect(pp).toBeGreaterThan(0.01);
     expect(pp).toBeLessThan(1);
     const tie = { ...withEff, rule: { ...withEff.rule, efficacyThreshold: pp } };
     expect(decideAtLook(tie, { n: 30, responders: 11 }).decision.action).toBe("continue");
-    const below = { ...withEff, rule: { ...withEff.rule, efficacyThreshold: pp - Number.EPSILON * pp } };
+    const ulp = { ...withEff, rule: { ...withEff.rule, efficacyThreshold: pp - Number.EPSILON * pp } };
+    expect(decideAtLook(ulp, { n: 30, responders: 11 }).decision.action).toBe("continue");
+    const below = { ...withEff, rule: { ...withEff.rule, efficacyThreshold: pp - 2 * TIE_TOLERANCE } };
     expect(decideAtLook(below, { n: 30, responders: 11 }).decision).toMatchObject({ action: "stop", stop: "efficacy" });
   });
 
@@ -91,7 +97,9 @@ describe("decideAtLook, single arm, predictive rule", () => {
     const p = decideAtLook(single, { n: 40, responders: 11 }).posteriorProbabilitySuccess;
     const tie = { ...single, rule: { ...single.rule, thetaT: p } };
     expect(decideAtLook(tie, { n: 40, responders: 11 }).decision).toMatchObject({ action: "final", success: false });
-    const below = { ...single, rule: { ...single.rule, thetaT: p - Number.EPSILON * p } };
+    const ulp = { ...single, rule: { ...single.rule, thetaT: p - Number.EPSILON * p } };
+    expect(decideAtLook(ulp, { n: 40, responders: 11 }).decision).toMatchObject({ action: "final", success: false });
+    const below = { ...single, rule: { ...single.rule, thetaT: p - 2 * TIE_TOLERANCE } };
     expect(decideAtLook(below, { n: 40, responders: 11 }).decision).toMatchObject({ action: "final", success: true });
   });
 });

@@ -1,13 +1,16 @@
 /**
- * The decision at one look, for single-arm and two-arm designs, by the predictive (Lee & Liu 2008)
- * or the posterior-probability (Thall & Simon 1994 style) rule, plus the optional safety rule
- * (Thall, Simon & Estey 1995 style).
+ * The decision at one look, for single-arm and two-arm designs, by the predictive rule (Lee & Liu
+ * 2008), the posterior probability against a fixed rate, or the posterior probability against an
+ * uncertain standard rate (Thall & Simon 1994 as published), plus the optional safety rule (against
+ * a fixed limit, or against an uncertain standard toxicity rate plus a margin as in Thall, Simon &
+ * Estey 1995).
  *
  * Order of checks: safety first (a safety signal outranks efficacy or futility), then at nMax the
  * final rule, otherwise futility, then efficacy. Strict inequalities: a tie never triggers.
  * The result is decision support; the DMC decides under its charter and the protocol.
  */
-import type { Design, LookDecision, MixtureBeta, MonitoringRule, SafetyRule, SingleArmDesign, TwoArmDesign } from "./types";
+import type { Design, LookDecision, MixtureBeta, MonitoringRule, SafetyRule, SingleArmDesign, StandardRatePrior, TwoArmDesign } from "./types";
+import { exceedsThreshold, fallsBelowThreshold, tiesThreshold } from "./compare";
 import { resolvePrior, mixtureSurvival } from "./priors";
 import { expandLooks } from "./looks";
 import { probDifferenceExceeds } from "./difference";
@@ -20,7 +23,7 @@ import {
   twoArmFinalRule,
   type TwoArmFinalRule,
 } from "./predictive";
-import { requireData, requireProbability, StatsDomainError } from "./validate";
+import { requireData, requireFinite, requireProbability, StatsDomainError } from "./validate";
 
 /** Interim counts of a single-arm trial. `toxicities` is required when the design has a safety rule. */
 export type SingleArmLookData = { n: number; responders: number; toxicities?: number | null };
@@ -45,9 +48,12 @@ export type LookEvaluation = {
   predictiveProbability: number | null;
   /** P(p > p0 | data) (two arms: P(pT - pC > delta | data)): the final rule's quantity at the current data. */
   posteriorProbabilitySuccess: number;
-  /** Posterior rule at an interim: P(p > p0 + delta | data) (two arms: P(pT - pC > delta | data)); null otherwise. */
+  /**
+   * Posterior rules at an interim: P(p > p0 + delta | data) against a fixed rate, P(pE > pS + delta | data)
+   * against an uncertain standard (two arms: P(pT - pC > delta | data)); null otherwise.
+   */
   posteriorProbabilityMonitoring: number | null;
-  /** P(q > qmax | toxicities) when the design has a safety rule; null otherwise. */
+  /** P(q > qmax | toxicities), or P(q > qS + margin | toxicities), when the design has a safety rule; null otherwise. */
   safetyProbability: number | null;
 };
 
@@ -58,8 +64,8 @@ export type LookEvaluation = {
 /** Check a monitoring rule. @throws StatsDomainError naming the field and rule broken. */
 export function validateRule(rule: MonitoringRule): void {
   if (!rule || typeof rule !== "object") throw new StatsDomainError("rule", rule, "must be a monitoring rule object");
-  if (rule.kind !== "predictive" && rule.kind !== "posterior")
-    throw new StatsDomainError("rule.kind", rule.kind, 'must be "predictive" or "posterior"');
+  if (rule.kind !== "predictive" && rule.kind !== "posterior" && rule.kind !== "uncertainStandard")
+    throw new StatsDomainError("rule.kind", rule.kind, 'must be "predictive", "posterior" or "uncertainStandard"');
   requireProbability("rule.thetaT", rule.thetaT, { closed: true });
   requireProbability("rule.futilityThreshold", rule.futilityThreshold, { closed: true });
   if (typeof rule.efficacyStopping !== "boolean")
@@ -77,13 +83,55 @@ export function validateRule(rule: MonitoringRule): void {
   }
 }
 
+/** Check an uncertain standard rate's Beta(a, b) and return it as a one-component mixture. */
+export function validateStandard(name: string, standard: StandardRatePrior | null | undefined): MixtureBeta {
+  if (!standard || typeof standard !== "object") throw new StatsDomainError(name, standard, "must be a Beta(a, b) for the standard rate");
+  requireFinite(`${name}.a`, standard.a);
+  requireFinite(`${name}.b`, standard.b);
+  if (!(standard.a > 0)) throw new StatsDomainError(`${name}.a`, standard.a, "must be greater than 0");
+  if (!(standard.b > 0)) throw new StatsDomainError(`${name}.b`, standard.b, "must be greater than 0");
+  return [{ weight: 1, a: standard.a, b: standard.b }];
+}
+
 /** Check a safety rule. */
 export function validateSafety(safety: SafetyRule): MixtureBeta {
   if (!safety || typeof safety !== "object") throw new StatsDomainError("safety", safety, "must be a safety rule object");
-  requireProbability("safety.qmax", safety.qmax);
+  if (safety.kind === "uncertainStandard") {
+    validateStandard("safety.standard", safety.standard);
+    requireFinite("safety.margin", safety.margin);
+    if (!(safety.margin > -1 && safety.margin < 1)) throw new StatsDomainError("safety.margin", safety.margin, "must lie strictly between -1 and 1");
+  } else {
+    if (safety.kind !== undefined && safety.kind !== "fixedLimit")
+      throw new StatsDomainError("safety.kind", (safety as { kind: unknown }).kind, 'must be "fixedLimit" or "uncertainStandard"');
+    requireProbability("safety.qmax", safety.qmax);
+  }
   requireProbability("safety.thetaS", safety.thetaS, { closed: true });
   return resolvePrior(safety.prior);
 }
+
+/**
+ * The safety rule's probability from the toxicity posterior: P(q > qmax) for a fixed limit, or
+ * P(q > qS + margin) with qS ~ Beta(aS, bS) independent of q (by the difference quadrature).
+ * @param safety - a validated safety rule
+ * @param posterior - the toxicity rate's posterior mixture
+ */
+export function safetyProbabilityFromPosterior(safety: SafetyRule, posterior: MixtureBeta): number {
+  if (safety.kind === "uncertainStandard")
+    return probDifferenceExceeds(posterior, [{ weight: 1, a: safety.standard.a, b: safety.standard.b }], safety.margin);
+  return mixtureSurvival(posterior, safety.qmax);
+}
+
+/** What the toxicity rate is compared with, in words: "30.0%" or "the standard toxicity rate ... plus ...". */
+export function safetyLimitPhrase(safety: SafetyRule): string {
+  if (safety.kind === "uncertainStandard") {
+    const { a, b } = safety.standard;
+    const base = `the uncertain standard toxicity rate (Beta(${a}, ${b}), mean ${percent(a / (a + b))})`;
+    return safety.margin === 0 ? base : `${base} ${safety.margin > 0 ? "plus" : "minus"} ${points(Math.abs(safety.margin))}`;
+  }
+  return percent(safety.qmax);
+}
+
+export { monitoringRuleLabel, safetyRuleLabel } from "./labels";
 
 /** Check a single-arm design and return its resolved prior and looks. */
 export function validateSingleArmDesign(d: SingleArmDesign): { prior: MixtureBeta; looks: number[] } {
@@ -95,6 +143,10 @@ export function validateSingleArmDesign(d: SingleArmDesign): { prior: MixtureBet
   if (d.rule.kind === "posterior") {
     requireDelta(d.delta);
     requireProbability("p0 + delta", d.p0 + d.delta);
+  }
+  if (d.rule.kind === "uncertainStandard") {
+    requireDelta(d.delta);
+    validateStandard("rule.standard", d.rule.standard);
   }
   const looks = expandLooks(d.looks, d.nMax);
   if (d.safety) validateSafety(d.safety);
@@ -110,6 +162,8 @@ export function validateTwoArmDesign(d: TwoArmDesign): { priorT: MixtureBeta; pr
   requireProbability("experimentalRate", d.experimentalRate);
   requireDelta(d.delta);
   validateRule(d.rule);
+  if (d.rule.standard)
+    throw new StatsDomainError("rule.standard", d.rule.standard, "must be absent in a two-arm design: the control arm's posterior is the standard");
   const looks = expandLooks(d.looks, d.nMaxPerArm);
   if (d.safety) validateSafety(d.safety);
   return { priorT, priorC, looks };
@@ -150,7 +204,9 @@ export function formatAgainst(value: number, threshold: number): string {
   for (let d = 3; d <= 12; d++) {
     const s = value.toFixed(d);
     const r = Number(s);
-    if (value === threshold || (Math.sign(r - threshold) === Math.sign(value - threshold) && r !== threshold)) return s;
+    // A tie (lib/stats/compare.ts) is shown as equal to the threshold, which is what the rule treats it as.
+    if (value === threshold || tiesThreshold(value, threshold)) return tiesThreshold(r, threshold) ? s : String(threshold);
+    if (Math.sign(r - threshold) === Math.sign(value - threshold) && r !== threshold) return s;
   }
   return String(value);
 }
@@ -170,7 +226,7 @@ function describeThresholds(
 ): { stop: "futility" | "efficacy" | null; text: string } {
   const lo = rule.futilityThreshold;
   const shownLo = formatAgainst(value, lo);
-  if (value < lo)
+  if (fallsBelowThreshold(value, lo))
     return {
       stop: "futility",
       text: `${label} ${shownLo} is below the futility threshold ${lo}: the data favour stopping for futility.`,
@@ -178,7 +234,7 @@ function describeThresholds(
   if (rule.efficacyStopping && rule.efficacyThreshold !== null) {
     const hi = rule.efficacyThreshold;
     const shownHi = formatAgainst(value, hi);
-    if (value > hi)
+    if (exceedsThreshold(value, hi))
       return {
         stop: "efficacy",
         text: `${label} ${shownHi} is above the efficacy threshold ${hi}: the data favour stopping for efficacy.`,
@@ -199,14 +255,14 @@ function safetyCheck(safety: SafetyRule, toxicities: number | null | undefined, 
     throw new StatsDomainError("toxicities", toxicities, "is required when the design has a safety rule");
   requireData(toxicities, n);
   const prior = validateSafety(safety);
-  const prob = mixtureSurvival(posteriorMixture(prior, toxicities, n), safety.qmax);
-  if (prob > safety.thetaS)
+  const prob = safetyProbabilityFromPosterior(safety, posteriorMixture(prior, toxicities, n));
+  if (exceedsThreshold(prob, safety.thetaS))
     return {
       prob,
       decision: {
         action: "stop",
         stop: "safety",
-        reason: `Posterior probability that the toxicity rate exceeds ${percent(safety.qmax)} is ${formatAgainst(prob, safety.thetaS)}, above the safety threshold ${safety.thetaS} (${toxicities} toxicities in ${n} patients): the data favour stopping for safety.`,
+        reason: `Posterior probability that the toxicity rate exceeds ${safetyLimitPhrase(safety)} is ${formatAgainst(prob, safety.thetaS)}, above the safety threshold ${safety.thetaS} (${toxicities} toxicities in ${n} patients): the data favour stopping for safety.`,
       },
     };
   return { prob, decision: null };
@@ -214,7 +270,7 @@ function safetyCheck(safety: SafetyRule, toxicities: number | null | undefined, 
 
 function finalDecision(prob: number, thetaT: number, what: string): LookDecision {
   const shown = formatAgainst(prob, thetaT);
-  return prob > thetaT
+  return exceedsThreshold(prob, thetaT)
     ? { action: "final", success: true, reason: `Final analysis: posterior probability that ${what} is ${shown}, above the success threshold ${thetaT}: the trial meets its success criterion.` }
     : { action: "final", success: false, reason: `Final analysis: posterior probability that ${what} is ${shown}, not above the success threshold ${thetaT}: the trial does not meet its success criterion.` };
 }
@@ -223,7 +279,7 @@ function withSafetyNote(decision: LookDecision, safetyProb: number | null, safet
   if (safetyProb === null || !safety) return decision;
   return {
     ...decision,
-    reason: `${decision.reason} No safety signal: posterior probability that the toxicity rate exceeds ${percent(safety.qmax)} is ${formatAgainst(safetyProb, safety.thetaS)}, not above the safety threshold ${safety.thetaS}.`,
+    reason: `${decision.reason} No safety signal: posterior probability that the toxicity rate exceeds ${safetyLimitPhrase(safety)} is ${formatAgainst(safetyProb, safety.thetaS)}, not above the safety threshold ${safety.thetaS}.`,
   };
 }
 
@@ -276,10 +332,31 @@ function decideSingleArm(d: SingleArmDesign, data: SingleArmLookData): LookEvalu
     const t = describeThresholds("Predictive probability of success", pp, d.rule);
     return { ...base, decision: withSafetyNote(toDecision(t), safetyProbability, d.safety), predictiveProbability: pp, posteriorProbabilityMonitoring: null, safetyProbability };
   }
-  const target = d.p0 + d.delta;
-  const pm = d.delta === 0 ? pSuccess : mixtureSurvival(post, target);
-  const t = describeThresholds(`Posterior probability that the response rate exceeds ${percent(target)}`, pm, d.rule);
+  const pm = singleArmMonitoringProbability(post, d, pSuccess);
+  const t = describeThresholds(`Posterior probability that the response rate exceeds ${singleArmMonitoringTarget(d)}`, pm, d.rule);
   return { ...base, decision: withSafetyNote(toDecision(t), safetyProbability, d.safety), predictiveProbability: null, posteriorProbabilityMonitoring: pm, safetyProbability };
+}
+
+/**
+ * The posterior rules' monitoring probability at an interim of a single-arm design:
+ * P(p > p0 + delta | data) against a fixed rate; P(pE > pS + delta | data) with pS ~ Beta(aS, bS)
+ * independent of pE against an uncertain standard (Thall & Simon 1994), by the difference quadrature.
+ * @param post - the response rate's posterior mixture
+ * @param d - a validated single-arm design with a posterior rule
+ * @param pSuccess - optional P(p > p0 | data), reused when delta = 0 under the fixed-rate rule
+ */
+export function singleArmMonitoringProbability(post: MixtureBeta, d: Pick<SingleArmDesign, "p0" | "delta" | "rule">, pSuccess?: number): number {
+  if (d.rule.kind === "uncertainStandard")
+    return probDifferenceExceeds(post, validateStandard("rule.standard", d.rule.standard), d.delta);
+  if (d.delta === 0 && pSuccess !== undefined) return pSuccess;
+  return mixtureSurvival(post, d.p0 + d.delta);
+}
+
+function singleArmMonitoringTarget(d: SingleArmDesign): string {
+  if (d.rule.kind !== "uncertainStandard") return percent(d.p0 + d.delta);
+  const { a, b } = d.rule.standard as StandardRatePrior;
+  const base = `the uncertain standard rate (Beta(${a}, ${b}), mean ${percent(a / (a + b))})`;
+  return d.delta === 0 ? base : `${base} ${d.delta > 0 ? "plus" : "minus"} ${points(Math.abs(d.delta))}`;
 }
 
 const successCache = new Map<string, Uint8Array>();

@@ -34,13 +34,20 @@ export const lookScheduleSchema = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("every"), first: count("The first look"), every: count("The look spacing") }),
 ]);
 
+export const standardRatePriorSchema = z.object({
+  a: z.number({ message: "aS must be a number." }).gt(0, "aS must be greater than 0.").max(100_000, "aS can be at most 100000."),
+  b: z.number({ message: "bS must be a number." }).gt(0, "bS must be greater than 0.").max(100_000, "bS can be at most 100000."),
+});
+
 export const monitoringRuleSchema = z
   .object({
-    kind: z.enum(["predictive", "posterior"]),
+    kind: z.enum(["predictive", "posterior", "uncertainStandard"]),
     thetaT: threshold("The final success threshold"),
     futilityThreshold: threshold("The futility threshold"),
     efficacyStopping: z.boolean(),
     efficacyThreshold: threshold("The efficacy threshold").nullable(),
+    // Optional so that specs stored before the uncertain-standard rule still parse unchanged.
+    standard: standardRatePriorSchema.nullable().optional(),
   })
   .refine((r) => !r.efficacyStopping || r.efficacyThreshold !== null, {
     message: "Give an efficacy threshold, or switch efficacy stopping off.",
@@ -51,7 +58,28 @@ export const monitoringRuleSchema = z
     path: ["efficacyThreshold"],
   });
 
-export const safetyRuleSchema = z.object({ qmax: prob("The toxicity limit"), prior: priorSpecSchema, thetaS: threshold("The safety threshold") });
+const margin = (what: string) =>
+  z.number({ message: `${what} must be a number.` }).gt(-1, `${what} must be above -1.`).lt(1, `${what} must be below 1.`);
+
+/**
+ * Two forms in one object so that stored fixed-limit rules (no `kind`) parse to exactly what was
+ * stored; the refinements require the fields each form needs.
+ */
+export const safetyRuleSchema = z
+  .object({
+    kind: z.enum(["fixedLimit", "uncertainStandard"]).optional(),
+    qmax: prob("The toxicity limit").optional(),
+    standard: standardRatePriorSchema.optional(),
+    margin: margin("The toxicity margin").optional(),
+    prior: priorSpecSchema,
+    thetaS: threshold("The safety threshold"),
+  })
+  .superRefine((s, ctx) => {
+    if (s.kind === "uncertainStandard") {
+      if (!s.standard) ctx.addIssue({ code: "custom", message: "Give the standard toxicity rate's Beta(aS, bS).", path: ["standard"] });
+      if (s.margin === undefined) ctx.addIssue({ code: "custom", message: "Give the toxicity margin (0 for none).", path: ["margin"] });
+    } else if (s.qmax === undefined) ctx.addIssue({ code: "custom", message: "Give the toxicity limit qmax.", path: ["qmax"] });
+  });
 
 const looksWithin = (nMax: number, looks: z.infer<typeof lookScheduleSchema>) =>
   looks.kind === "every" ? looks.first <= nMax : looks.sizes.every((s) => s <= nMax);
@@ -69,6 +97,10 @@ export const singleArmDesignSchema = z
     safety: safetyRuleSchema.nullable().default(null),
   })
   .refine((d) => d.p1 > d.p0, { message: "p1 must be above p0.", path: ["p1"] })
+  .refine((d) => d.rule.kind !== "uncertainStandard" || !!d.rule.standard, {
+    message: "Give the standard rate's Beta(aS, bS) for the uncertain-standard rule.",
+    path: ["rule", "standard"],
+  })
   .refine((d) => looksWithin(d.nMax, d.looks), { message: "Every look must be at or below the maximum sample size.", path: ["looks"] });
 
 export const twoArmDesignSchema = z
@@ -83,6 +115,10 @@ export const twoArmDesignSchema = z
     looks: lookScheduleSchema,
     rule: monitoringRuleSchema,
     safety: safetyRuleSchema.nullable().default(null),
+  })
+  .refine((d) => !d.rule.standard, {
+    message: "In a two-arm design the control arm's posterior is the standard; leave the standard rate out.",
+    path: ["rule", "standard"],
   })
   .refine((d) => looksWithin(d.nMaxPerArm, d.looks), { message: "Every look must be at or below the maximum sample size per arm.", path: ["looks"] });
 

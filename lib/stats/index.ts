@@ -18,3 +18,5 @@ export * from "./difference";
 export * from "./posterior";
 export * from "./hpd";
 export * from "./frequentist";
+export * from "./compare";
+export * from "./labels";

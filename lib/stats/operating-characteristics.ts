@@ -424,3 +424,133 @@ function summariseLooks<L extends { n: number; pStopFutility: number; pStopEffic
     sampleSizeDistribution,
   };
 }
+
+// ---------------------------------------------------------------------------------------------
+// Response and safety together
+// ---------------------------------------------------------------------------------------------
+
+export type SafetyAwareLookOutcome = {
+  n: number;
+  /** P(the trial stops for safety at this look) (safety is checked first, the final look included). */
+  pStopSafety: number;
+  /** P(the trial stops for futility at this look); at the final look: P(no success, no safety stop). */
+  pStopFutility: number;
+  /** P(the trial stops for efficacy at this look); at the final look: P(success). */
+  pStopEfficacy: number;
+  /** P(the trial is still running after this look) (0 at the final look). */
+  pContinue: number;
+};
+
+export type SafetyAwareOperatingCharacteristics = {
+  /** True toxicity rate (of the experimental arm in a two-arm design). */
+  q: number;
+  looks: SafetyAwareLookOutcome[];
+  pEarlyFutility: number;
+  pEarlyEfficacy: number;
+  /** P(a safety stop before nMax). */
+  pEarlySafety: number;
+  /** P(a safety stop at any look, the final analysis included). */
+  pSafetyStop: number;
+  /** P(any stop before nMax: futility, efficacy or safety). */
+  pEarlyTermination: number;
+  pSuccessAtEnd: number;
+  /** P(efficacy declared) = P(early efficacy stop) + P(success at the end); a safety stop declares nothing. */
+  pDeclareSuccess: number;
+  /** Expected patients (per arm for two arms) at the stop. */
+  expectedSampleSize: number;
+  sampleSizeDistribution: { n: number; probability: number }[];
+};
+
+/**
+ * Joint operating characteristics of the response rule and the safety rule, assuming each patient's
+ * response and toxicity are independent (so the responder path and the toxicity path are
+ * independent processes over the same looks). This is an assumption about the disease and the
+ * drug, not a fact: correlated response and toxicity change these numbers, and the screens say so.
+ *
+ * Under independence the forward recursion over the joint (responders, toxicities) state factorises
+ * exactly, so it is computed from the two one-dimensional recursions: with R(k) the probability that
+ * the response rule has not stopped after look k, A(k) the probability that the safety rule has not
+ * triggered through look k (safety alone), and F(k), E(k) the response rule's futility and efficacy
+ * stops at look k, the checks in decision order (safety first) give
+ *   P(safety stop at k) = R(k - 1) (A(k - 1) - A(k)),  P(futility at k) = A(k) F(k),
+ *   P(efficacy at k) = A(k) E(k),  P(running after k) = A(k) R(k).
+ * The test file checks this against a two-dimensional recursion, brute-force enumeration of every
+ * patient sequence, and simulation.
+ *
+ * @param response - per-look outcomes of the response rule alone (single- or two-arm recursion)
+ * @param safety - from `exactSafetyOperatingCharacteristics` at the same look sizes
+ */
+export function combineResponseAndSafety(
+  response: Pick<LookOutcome, "n" | "pStopFutility" | "pStopEfficacy" | "pContinue">[],
+  safety: SafetyOperatingCharacteristics,
+): SafetyAwareOperatingCharacteristics {
+  if (!Array.isArray(response) || response.length === 0 || response.length !== safety.looks.length)
+    throw new StatsDomainError("safety.looks", safety.looks.length, `must have one entry per response look (${response?.length})`);
+  let runningResponse = 1;
+  let clearSafety = 1;
+  const looks: SafetyAwareLookOutcome[] = response.map((r, k) => {
+    const s = safety.looks[k];
+    if (s.n !== r.n) throw new StatsDomainError("safety.looks.n", s.n, `must equal the response look ${r.n}`);
+    const clearAfter = clearSafety - s.pSafetyStop;
+    const out = {
+      n: r.n,
+      pStopSafety: runningResponse * s.pSafetyStop,
+      pStopFutility: clearAfter * r.pStopFutility,
+      pStopEfficacy: clearAfter * r.pStopEfficacy,
+      pContinue: clearAfter * r.pContinue,
+    };
+    runningResponse = r.pContinue;
+    clearSafety = clearAfter;
+    return out;
+  });
+  const interim = looks.slice(0, -1);
+  const last = looks[looks.length - 1];
+  const sum = (xs: SafetyAwareLookOutcome[], f: (l: SafetyAwareLookOutcome) => number) => xs.reduce((t, l) => t + f(l), 0);
+  const pEarlyFutility = sum(interim, (l) => l.pStopFutility);
+  const pEarlyEfficacy = sum(interim, (l) => l.pStopEfficacy);
+  const pEarlySafety = sum(interim, (l) => l.pStopSafety);
+  const sampleSizeDistribution = looks.map((l) => ({ n: l.n, probability: l.pStopSafety + l.pStopFutility + l.pStopEfficacy }));
+  return {
+    q: safety.q,
+    looks,
+    pEarlyFutility,
+    pEarlyEfficacy,
+    pEarlySafety,
+    pSafetyStop: pEarlySafety + last.pStopSafety,
+    pEarlyTermination: pEarlyFutility + pEarlyEfficacy + pEarlySafety,
+    pSuccessAtEnd: last.pStopEfficacy,
+    pDeclareSuccess: pEarlyEfficacy + last.pStopEfficacy,
+    expectedSampleSize: sampleSizeDistribution.reduce((t, d) => t + d.n * d.probability, 0),
+    sampleSizeDistribution,
+  };
+}
+
+/**
+ * Exact joint operating characteristics of a design with a safety rule over a grid of true
+ * toxicity rates, at one true response rate (single arm: `rate`; two arms: [pT, pC]). Response and
+ * toxicity are assumed independent (see `combineResponseAndSafety`). Boundaries are computed once.
+ * @throws StatsDomainError when the design has no safety rule, or for an invalid rate.
+ */
+export function operatingCharacteristicsWithSafety(
+  design: Design,
+  rate: number | [number, number],
+  toxicityRates: number[],
+): SafetyAwareOperatingCharacteristics[] {
+  if (!design.safety) throw new StatsDomainError("design.safety", design.safety, "is required for operating characteristics with safety");
+  if (!Array.isArray(toxicityRates)) throw new StatsDomainError("toxicityRates", toxicityRates, "must be an array of rates");
+  let response: LookOutcome[];
+  let looks: number[];
+  if (design.arms === "single") {
+    if (typeof rate !== "number") throw new StatsDomainError("rate", rate, "must be one response rate for a single-arm design");
+    const b = singleArmBoundaries(design);
+    looks = b.looks;
+    response = exactOperatingCharacteristics(b.response, rate).looks;
+  } else {
+    if (!Array.isArray(rate) || rate.length !== 2) throw new StatsDomainError("rate", rate, "must be a [pT, pC] pair for a two-arm design");
+    const b = twoArmBoundaries(design);
+    looks = b.looks;
+    response = exactTwoArmOperatingCharacteristics(b.response, rate[0], rate[1]).looks;
+  }
+  const safetyTable = safetyBoundaries(design.safety, looks);
+  return toxicityRates.map((q) => combineResponseAndSafety(response, exactSafetyOperatingCharacteristics(safetyTable, q)));
+}

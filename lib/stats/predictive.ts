@@ -16,6 +16,7 @@ import type { MixtureBeta } from "./types";
 import { mixtureSurvival, requireMixture, updateMixture } from "./priors";
 import { probDifferenceExceeds } from "./difference";
 import { requireCount, requireData, requireFinite, requireProbability, StatsDomainError } from "./validate";
+import { exceedsThreshold } from "./compare";
 
 /** Posterior mixture after x of n; a one-component prior skips the weight update (its weight stays 1). */
 export function posteriorMixture(prior: MixtureBeta, x: number, n: number): MixtureBeta {
@@ -160,7 +161,7 @@ export function singleArmFinalSuccess(prior: MixtureBeta, nMax: number, p0: numb
   requireProbability("p0", p0);
   requireProbability("thetaT", thetaT, { closed: true });
   const out = new Uint8Array(nMax + 1);
-  for (let x = 0; x <= nMax; x++) out[x] = mixtureSurvival(posteriorMixture(prior, x, nMax), p0) > thetaT ? 1 : 0;
+  for (let x = 0; x <= nMax; x++) out[x] = exceedsThreshold(mixtureSurvival(posteriorMixture(prior, x, nMax), p0), thetaT) ? 1 : 0;
   return out;
 }
 
@@ -308,7 +309,7 @@ export function twoArmFinalRule(
   const minSuccessT = monotoneThresholds(
     nMaxPerArm,
     nMaxPerArm,
-    (xT, xC) => probDifferenceExceeds(postT[xT], postC[xC], delta) > thetaT,
+    (xT, xC) => exceedsThreshold(probDifferenceExceeds(postT[xT], postC[xC], delta), thetaT),
   );
   return { nMaxPerArm, delta, thetaT, minSuccessT };
 }

@@ -223,3 +223,97 @@ export function simulateTwoArmTrials(
   }
   return summarise(opts.seed, opts.trials, looks, fut, eff, sumN, sumN2);
 }
+
+export type SimulatedSafetyAwareOperatingCharacteristics = {
+  seed: number;
+  trials: number;
+  pEarlyFutility: number;
+  pEarlyEfficacy: number;
+  pSafetyStop: number;
+  pDeclareSuccess: number;
+  expectedSampleSize: number;
+  /** Monte Carlo standard errors of the summaries above. */
+  standardErrors: { pEarlyFutility: number; pEarlyEfficacy: number; pSafetyStop: number; pDeclareSuccess: number; expectedSampleSize: number };
+};
+
+/**
+ * Simulate a single-arm design with its safety rule at true response rate p and toxicity rate q,
+ * each patient's response and toxicity drawn independently, deciding at each planned look with
+ * `decideAtLook` on the full design (safety first). A cross-check of
+ * `operatingCharacteristicsWithSafety`, never the primary number.
+ */
+export function simulateSingleArmTrialsWithSafety(
+  design: SingleArmDesign,
+  p: number,
+  q: number,
+  opts: { trials: number; seed: number },
+): SimulatedSafetyAwareOperatingCharacteristics {
+  const { looks } = validateSingleArmDesign(design);
+  if (!design.safety) throw new StatsDomainError("design.safety", design.safety, "is required to simulate with safety");
+  requireProbability("p", p, { closed: true });
+  requireProbability("q", q, { closed: true });
+  requireTrials(opts.trials);
+  const SAFETY = 3;
+  const memo = looks.map((n) => new Int8Array((n + 1) * (n + 1)).fill(-1));
+  const rng = mulberry32(opts.seed);
+  const K = looks.length;
+  let fut = 0;
+  let eff = 0;
+  let saf = 0;
+  let success = 0;
+  let sumN = 0;
+  let sumN2 = 0;
+  for (let i = 0; i < opts.trials; i++) {
+    let x = 0;
+    let t = 0;
+    let n = 0;
+    for (let k = 0; k < K; k++) {
+      for (; n < looks[k]; n++) {
+        if (rng() < p) x++;
+        if (rng() < q) t++;
+      }
+      const key = t * (n + 1) + x;
+      let d = memo[k][key];
+      if (d < 0) {
+        const dec = decideAtLook(design, { n, responders: x, toxicities: t }).decision;
+        d =
+          dec.action === "continue" ? CONTINUE
+          : dec.action === "final" ? (dec.success ? EFFICACY : FUTILITY)
+          : dec.stop === "safety" ? SAFETY
+          : dec.stop === "efficacy" ? EFFICACY
+          : FUTILITY;
+        memo[k][key] = d;
+      }
+      if (d !== CONTINUE || k === K - 1) {
+        const early = k < K - 1;
+        if (d === SAFETY) saf++;
+        else if (d === EFFICACY) {
+          success++;
+          if (early) eff++;
+        } else if (early) fut++;
+        sumN += n;
+        sumN2 += n * n;
+        break;
+      }
+    }
+  }
+  const T = opts.trials;
+  const se = (v: number) => Math.sqrt((v * (1 - v)) / T);
+  const mean = sumN / T;
+  return {
+    seed: opts.seed,
+    trials: T,
+    pEarlyFutility: fut / T,
+    pEarlyEfficacy: eff / T,
+    pSafetyStop: saf / T,
+    pDeclareSuccess: success / T,
+    expectedSampleSize: mean,
+    standardErrors: {
+      pEarlyFutility: se(fut / T),
+      pEarlyEfficacy: se(eff / T),
+      pSafetyStop: se(saf / T),
+      pDeclareSuccess: se(success / T),
+      expectedSampleSize: Math.sqrt(Math.max(0, sumN2 / T - mean * mean) / T),
+    },
+  };
+}

@@ -21,26 +21,51 @@ export type MixtureBeta = BetaComponent[];
 /** Planned looks: an explicit list of (per-arm) enrolled counts, or every k from a first look. The last look is always nMax. */
 export type LookSchedule = { kind: "list"; sizes: number[] } | { kind: "every"; first: number; every: number };
 
+/** An uncertain standard rate: Beta(a, b), informative, usually from historical data on standard therapy. */
+export type StandardRatePrior = { a: number; b: number };
+
 /**
- * The monitoring rule. Both kinds declare success at the final analysis when
+ * The monitoring rule. Every kind declares success at the final analysis when
  * P(p > p0 | all data) > thetaT (two arms: P(pT - pC > delta | all data) > thetaT).
  * - predictive (Lee & Liu 2008): at an interim, futility if PP < futilityThreshold (thetaL),
  *   efficacy if efficacyStopping and PP > efficacyThreshold (thetaU).
- * - posterior (Thall & Simon 1994 style): at an interim, futility if
+ * - posterior (posterior probability against a fixed rate): at an interim, futility if
  *   P(p > p0 + delta | data) < futilityThreshold (pL), efficacy if efficacyStopping and it exceeds
- *   efficacyThreshold (pU). Two arms: P(pT > pC + delta | data).
- * Strict inequalities: a tie does not trigger.
+ *   efficacyThreshold (pU). Two arms: P(pT > pC + delta | data), the control arm's posterior
+ *   standing in for the rate.
+ * - uncertainStandard (Thall & Simon 1994 as published): the same thresholds on
+ *   P(pE > pS + delta | data), where the standard rate pS ~ Beta(standard.a, standard.b) is itself
+ *   uncertain and independent of pE. Single arm only needs `standard`; in a two-arm design the
+ *   control arm's posterior plays pS's role, so `standard` must be absent there.
+ * Strict inequalities: a tie does not trigger (lib/stats/compare.ts).
  */
 export type MonitoringRule = {
-  kind: "predictive" | "posterior";
+  kind: "predictive" | "posterior" | "uncertainStandard";
   thetaT: number;
   futilityThreshold: number;
   efficacyStopping: boolean;
   efficacyThreshold: number | null;
+  /** Single arm, kind "uncertainStandard": the standard rate's Beta. Absent or null otherwise. */
+  standard?: StandardRatePrior | null;
 };
 
-/** Thall, Simon & Estey 1995 style: safety stop if P(q > qmax | toxicities) > thetaS at any look. */
-export type SafetyRule = { qmax: number; prior: PriorSpec; thetaS: number };
+/**
+ * Safety monitoring on the toxicity rate q (its own prior, among patients evaluable for toxicity).
+ * - fixed limit (kind absent or "fixedLimit"): safety stop if P(q > qmax | toxicities) > thetaS.
+ * - uncertainStandard (Thall, Simon & Estey 1995): safety stop if P(q > qS + margin | toxicities) > thetaS,
+ *   with the standard toxicity rate qS ~ Beta(standard.a, standard.b) independent of q.
+ * Specs stored before the second form existed have no `kind` and mean the fixed limit.
+ */
+export type FixedLimitSafetyRule = { kind?: "fixedLimit"; qmax: number; prior: PriorSpec; thetaS: number };
+export type UncertainStandardSafetyRule = {
+  kind: "uncertainStandard";
+  standard: StandardRatePrior;
+  /** Added to qS; 0 compares with the standard itself, a positive margin tolerates that much more toxicity. */
+  margin: number;
+  prior: PriorSpec;
+  thetaS: number;
+};
+export type SafetyRule = FixedLimitSafetyRule | UncertainStandardSafetyRule;
 
 export type SingleArmDesign = {
   arms: "single";
@@ -49,7 +74,7 @@ export type SingleArmDesign = {
   p0: number;
   /** Target rate for power. */
   p1: number;
-  /** Margin used by the posterior-probability rule at interims: P(p > p0 + delta). Default 0. */
+  /** Margin of the posterior-probability rules at interims: P(p > p0 + delta) or P(pE > pS + delta). Default 0. */
   delta: number;
   nMax: number;
   looks: LookSchedule;

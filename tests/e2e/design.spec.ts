@@ -86,6 +86,34 @@ test("a statistician designs a single-arm trial, calibrates it and locks it with
   const grid = page.getByRole("region", { name: "Stopping boundaries" });
   await expect(grid.locator('[row-index="0"] [col-id="futility"]')).toHaveText(formatBoundary(firstLook.futilityMax));
   await expect(page.getByTestId("prior-ess").first()).toHaveText("1.0");
+  // Early termination is shown split by reason.
+  await expect(page.getByTestId("oc-early-futility-null")).toHaveText(formatProbability(engine.atNull.pEarlyFutility));
+  await expect(page.getByTestId("oc-early-efficacy-null")).toHaveText(formatProbability(engine.atNull.pEarlyEfficacy));
+
+  // The uncertain-standard rule with a safety rule against an uncertain standard: the preview follows the
+  // engine and shows the joint characteristics with the independence assumption stated.
+  await page.getByLabel("Rule", { exact: true }).selectOption("uncertainStandard");
+  await page.getByLabel("Standard rate aS").fill("10");
+  await page.getByLabel("Standard rate bS").fill("40");
+  await page.getByLabel("Futility threshold pL").fill("0.05");
+  await page.getByText("Monitor toxicity").click();
+  await page.getByLabel("Compare the toxicity rate with").selectOption("uncertainStandard");
+  await page.getByLabel("Standard toxicity aS").fill("6");
+  await page.getByLabel("Standard toxicity bS").fill("24");
+  await page.getByLabel("Margin", { exact: true }).fill("0.1");
+  const withSafety: SingleArmDesign = {
+    ...design,
+    rule: { ...design.rule, kind: "uncertainStandard", standard: { a: 10, b: 40 } },
+    safety: { kind: "uncertainStandard", standard: { a: 6, b: 24 }, margin: 0.1, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
+  };
+  await waitForPreview(page);
+  await expect(page.getByTestId("oc-type-i-error")).toHaveText(formatProbability(typeIErrorAndPower(withSafety).typeIError));
+  await expect(page.getByTestId("safety-oc-assumption")).toContainText("response and toxicity are independent");
+  await page.getByLabel("Rule", { exact: true }).selectOption("predictive");
+  await page.getByLabel("Futility threshold θL").fill("0.05");
+  await page.getByText("Monitor toxicity").click();
+  await waitForPreview(page);
+  await expect(page.getByTestId("oc-type-i-error")).toHaveText(formatProbability(engine.typeIError));
 
   await page.getByRole("button", { name: "Save draft" }).click();
   await expect(page.getByText(/Draft version 1 saved/)).toBeVisible();
