@@ -190,9 +190,9 @@ describe("properties (fast-check): any valid file round-trips and its counts obe
 
   it("deriveArmCounts leaves out patients enrolled after the cut-off", () => {
     const rows: PatientRecord[] = [
-      { subjectId: "A", armId: 5, enrolledOn: "2026-10-31", evaluable: true, responder: true, toxicity: true, sourceLine: 2 },
-      { subjectId: "B", armId: 5, enrolledOn: "2026-11-01", evaluable: true, responder: true, toxicity: true, sourceLine: 3 },
+      { subjectId: "A", armId: 5, enrolledOn: "2026-10-31", evaluable: true, responder: true, treated: true, toxicity: true, sourceLine: 2 },
+      { subjectId: "B", armId: 5, enrolledOn: "2026-11-01", evaluable: true, responder: true, treated: true, toxicity: true, sourceLine: 3 },
     ];
-    expect(deriveArmCounts(rows, ONE_ARM_SAFETY)).toEqual([{ armId: 5, enrolled: 1, evaluable: 1, responders: 1, toxicities: 1 }]);
+    expect(deriveArmCounts(rows, ONE_ARM_SAFETY)).toEqual([{ armId: 5, enrolled: 1, treated: 1, evaluable: 1, responders: 1, toxicities: 1 }]);
   });
 });

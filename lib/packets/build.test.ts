@@ -42,8 +42,8 @@ function reviewInput(respondersLook2 = 6): ReviewInput {
     design,
     arms: [{ id: 7, label: "Invented arm", role: "single" }],
     looks: [
-      { analysisId: 1, lookNumber: 1, cutoffDate: "2026-06-30", counts: [{ armId: 7, enrolled: 11, evaluable: 10, responders: 3, toxicities: 1 }] },
-      { analysisId: 2, lookNumber: 2, cutoffDate: "2026-09-30", counts: [{ armId: 7, enrolled: 21, evaluable: 20, responders: respondersLook2, toxicities: 3 }] },
+      { analysisId: 1, lookNumber: 1, cutoffDate: "2026-06-30", counts: [{ armId: 7, enrolled: 11, treated: 10, evaluable: 10, responders: 3, toxicities: 1 }] },
+      { analysisId: 2, lookNumber: 2, cutoffDate: "2026-09-30", counts: [{ armId: 7, enrolled: 21, treated: 20, evaluable: 20, responders: respondersLook2, toxicities: 3 }] },
     ],
     analysisId: 2,
     generatedAt: "2026-10-18T09:00:00Z",

@@ -31,8 +31,8 @@ const singleInput = (over: Partial<ReviewInput> = {}): ReviewInput => ({
   design: SINGLE,
   arms: [{ id: 7, label: "Arm A", role: "single" }],
   looks: [
-    { analysisId: 101, lookNumber: 1, cutoffDate: "2026-01-31", counts: [{ armId: 7, enrolled: 11, evaluable: 10, responders: 3, toxicities: 1 }] },
-    { analysisId: 102, lookNumber: 2, cutoffDate: "2026-03-31", counts: [{ armId: 7, enrolled: 21, evaluable: 20, responders: 6, toxicities: 3 }] },
+    { analysisId: 101, lookNumber: 1, cutoffDate: "2026-01-31", counts: [{ armId: 7, enrolled: 11, treated: 10, evaluable: 10, responders: 3, toxicities: 1 }] },
+    { analysisId: 102, lookNumber: 2, cutoffDate: "2026-03-31", counts: [{ armId: 7, enrolled: 21, treated: 20, evaluable: 20, responders: 6, toxicities: 3 }] },
   ],
   analysisId: 102,
   generatedAt: "2026-04-02T09:00:00.000Z",
@@ -84,7 +84,7 @@ describe("single arm", () => {
   it("safety: P(q > qmax | t of n) is 1 - F(qmax) under Beta(0.6 + t, 1.4 + n - t) (@stdlib) and is flagged only when above thetaS", () => {
     close(r.safety!.probAboveLimit, 1 - stdlibBetaCdf(0.3, 3.6, 18.4), 1e-10);
     expect(r.safety!.crossed).toBe(false);
-    const toxic = computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, evaluable: 20, responders: 6, toxicities: 11 }] }] }));
+    const toxic = computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, treated: 20, evaluable: 20, responders: 6, toxicities: 11 }] }] }));
     expect(toxic.safety!.crossed).toBe(true);
     expect(toxic.decision).toMatchObject({ action: "stop", stop: "safety" });
   });
@@ -112,7 +112,7 @@ describe("predictive probability against the published example", () => {
     const r = computeReview({
       design,
       arms: [{ id: 1, label: "A", role: "single" }],
-      looks: [{ analysisId: 1, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 23, evaluable: 23, responders: 16, toxicities: null }] }],
+      looks: [{ analysisId: 1, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 23, treated: null, evaluable: 23, responders: 16, toxicities: null }] }],
       analysisId: 1,
       generatedAt: "2026-01-01T00:00:00.000Z",
     });
@@ -140,7 +140,7 @@ describe("two arms", () => {
       { id: 1, label: "E", role: "experimental" },
       { id: 2, label: "C", role: "control" },
     ],
-    looks: [{ analysisId: 5, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 15, evaluable: 15, responders: 8, toxicities: null }, { armId: 2, enrolled: 15, evaluable: 15, responders: 4, toxicities: null }] }],
+    looks: [{ analysisId: 5, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 15, treated: null, evaluable: 15, responders: 8, toxicities: null }, { armId: 2, enrolled: 15, treated: null, evaluable: 15, responders: 4, toxicities: null }] }],
     analysisId: 5,
     generatedAt: "2026-01-01T00:00:00.000Z",
   };

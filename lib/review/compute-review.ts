@@ -14,15 +14,19 @@ import { singleArmBoundaries, twoArmBoundaries, type ResponseBoundary, type Safe
 import { probDifferenceExceeds, differenceDensityGrid } from "@/lib/stats/difference";
 import { expandLooks } from "@/lib/stats/looks";
 import { ENGINE_VERSION } from "@/lib/stats/version";
-import { StatsDomainError } from "@/lib/stats/validate";
+import { requireData, StatsDomainError } from "@/lib/stats/validate";
 import { clopperPearson, mixtureCurves, mixtureIntervalProbability, summarisePosterior, type Curves, type Interval, type PosteriorSummary } from "./posterior-summary";
 
 export type ArmRole = "single" | "experimental" | "control";
 
 export type ReviewArm = { id: number; label: string; role: ArmRole };
 
-/** Cumulative counts of one arm at one look (as stored in analysis_arm_counts). */
-export type ReviewArmCounts = { armId: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null };
+/**
+ * Cumulative counts of one arm at one look (as stored in analysis_arm_counts). Two denominators:
+ * `evaluable` (evaluable for response) for responders, `treated` (evaluable for toxicity) for
+ * toxicities; treated and toxicities are null when the design records no toxicity.
+ */
+export type ReviewArmCounts = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
 
 export type ReviewLook = { analysisId: number; lookNumber: number; cutoffDate: string | null; counts: ReviewArmCounts[] };
 
@@ -48,6 +52,9 @@ export type ArmReview = {
   label: string;
   role: ArmRole;
   enrolled: number;
+  /** Patients evaluable for toxicity: the safety rule's denominator. */
+  treated: number | null;
+  /** Patients evaluable for response: the response posterior's denominator. */
   evaluable: number;
   responders: number;
   toxicities: number | null;
@@ -65,11 +72,13 @@ export type LookReview = {
   analysisId: number;
   lookNumber: number;
   cutoffDate: string | null;
-  /** Evaluable patients (per arm for two arms: experimental, control). */
+  /** Patients evaluable for response (per arm for two arms: experimental, control). */
   n: number;
   nControl: number | null;
   responders: number;
   respondersControl: number | null;
+  /** Patients evaluable for toxicity (treated) of the arm the safety rule watches (single or experimental). */
+  treated: number | null;
   toxicities: number | null;
   evaluation: LookEvaluation;
 };
@@ -83,7 +92,8 @@ export type BoundaryRow = ResponseBoundary & {
 export type SafetyReview = {
   qmax: number;
   thetaS: number;
-  n: number;
+  /** The denominator: patients evaluable for toxicity (treated), not the patients evaluable for response. */
+  treated: number;
   toxicities: number;
   prior: MixtureBeta;
   posterior: MixtureBeta;
@@ -92,6 +102,7 @@ export type SafetyReview = {
   /** True when P(q > qmax | data) > thetaS (strict, as the rule reads). */
   crossed: boolean;
   boundary: SafetyBoundary[];
+  /** n is the number treated (evaluable for toxicity) at each locked look. */
   observedPath: { lookNumber: number; n: number; toxicities: number }[];
   curves: Curves;
 };
@@ -186,16 +197,67 @@ function armsOfDesign(design: Design, arms: ReviewArm[]): { single?: ReviewArm; 
   return { experimental, control };
 }
 
+/** P(q > qmax | toxicities among treated) under the safety rule's prior. */
+function safetyProbability(rule: NonNullable<Design["safety"]>, toxicities: number, treated: number): number {
+  return mixtureSurvival(posteriorMixture(resolvePrior(rule.prior), toxicities, treated), rule.qmax);
+}
+
+function shareText(p: number): string {
+  return `${+(p * 100).toFixed(1)}%`;
+}
+
+/**
+ * The response rule is decided by the engine without the safety rule; the safety rule is then
+ * applied here with its own denominator, the patients treated (evaluable for toxicity), because
+ * the engine's look data carry a single n (the patients evaluable for response). Same order and
+ * strictness as the engine: a safety signal outranks everything else, and a tie does not trigger.
+ */
+function withSafety(design: Design, response: LookEvaluation, toxicities: number | null, treated: number | null): LookEvaluation {
+  const rule = design.safety;
+  if (!rule) return response;
+  if (toxicities === null || treated === null)
+    throw new StatsDomainError("toxicities", toxicities, "and the number treated are required because the design has a safety rule");
+  requireData(toxicities, treated);
+  const prob = safetyProbability(rule, toxicities, treated);
+  const words = `posterior probability that the toxicity rate exceeds ${shareText(rule.qmax)} is ${prob.toFixed(3)}`;
+  const among = `${toxicities} with toxicity among ${treated} treated patients (evaluable for toxicity)`;
+  if (prob > rule.thetaS)
+    return {
+      ...response,
+      decision: { action: "stop", stop: "safety", reason: `Safety: ${words}, above the safety threshold ${rule.thetaS} (${among}): the data favour stopping for safety.` },
+      predictiveProbability: null,
+      posteriorProbabilityMonitoring: null,
+      safetyProbability: prob,
+    };
+  return {
+    ...response,
+    decision: { ...response.decision, reason: `${response.decision.reason} No safety signal: ${words}, not above the safety threshold ${rule.thetaS} (${among}).` },
+    safetyProbability: prob,
+  };
+}
+
 function evaluateLook(design: Design, look: ReviewLook, roles: ReturnType<typeof armsOfDesign>): LookReview {
+  const responseOnly = { ...design, safety: null } as Design;
   if (design.arms === "single") {
     const c = countsFor(look, roles.single!);
-    const evaluation = decideAtLook(design, { n: c.evaluable, responders: c.responders, toxicities: c.toxicities });
-    return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: c.evaluable, nControl: null, responders: c.responders, respondersControl: null, toxicities: c.toxicities, evaluation };
+    const evaluation = withSafety(design, decideAtLook(responseOnly, { n: c.evaluable, responders: c.responders }), c.toxicities, c.treated);
+    return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: c.evaluable, nControl: null, responders: c.responders, respondersControl: null, treated: c.treated, toxicities: c.toxicities, evaluation };
   }
   const t = countsFor(look, roles.experimental!);
   const c = countsFor(look, roles.control!);
-  const evaluation = decideAtLook(design, { nT: t.evaluable, respondersT: t.responders, nC: c.evaluable, respondersC: c.responders, toxicitiesT: t.toxicities });
-  return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: t.evaluable, nControl: c.evaluable, responders: t.responders, respondersControl: c.responders, toxicities: t.toxicities, evaluation };
+  const evaluation = withSafety(design, decideAtLook(responseOnly, { nT: t.evaluable, respondersT: t.responders, nC: c.evaluable, respondersC: c.responders }), t.toxicities, t.treated);
+  return {
+    analysisId: look.analysisId,
+    lookNumber: look.lookNumber,
+    cutoffDate: look.cutoffDate,
+    n: t.evaluable,
+    nControl: c.evaluable,
+    responders: t.responders,
+    respondersControl: c.responders,
+    treated: t.treated,
+    toxicities: t.toxicities,
+    evaluation,
+  };
 }
 
 function armReview(arm: ReviewArm, c: ReviewArmCounts, priorSpec: PriorSpec, p0: number | null, level: number, points: number): ArmReview {
@@ -206,6 +268,7 @@ function armReview(arm: ReviewArm, c: ReviewArmCounts, priorSpec: PriorSpec, p0:
     label: arm.label,
     role: arm.role,
     enrolled: c.enrolled,
+    treated: c.treated,
     evaluable: c.evaluable,
     responders: c.responders,
     toxicities: c.toxicities,
@@ -236,22 +299,25 @@ function twoArmBoundaryRows(table: ReturnType<typeof twoArmBoundaries>, history:
 function safetyReview(design: Design, history: LookReview[], current: LookReview, level: number, points: number, boundary: SafetyBoundary[] | null): SafetyReview | null {
   const rule = design.safety;
   if (!rule) return null;
-  if (current.toxicities === null) throw new StatsDomainError("toxicities", null, "are required at this look because the design has a safety rule");
+  if (current.toxicities === null || current.treated === null)
+    throw new StatsDomainError("toxicities", current.toxicities, "and the number treated are required at this look because the design has a safety rule");
   const prior = resolvePrior(rule.prior);
-  const posterior = posteriorMixture(prior, current.toxicities, current.n);
+  const posterior = posteriorMixture(prior, current.toxicities, current.treated);
   const probAboveLimit = mixtureSurvival(posterior, rule.qmax);
   return {
     qmax: rule.qmax,
     thetaS: rule.thetaS,
-    n: current.n,
+    treated: current.treated,
     toxicities: current.toxicities,
     prior,
     posterior,
-    summary: summarisePosterior(prior, current.toxicities, current.n, level),
+    summary: summarisePosterior(prior, current.toxicities, current.treated, level),
     probAboveLimit,
     crossed: probAboveLimit > rule.thetaS,
     boundary: boundary ?? [],
-    observedPath: history.filter((h) => h.toxicities !== null).map((h) => ({ lookNumber: h.lookNumber, n: h.n, toxicities: h.toxicities as number })),
+    observedPath: history
+      .filter((h) => h.toxicities !== null && h.treated !== null)
+      .map((h) => ({ lookNumber: h.lookNumber, n: h.treated as number, toxicities: h.toxicities as number })),
     curves: mixtureCurves(posterior, points),
   };
 }
