@@ -5,6 +5,7 @@
 import { describe, expect, it } from "vitest";
 import stdlibBetaCdf from "@stdlib/stats-base-dists-beta-cdf";
 import stdlibBetaPdf from "@stdlib/stats-base-dists-beta-pdf";
+import jstat from "jstat";
 import { armPosterior, computeReview, intervalProbabilityOf, reproducibilityRecord, scepticalPrior, type ReviewInput } from "./compute-review";
 import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { ENGINE_VERSION } from "@/lib/stats/version";
@@ -87,6 +88,35 @@ describe("single arm", () => {
     const toxic = computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, treated: 20, evaluable: 20, responders: 6, toxicities: 11 }] }] }));
     expect(toxic.safety!.crossed).toBe(true);
     expect(toxic.decision).toMatchObject({ action: "stop", stop: "safety" });
+  });
+
+  // Finding 1. jstat 1.9.6 (npm) is an independent Beta CDF; its continued fraction stops at a
+  // relative change of 3e-7, hence the 1e-6 tolerance.
+  it("finding 1: the safety posterior's denominator is the treated count, not the patients evaluable for response (8 of 21 treated, 15 evaluable)", () => {
+    const at = (treated: number) =>
+      computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, treated, evaluable: 15, responders: 4, toxicities: 8 }] }] }));
+    const right = at(21);
+    // Beta(0.6 + 8, 1.4 + 21 - 8) = Beta(8.6, 14.4).
+    close(right.safety!.probAboveLimit, 1 - jstat.jStat.beta.cdf(0.3, 8.6, 14.4), 1e-6);
+    expect(right.safety!.probAboveLimit.toFixed(3)).toBe("0.762");
+    expect(right.safety!.treated).toBe(21);
+    expect(right.safety!.crossed).toBe(false);
+    expect(right.decision.action).not.toBe("stop");
+    expect(right.decision.reason).toMatch(/8 with toxicity among 21 treated patients/);
+    expect(right.current.evaluation.safetyProbability).toBe(right.safety!.probAboveLimit);
+    // The response posterior still uses the 15 evaluable for response.
+    expect(right.arms[0].posterior[0]).toMatchObject({ a: 0.6 + 4, b: 0.4 + 15 - 4 });
+    // Had the 15 been used for toxicity: Beta(8.6, 8.4), 0.960, a safety stop.
+    const wrong = at(15);
+    close(wrong.safety!.probAboveLimit, 1 - jstat.jStat.beta.cdf(0.3, 8.6, 8.4), 1e-6);
+    expect(wrong.safety!.probAboveLimit.toFixed(3)).toBe("0.960");
+    expect(wrong.decision).toMatchObject({ action: "stop", stop: "safety" });
+  });
+
+  it("finding 1: more toxicities than patients evaluable for response no longer break the review", () => {
+    const r = computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, treated: 21, evaluable: 5, responders: 1, toxicities: 12 }] }] }));
+    close(r.safety!.probAboveLimit, 1 - jstat.jStat.beta.cdf(0.3, 12.6, 10.4), 1e-6);
+    expect(r.safety!.observedPath).toEqual([{ lookNumber: 2, n: 21, toxicities: 12 }]);
   });
 
   it("prior sensitivity: design, uniform and sceptical priors side by side; the sceptical prior is centred at p0 with ESS 10% of nMax", () => {
