@@ -62,6 +62,19 @@ function closedInput(respondersLook2 = 6): ClosedPacketInput {
   };
 }
 
+describe("finding 1: the closed packet with toxicities above the patients evaluable for response", () => {
+  it("builds, states the treated denominator, and its safety probability matches @stdlib's Beta CDF with treated as n", () => {
+    const input = reviewInput();
+    input.looks[1].counts[0] = { armId: 7, enrolled: 21, treated: 21, evaluable: 15, responders: 4, toxicities: 16 };
+    const review = computeReview(input);
+    const doc = buildClosedPacket(openInput(), { ...closedInput(), review, record: reproducibilityRecord(input, review) });
+    const text = documentText(doc);
+    expect(text).toContain("16 of 21 treated patients (evaluable for toxicity)");
+    expect(text).toContain("Treated (evaluable for toxicity)");
+    expect(Math.abs(review.safety!.probAboveLimit - (1 - betaCdf(0.3, 16.6, 6.4)))).toBeLessThan(1e-12);
+  });
+});
+
 describe("open packet content", () => {
   it("holds the open sections only, the caution, and no arm-level count", () => {
     const doc = buildOpenPacket(openInput());
