@@ -76,6 +76,9 @@ export type ArmCountRow = {
   analysis_id: number;
   arm_id: number;
   enrolled: number;
+  /** Patients evaluable for toxicity (treated): the safety rule's denominator; null when toxicities are not recorded. */
+  treated: number | null;
+  /** Patients evaluable for response: the response rule's denominator. */
   evaluable: number;
   responders: number;
   toxicities: number | null;
@@ -90,6 +93,8 @@ export type PatientOutcomeRow = {
   enrolled_on: string;
   evaluable: number | boolean;
   responder: number | boolean | null;
+  /** Evaluable for toxicity; null when the design records no toxicity. */
+  treated: number | boolean | null;
   toxicity: number | boolean | null;
   source_line: number;
 };

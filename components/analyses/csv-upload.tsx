@@ -8,15 +8,20 @@ import { useRef, useState } from "react";
 import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
-import { MAX_UPLOAD_BYTES, PATIENT_CSV_COLUMNS, tooLargeMessage } from "@/lib/csv/patient-outcomes";
+import { MAX_UPLOAD_BYTES, PATIENT_CSV_COLUMNS, tooLargeMessage, type ExcludedRows } from "@/lib/csv/patient-outcomes";
 import { callApi, type CsvIssueJson } from "./api-client";
 
-type PreviewCounts = { armId: number; armLabel: string; enrolled: number; evaluable: number; responders: number; toxicities: number | null };
+type PreviewCounts = { armId: number; armLabel: string; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
 type Preview =
-  | { ok: true; rowCount: number; counts: PreviewCounts[]; cutoffDate: string }
-  | { ok: false; rowCount: number; issueCount: number; issues: CsvIssueJson[] };
+  | { ok: true; rowCount: number; includedRows: number; counts: PreviewCounts[]; cutoffDate: string; excluded: ExcludedRows }
+  | { ok: false; rowCount: number; issueCount: number; issues: CsvIssueJson[]; excluded?: ExcludedRows };
 
-type Phase = { kind: "idle" } | { kind: "busy"; what: string } | { kind: "preview"; preview: Preview } | { kind: "error"; message: string; issues?: CsvIssueJson[] } | { kind: "done"; message: string };
+type Phase =
+  | { kind: "idle" }
+  | { kind: "busy"; what: string }
+  | { kind: "preview"; preview: Preview }
+  | { kind: "error"; message: string; issues?: CsvIssueJson[] }
+  | { kind: "done"; message: string; excluded?: ExcludedRows };
 
 export function CsvUpload({ trialId, analysisId, rowVersion, safetyRule, cutoffDate }: { trialId: number; analysisId: number; rowVersion: number; safetyRule: boolean; cutoffDate: string | null }) {
   const router = useRouter();
@@ -42,9 +47,14 @@ export function CsvUpload({ trialId, analysisId, rowVersion, safetyRule, cutoffD
     if (!file) return;
     setPhase({ kind: "busy", what: "Writing the patient rows…" });
     const q = new URLSearchParams({ rowVersion: String(rowVersion), fileName: file.name.slice(0, 200) });
-    const r = await callApi<{ patientRows: number; enrolledTotal: number }>(`${url}/confirm?${q}`, { method: "POST", headers: { "Content-Type": "text/csv" }, body: file });
+    const r = await callApi<{ patientRows: number; enrolledTotal: number; excluded: ExcludedRows }>(`${url}/confirm?${q}`, { method: "POST", headers: { "Content-Type": "text/csv" }, body: file });
     if (!r.ok) return setPhase({ kind: "error", message: r.error, issues: r.issues });
-    setPhase({ kind: "done", message: `${r.data.patientRows} patient rows written; counts derived at the cut-off (${r.data.enrolledTotal} enrolled in total).` });
+    const left = r.data.excluded.count;
+    setPhase({
+      kind: "done",
+      message: `${r.data.patientRows} patient rows written; counts derived at the cut-off (${r.data.enrolledTotal} enrolled in total).${left ? ` ${left} row${left === 1 ? "" : "s"} enrolled after the cut-off left out.` : ""}`,
+      excluded: r.data.excluded,
+    });
     setFile(null);
     if (input.current) input.current.value = "";
     router.refresh();
@@ -53,9 +63,13 @@ export function CsvUpload({ trialId, analysisId, rowVersion, safetyRule, cutoffD
   return (
     <div className="flex flex-col gap-3" aria-label="Upload patient-level data" role="group">
       <p className="text-sm text-stone-700">
-        One row per patient with the columns <code>{PATIENT_CSV_COLUMNS.join(", ")}</code>. Arm by its label or role; evaluable, response and toxicity as yes/no, 1/0 or
-        true/false; response empty for a patient who is not evaluable{safetyRule ? "; toxicity required (the design has a safety rule)" : ""}; dates as YYYY-MM-DD, on or before the cut-off
-        {cutoffDate ? ` (${cutoffDate})` : ""}. At most {MAX_UPLOAD_BYTES / (1024 * 1024)} MB.
+        One row per patient with the columns <code>{PATIENT_CSV_COLUMNS.join(", ")}</code> and, optionally, <code>treated</code>. Arm by its label or role; evaluable (for
+        response), response, toxicity and treated as yes/no, 1/0 or true/false; response empty for a patient who is not evaluable
+        {safetyRule
+          ? "; toxicity required for every treated patient and empty for one not treated (without a treated column every patient counts as treated)"
+          : ""}
+        ; dates as YYYY-MM-DD. Patients enrolled after the cut-off{cutoffDate ? ` (${cutoffDate})` : ""} are left out of this look and listed. At most{" "}
+        {MAX_UPLOAD_BYTES / (1024 * 1024)} MB.
       </p>
       <div className="flex flex-wrap items-center gap-2">
         <label htmlFor={`csv-${analysisId}`} className="text-sm font-medium text-stone-700">
@@ -86,27 +100,36 @@ export function CsvUpload({ trialId, analysisId, rowVersion, safetyRule, cutoffD
           {phase.issues?.length ? <IssueTable issues={phase.issues} total={phase.issues.length} /> : null}
         </>
       ) : null}
-      {phase.kind === "done" ? <Banner tone="success">{phase.message}</Banner> : null}
+      {phase.kind === "done" ? (
+        <>
+          <Banner tone="success">{phase.message}</Banner>
+          {phase.excluded?.count ? <ExcludedTable excluded={phase.excluded} /> : null}
+        </>
+      ) : null}
       {phase.kind === "preview" && !phase.preview.ok ? (
         <>
           <Banner tone="danger" title="The file has problems: nothing was written">
             {phase.preview.issueCount} problem{phase.preview.issueCount === 1 ? "" : "s"} in {phase.preview.rowCount} patient row{phase.preview.rowCount === 1 ? "" : "s"}. Correct the file and check it again.
           </Banner>
           <IssueTable issues={phase.preview.issues} total={phase.preview.issueCount} />
+          {phase.preview.excluded?.count ? <ExcludedTable excluded={phase.preview.excluded} /> : null}
         </>
       ) : null}
       {phase.kind === "preview" && phase.preview.ok ? (
         <div className="flex flex-col gap-3">
           <Banner tone="info" title="Preview: nothing is written yet">
-            {phase.preview.rowCount} patient rows are valid. Counts at the cut-off {phase.preview.cutoffDate}:
+            {phase.preview.includedRows} patient rows are valid for this look
+            {phase.preview.excluded.count ? `; ${phase.preview.excluded.count} of the file's ${phase.preview.rowCount} rows were enrolled after the cut-off and are left out (listed below)` : ""}.
+            Counts at the cut-off {phase.preview.cutoffDate}:
           </Banner>
           <table className="cairn-table" aria-label="Counts derived from the file">
             <thead>
               <tr>
                 <th>Arm</th>
                 <th>Enrolled</th>
-                <th>Evaluable</th>
+                <th>Evaluable for response</th>
                 <th>Responders</th>
+                {safetyRule ? <th>Treated (evaluable for toxicity)</th> : null}
                 {safetyRule ? <th>With toxicity</th> : null}
               </tr>
             </thead>
@@ -117,6 +140,7 @@ export function CsvUpload({ trialId, analysisId, rowVersion, safetyRule, cutoffD
                   <td>{c.enrolled}</td>
                   <td>{c.evaluable}</td>
                   <td>{c.responders}</td>
+                  {safetyRule ? <td>{c.treated ?? "—"}</td> : null}
                   {safetyRule ? <td>{c.toxicities ?? "—"}</td> : null}
                 </tr>
               ))}
@@ -124,9 +148,10 @@ export function CsvUpload({ trialId, analysisId, rowVersion, safetyRule, cutoffD
           </table>
           <div>
             <Button type="button" onClick={confirm}>
-              Write {phase.preview.rowCount} patient rows
+              Write {phase.preview.includedRows} patient rows
             </Button>
           </div>
+          {phase.preview.excluded.count ? <ExcludedTable excluded={phase.preview.excluded} /> : null}
         </div>
       ) : null}
     </div>
@@ -155,6 +180,36 @@ function IssueTable({ issues, total }: { issues: CsvIssueJson[]; total: number }
         </tbody>
       </table>
       {total > issues.length ? <p className="mt-1 text-xs text-stone-500">Showing the first {issues.length} of {total} problems.</p> : null}
+    </div>
+  );
+}
+
+/** The rows left out because the patient was enrolled after the look's data cut-off. */
+function ExcludedTable({ excluded }: { excluded: ExcludedRows }) {
+  return (
+    <div className="max-h-72 overflow-auto">
+      <table className="cairn-table" aria-label="Rows left out (enrolled after the cut-off)">
+        <caption className="text-left text-sm text-stone-700">
+          {excluded.count} row{excluded.count === 1 ? "" : "s"} enrolled after the cut-off {excluded.cutoffDate}, left out of this look
+        </caption>
+        <thead>
+          <tr>
+            <th>Line</th>
+            <th>Subject</th>
+            <th>Enrolled on</th>
+          </tr>
+        </thead>
+        <tbody>
+          {excluded.rows.map((r) => (
+            <tr key={r.line}>
+              <td className="tabular-nums">{r.line}</td>
+              <td>{r.subjectId}</td>
+              <td>{r.enrolmentDate}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+      {excluded.count > excluded.rows.length ? <p className="mt-1 text-xs text-stone-500">Showing the first {excluded.rows.length} of {excluded.count} rows left out.</p> : null}
     </div>
   );
 }

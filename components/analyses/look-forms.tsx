@@ -15,7 +15,8 @@ type FormState = { ok?: string; failure?: ApiFailure };
 const initial: FormState = {};
 
 export type ArmInput = { id: number; label: string; role: string };
-export type CountsValue = { armId: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null };
+/** Two denominators: evaluable (for response) and treated (evaluable for toxicity, with a safety rule only). */
+export type CountsValue = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
 
 /**
  * Submits through the action without React's automatic form reset, so what the user typed stays in
@@ -79,6 +80,7 @@ export function CountsForm({
   safetyRule,
   counts,
   amendment,
+  maxPerArm,
 }: {
   trialId: number;
   analysisId: number;
@@ -88,6 +90,7 @@ export function CountsForm({
   safetyRule: boolean;
   counts: CountsValue[];
   amendment: number;
+  maxPerArm: number | null;
 }) {
   const router = useRouter();
   const [state, action, pending] = useActionState(async (_p: FormState, fd: FormData): Promise<FormState> => {
@@ -98,6 +101,7 @@ export function CountsForm({
       counts: arms.map((a, i) => ({
         armId: a.id,
         enrolled: fd.get(`counts.${i}.enrolled`),
+        treated: safetyRule ? fd.get(`counts.${i}.treated`) : null,
         evaluable: fd.get(`counts.${i}.evaluable`),
         responders: fd.get(`counts.${i}.responders`),
         toxicities: safetyRule ? fd.get(`counts.${i}.toxicities`) : null,
@@ -116,10 +120,10 @@ export function CountsForm({
   };
   const cols: Array<[keyof CountsValue, string]> = [
     ["enrolled", "Enrolled"],
-    ["evaluable", "Evaluable"],
+    ["evaluable", "Evaluable for response"],
     ["responders", "Responders"],
   ];
-  if (safetyRule) cols.push(["toxicities", "With toxicity"]);
+  if (safetyRule) cols.push(["treated", "Treated (evaluable for toxicity)"], ["toxicities", "With toxicity"]);
   return (
     <form onSubmit={keepValues(action)} className="flex flex-col gap-4" aria-label="Enter counts by hand" noValidate>
       <Outcome state={state} />
@@ -164,7 +168,10 @@ export function CountsForm({
         </tbody>
       </table>
       {fe.counts ? <p className="text-xs text-berry-700">{fe.counts}</p> : null}
-      <p className="text-xs text-stone-500">Whole numbers, with responders ≤ evaluable ≤ enrolled{safetyRule ? " and toxicities ≤ enrolled" : ""}.</p>
+      <p className="text-xs text-stone-500">
+        Cumulative whole numbers at the cut-off, with responders ≤ evaluable for response ≤ enrolled{maxPerArm !== null ? ` ≤ ${maxPerArm} (the design's maximum per arm)` : ""}
+        {safetyRule ? "; with toxicity ≤ treated ≤ enrolled (the safety rule counts toxicities among the treated patients)" : ""}. No count may fall below the previous locked look&apos;s.
+      </p>
       {amendment > 0 ? (
         <Field label="Reason for this change (amendment)" name="reason" error={fe.reason} hint="Recorded in the audit trail with the old and new counts.">
           <TextArea id="reason" name="reason" rows={2} maxLength={1000} invalid={!!fe.reason} />
@@ -221,6 +228,38 @@ export function ReopenForm({ trialId, analysisId, rowVersion, lookNumber }: { tr
       </Field>
       <div>
         <Button type="submit" variant="secondary" disabled={pending}>{pending ? "Reopening…" : "Reopen as amendment"}</Button>
+      </div>
+    </form>
+  );
+}
+
+/**
+ * Shown instead of the counts form on a patient-level look: its counts come from its patient rows.
+ * Switching removes the rows (with a reason, kept in the audit trail) so the counts can be typed.
+ */
+export function SwitchToCountLevelForm({ trialId, analysisId, rowVersion, patientRows }: { trialId: number; analysisId: number; rowVersion: number; patientRows: number }) {
+  const router = useRouter();
+  const [state, action, pending] = useActionState(async (_p: FormState, fd: FormData): Promise<FormState> => {
+    const r = await callApi<{ removedPatientRows: number }>(`${base(trialId, analysisId)}/count-level`, jsonInit("POST", { rowVersion: fd.get("rowVersion"), reason: fd.get("reason") }));
+    if (!r.ok) return { failure: r };
+    router.refresh();
+    return { ok: `${r.data.removedPatientRows} patient rows removed; the counts can now be entered by hand.` };
+  }, initial);
+  const fe = state.failure?.fieldErrors ?? {};
+  return (
+    <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Switch to count-level entry">
+      <Outcome state={state} />
+      <p className="text-sm text-stone-700">
+        This look is <strong>patient-level</strong>: its counts are derived from its {patientRows} uploaded patient rows and cannot be typed in. To correct them, upload a corrected file. To
+        enter counts by hand instead, switch the look to count-level entry: the patient rows are removed, the counts stay as they are until you change them, and the switch is recorded
+        with your reason in the audit trail.
+      </p>
+      <input type="hidden" name="rowVersion" value={rowVersion} />
+      <Field label="Reason for switching to count-level entry" name="reason" error={fe.reason}>
+        <TextArea id="switch-reason" name="reason" rows={2} maxLength={1000} invalid={!!fe.reason} />
+      </Field>
+      <div>
+        <Button type="submit" variant="secondary" disabled={pending}>{pending ? "Switching…" : "Remove patient rows and switch"}</Button>
       </div>
     </form>
   );

@@ -23,6 +23,8 @@ import * as m22 from "./20261202002200_create_packets";
 import * as m23 from "./20261202002300_create_email_messages";
 import * as m24 from "./20261202002400_create_calibration_jobs";
 import * as m25 from "./20261202002500_create_sign_in_failures";
+import * as m30301 from "./20261203030100_add_treated_to_analysis_arm_counts";
+import * as m30302 from "./20261203030200_add_treated_to_patient_outcomes";
 import * as mReviewVersionA from "./20261203040100_add_analyses_review_version";
 import * as mReviewVersionR from "./20261203040200_add_recommendations_review_version";
 import * as a1 from "./20261203050100_users_add_session_version";
@@ -57,6 +59,8 @@ const migrations: Array<[string, Migration]> = [
   ["20261202002300_create_email_messages", m23],
   ["20261202002400_create_calibration_jobs", m24],
   ["20261202002500_create_sign_in_failures", m25],
+  ["20261203030100_add_treated_to_analysis_arm_counts", m30301],
+  ["20261203030200_add_treated_to_patient_outcomes", m30302],
   ["20261203040100_add_analyses_review_version", mReviewVersionA],
   ["20261203040200_add_recommendations_review_version", mReviewVersionR],
   ["20261203050100_users_add_session_version", a1],

@@ -29,6 +29,7 @@ export type ArmAtLookRow = {
   arm_label: string | null;
   arm_role: "single" | "experimental" | "control" | null;
   enrolled: number | null;
+  treated: number | null;
   evaluable: number | null;
   responders: number | null;
   toxicities: number | null;
@@ -40,10 +41,11 @@ export async function fetchArmAtLook(trialId: number, analysisId: number, armId:
     .leftJoin("arms as r", (j) => j.onVal("r.id", "=", armId).andOn("r.trial_id", "=", "a.trial_id"))
     .leftJoin("analysis_arm_counts as c", (j) => j.on("c.analysis_id", "=", "a.id").andOn("c.arm_id", "=", "r.id"))
     .where({ "a.id": analysisId, "a.trial_id": trialId })
-    .first(["a.status", "a.look_number", "a.cutoff_date", "d.spec", "r.id as arm_id", "r.label as arm_label", "r.arm_role", "c.enrolled", "c.evaluable", "c.responders", "c.toxicities"]);
+    .first(["a.status", "a.look_number", "a.cutoff_date", "d.spec", "r.id as arm_id", "r.label as arm_label", "r.arm_role", "c.enrolled", "c.treated", "c.evaluable", "c.responders", "c.toxicities"]);
 }
 
-export type ArmCountsInput = { armId: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null };
+/** treated and toxicities are both numbers (a design with a safety rule) or both null. */
+export type ArmCountsInput = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
 
 /** Replaces the counts of an analysis (all arms at once). */
 export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCountsInput[]): Promise<void> {
@@ -54,6 +56,7 @@ export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCo
         analysis_id: analysisId,
         arm_id: c.armId,
         enrolled: c.enrolled,
+        treated: c.treated,
         evaluable: c.evaluable,
         responders: c.responders,
         toxicities: c.toxicities,
@@ -87,6 +90,29 @@ export async function fetchPatientOutcomeGrid(analysisId: number, tx: Tx = db): 
     .where("p.analysis_id", analysisId)
     .select("p.*", "a.label as arm_label")
     .orderBy("p.source_line");
+}
+
+/** Removes a look's patient rows (the switch to count-level entry); returns how many there were. */
+export async function deletePatientOutcomes(tx: Tx, analysisId: number): Promise<number> {
+  return tx("patient_outcomes").where({ analysis_id: analysisId }).delete();
+}
+
+/**
+ * The counts of the nearest locked (or reviewed) look before and after a look, for the rule that
+ * cumulative counts never fall from one look to the next.
+ */
+export async function fetchNeighbourLockedCounts(
+  trialId: number,
+  lookNumber: number,
+  tx: Tx = db,
+): Promise<{ before: { lookNumber: number; counts: ArmCountRow[] } | null; after: { lookNumber: number; counts: ArmCountRow[] } | null }> {
+  const locked = ["locked", "reviewed"];
+  const [prev, next] = await Promise.all([
+    tx("analyses").where({ trial_id: trialId }).whereIn("status", locked).where("look_number", "<", lookNumber).orderBy("look_number", "desc").first("id", "look_number"),
+    tx("analyses").where({ trial_id: trialId }).whereIn("status", locked).where("look_number", ">", lookNumber).orderBy("look_number", "asc").first("id", "look_number"),
+  ]);
+  const load = async (a: { id: number; look_number: number } | undefined) => (a ? { lookNumber: a.look_number, counts: await fetchArmCounts(a.id, tx) } : null);
+  return { before: await load(prev), after: await load(next) };
 }
 
 export async function countPatientOutcomes(analysisId: number, tx: Tx = db): Promise<number> {

@@ -51,11 +51,15 @@ export const TWO_ARM_DEMO_DESIGN: TwoArmDesign = {
   safety: null,
 };
 
-/** The demo interim counts: look by look, per arm (closed data). */
+/**
+ * The demo interim counts: look by look, per arm (closed data). Treated (evaluable for toxicity)
+ * and evaluable for response are separate denominators: every enrolled patient of CRN-201 has
+ * started treatment, one per look is not yet evaluable for response.
+ */
 export const DEMO_COUNTS = {
   "CRN-201": [
-    { look: 1, cutoff: "2026-06-30", lockedAt: "2026-07-06T10:00:00Z", arms: { single: { enrolled: 11, evaluable: 10, responders: 3, toxicities: 1 } } },
-    { look: 2, cutoff: "2026-09-30", lockedAt: "2026-10-05T10:00:00Z", arms: { single: { enrolled: 21, evaluable: 20, responders: 6, toxicities: 3 } } },
+    { look: 1, cutoff: "2026-06-30", lockedAt: "2026-07-06T10:00:00Z", arms: { single: { enrolled: 11, treated: 11, evaluable: 10, responders: 3, toxicities: 1 } } },
+    { look: 2, cutoff: "2026-09-30", lockedAt: "2026-10-05T10:00:00Z", arms: { single: { enrolled: 21, treated: 21, evaluable: 20, responders: 6, toxicities: 3 } } },
   ],
   "CRN-305": [
     {
@@ -63,8 +67,8 @@ export const DEMO_COUNTS = {
       cutoff: "2026-08-31",
       lockedAt: "2026-09-08T10:00:00Z",
       arms: {
-        experimental: { enrolled: 21, evaluable: 20, responders: 9, toxicities: null },
-        control: { enrolled: 22, evaluable: 20, responders: 5, toxicities: null },
+        experimental: { enrolled: 21, treated: null, evaluable: 20, responders: 9, toxicities: null },
+        control: { enrolled: 22, treated: null, evaluable: 20, responders: 5, toxicities: null },
       },
     },
   ],

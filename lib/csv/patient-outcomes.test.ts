@@ -49,12 +49,12 @@ describe("parsePatientCsv: a valid file", () => {
     if (!r.ok) return;
     expect(r.rowCount).toBe(6);
     expect(r.rows.map((x) => x.armId)).toEqual([11, 12, 11, 12, 12, 11]);
-    expect(r.rows[3]).toEqual({ subjectId: "S-004", armId: 12, enrolledOn: "2026-06-01", evaluable: false, responder: null, toxicity: false, sourceLine: 5 });
+    expect(r.rows[3]).toEqual({ subjectId: "S-004", armId: 12, enrolledOn: "2026-06-01", evaluable: false, responder: null, treated: null, toxicity: false, sourceLine: 5 });
     // Experimental: S-001 (R), S-003 (NR), S-006 (NR, on the cut-off day) -> 3 enrolled, 3 evaluable, 1 responder.
     // Control: S-002 (NR), S-004 (not evaluable), S-005 (R) -> 3 enrolled, 2 evaluable, 1 responder.
     expect(r.counts).toEqual([
-      { armId: 11, enrolled: 3, evaluable: 3, responders: 1, toxicities: null },
-      { armId: 12, enrolled: 3, evaluable: 2, responders: 1, toxicities: null },
+      { armId: 11, enrolled: 3, treated: null, evaluable: 3, responders: 1, toxicities: null },
+      { armId: 12, enrolled: 3, treated: null, evaluable: 2, responders: 1, toxicities: null },
     ]);
   });
 
@@ -62,7 +62,7 @@ describe("parsePatientCsv: a valid file", () => {
     const text = "\uFEFFsite;subject_id;arm;enrolment_date;evaluable;response;toxicity\r\n" + '"Site 1; north";S-1;"TLM-417 400 mg";2026-01-05;yes;yes;yes\r\n' + "Site 2;S-2;single;2026-01-06;yes;no;no\r\n";
     const r = parsePatientCsv(decodeCsvBytes(enc(text)), ONE_ARM_SAFETY);
     expect(r.ok).toBe(true);
-    if (r.ok) expect(r.counts).toEqual([{ armId: 5, enrolled: 2, evaluable: 2, responders: 1, toxicities: 1 }]);
+    if (r.ok) expect(r.counts).toEqual([{ armId: 5, enrolled: 2, treated: 2, evaluable: 2, responders: 1, toxicities: 1 }]);
   });
 
   it("numbers lines as an editor does, even after a quoted field that spans two lines", () => {
@@ -81,8 +81,8 @@ describe("parsePatientCsv: each kind of bad row is reported with its line, colum
   it("an evaluable patient with no response", () => {
     expectIssue(csv("S-1,control,2026-01-05,yes,,"), TWO_ARMS, { line: 2, column: "response", message: /response is empty/ });
   });
-  it("an enrolment date after the cut-off", () => {
-    expectIssue(csv("S-1,control,2026-11-01,yes,no,"), TWO_ARMS, { line: 2, column: "enrolment_date", message: /after the data cut-off 2026-10-31/ });
+  it("finding 6: a file whose every row is after the cut-off has no data for the look", () => {
+    expectIssue(csv("S-1,control,2026-11-01,yes,no,"), TWO_ARMS, { line: null, column: "enrolment_date", message: /No patient in the file was enrolled on or before the data cut-off 2026-10-31 \(1 row is after it\)/ });
   });
   it("a date that is not a calendar date or not YYYY-MM-DD", () => {
     expectIssue(csv("S-1,control,2026-02-30,yes,no,"), TWO_ARMS, { line: 2, column: "enrolment_date", message: /not a valid date/ });
@@ -111,7 +111,7 @@ describe("parsePatientCsv: each kind of bad row is reported with its line, colum
     expectIssue(csv("S-1,control,2026-01-05,yes"), TWO_ARMS, { line: 2, column: null, message: /4 fields but the header has 6/ });
   });
   it("reports every bad row, not just the first, and accepts none of the good ones", () => {
-    const r = parsePatientCsv(csv("S-1,control,2026-01-05,yes,no,", "S-2,nowhere,2026-01-05,yes,no,", "S-3,control,2027-01-01,yes,no,", "S-4,control,2026-01-05,no,yes,"), TWO_ARMS);
+    const r = parsePatientCsv(csv("S-1,control,2026-01-05,yes,no,", "S-2,nowhere,2026-01-05,yes,no,", "S-3,control,2026-02-30,yes,no,", "S-4,control,2026-01-05,no,yes,"), TWO_ARMS);
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.issues.map((i) => [i.line, i.column])).toEqual([[3, "arm"], [4, "enrolment_date"], [5, "response"]]);
   });
@@ -121,6 +121,80 @@ describe("parsePatientCsv: each kind of bad row is reported with its line, colum
   });
   it("prose instead of CSV", () => {
     expectIssue("Dear data manager, please find the results attached.\nBest wishes\n", TWO_ARMS, { line: 1, column: null, message: /does not look like a CSV export/ });
+  });
+});
+
+describe("finding 6: rows dated after the cut-off are left out of the look and listed, not refused", () => {
+  it("keeps the rows on or before the cut-off, lists the others by line and subject, and does not check them", () => {
+    const r = parsePatientCsv(
+      csv(
+        "S-1,control,2026-10-30,yes,no,",
+        "S-2,experimental,2026-11-01,yes,yes,",
+        "S-3,experimental,2026-10-31,yes,yes,", // on the cut-off day: belongs to the look
+        "S-4,Placebo,2026-12-15,maybe,,", // after the cut-off: not this look's, so not checked
+      ),
+      TWO_ARMS,
+    );
+    expect(r.ok).toBe(true);
+    if (!r.ok) return;
+    expect(r.rowCount).toBe(4);
+    expect(r.rows.map((x) => x.subjectId)).toEqual(["S-1", "S-3"]);
+    expect(r.excluded).toEqual({
+      count: 2,
+      cutoffDate: "2026-10-31",
+      rows: [
+        { line: 3, subjectId: "S-2", enrolmentDate: "2026-11-01" },
+        { line: 5, subjectId: "S-4", enrolmentDate: "2026-12-15" },
+      ],
+    });
+    // Counted by hand: experimental S-3 (responder), control S-1 (non-responder).
+    expect(r.counts).toEqual([
+      { armId: 11, enrolled: 1, treated: null, evaluable: 1, responders: 1, toxicities: null },
+      { armId: 12, enrolled: 1, treated: null, evaluable: 1, responders: 0, toxicities: null },
+    ]);
+  });
+  it("a bad row before the cut-off still fails the file, and the report of excluded rows comes with it", () => {
+    const r = parsePatientCsv(csv("S-1,control,2026-10-30,yes,,", "S-2,control,2026-11-02,yes,no,"), TWO_ARMS);
+    expect(r.ok).toBe(false);
+    expect(r.excluded.count).toBe(1);
+  });
+});
+
+describe("finding 1: treated (evaluable for toxicity) is its own denominator", () => {
+  const T_HEADER = "subject_id,arm,enrolment_date,evaluable,response,toxicity,treated";
+  const tcsv = (...lines: string[]) => [T_HEADER, ...lines].join("\n") + "\n";
+  it("with a treated column: toxicities are counted among treated patients, independently of evaluable for response", () => {
+    const r = parsePatientCsv(
+      tcsv(
+        "P-1,single,2026-01-05,yes,yes,yes,yes",
+        "P-2,single,2026-01-06,no,,yes,yes", // treated, toxic, not evaluable for response
+        "P-3,single,2026-01-07,no,,no,yes",
+        "P-4,single,2026-01-08,no,,,no", // enrolled, not treated yet
+      ),
+      ONE_ARM_SAFETY,
+    );
+    expect(r.ok).toBe(true);
+    if (!r.ok) return;
+    // By hand: 4 enrolled, 3 treated (P-1..P-3), 2 with toxicity (P-1, P-2), 1 evaluable for response (P-1), 1 responder.
+    expect(r.counts).toEqual([{ armId: 5, enrolled: 4, treated: 3, evaluable: 1, responders: 1, toxicities: 2 }]);
+    expect(r.rows.map((x) => x.treated)).toEqual([true, true, true, false]);
+  });
+  it("without a treated column every patient enrolled by the cut-off counts as treated", () => {
+    const r = parsePatientCsv(csv("P-1,single,2026-01-05,yes,no,yes", "P-2,single,2026-01-06,no,,no"), ONE_ARM_SAFETY);
+    expect(r.ok && r.counts).toEqual([{ armId: 5, enrolled: 2, treated: 2, evaluable: 1, responders: 0, toxicities: 1 }]);
+  });
+  it("a treated patient needs a toxicity outcome; an untreated one must have none; the flag is required under a safety rule", () => {
+    expectIssue(tcsv("P-1,single,2026-01-05,yes,no,,yes"), ONE_ARM_SAFETY, { line: 2, column: "toxicity", message: /treated but the toxicity outcome is empty/ });
+    expectIssue(tcsv("P-1,single,2026-01-05,yes,no,no,no"), ONE_ARM_SAFETY, { line: 2, column: "toxicity", message: /not treated/ });
+    expectIssue(tcsv("P-1,single,2026-01-05,yes,no,no,"), ONE_ARM_SAFETY, { line: 2, column: "treated", message: /treated flag is empty/ });
+    expectIssue(tcsv("P-1,single,2026-01-05,yes,no,no,sometimes"), ONE_ARM_SAFETY, { line: 2, column: "treated", message: /Treated must be yes or no/ });
+  });
+  it("without a safety rule the treated column is read but nothing is counted", () => {
+    const r = parsePatientCsv(tcsv("S-1,control,2026-01-05,yes,no,,no"), TWO_ARMS);
+    expect(r.ok && r.counts.map((c) => [c.treated, c.toxicities])).toEqual([
+      [null, null],
+      [null, null],
+    ]);
   });
 });
 
@@ -190,9 +264,9 @@ describe("properties (fast-check): any valid file round-trips and its counts obe
 
   it("deriveArmCounts leaves out patients enrolled after the cut-off", () => {
     const rows: PatientRecord[] = [
-      { subjectId: "A", armId: 5, enrolledOn: "2026-10-31", evaluable: true, responder: true, toxicity: true, sourceLine: 2 },
-      { subjectId: "B", armId: 5, enrolledOn: "2026-11-01", evaluable: true, responder: true, toxicity: true, sourceLine: 3 },
+      { subjectId: "A", armId: 5, enrolledOn: "2026-10-31", evaluable: true, responder: true, treated: true, toxicity: true, sourceLine: 2 },
+      { subjectId: "B", armId: 5, enrolledOn: "2026-11-01", evaluable: true, responder: true, treated: true, toxicity: true, sourceLine: 3 },
     ];
-    expect(deriveArmCounts(rows, ONE_ARM_SAFETY)).toEqual([{ armId: 5, enrolled: 1, evaluable: 1, responders: 1, toxicities: 1 }]);
+    expect(deriveArmCounts(rows, ONE_ARM_SAFETY)).toEqual([{ armId: 5, enrolled: 1, treated: 1, evaluable: 1, responders: 1, toxicities: 1 }]);
   });
 });

@@ -1,6 +1,13 @@
 /**
  * Patient-level interim data from a data-capture export: one row per patient with a subject
- * identifier, arm, enrolment date, evaluable flag, response outcome and toxicity outcome.
+ * identifier, arm, enrolment date, evaluable flag, response outcome and toxicity outcome, and
+ * optionally a treated flag (evaluable for toxicity).
+ *
+ * Two denominators: responders are counted among the patients evaluable for response; toxicities
+ * among the patients treated (evaluable for toxicity). A patient is treated when the `treated`
+ * cell says yes; a file without a `treated` column counts every patient enrolled by the cut-off as
+ * treated (the format before the column existed). Rows enrolled after the look's data cut-off do
+ * not belong to the look: they are left out and listed in the result, not refused.
  *
  * Pure code (no I/O), shared by the upload route (which re-validates on confirm and never trusts a
  * preview) and its unit tests. Parsing is done by papaparse; every row is validated with zod plus
@@ -22,6 +29,9 @@ export const MAX_REPORTED_ISSUES = 500;
 
 export const PATIENT_CSV_COLUMNS = ["subject_id", "arm", "enrolment_date", "evaluable", "response", "toxicity"] as const;
 export type PatientCsvColumn = (typeof PATIENT_CSV_COLUMNS)[number];
+/** Columns a file may add; without `treated`, every patient enrolled by the cut-off counts as treated. */
+export const OPTIONAL_PATIENT_CSV_COLUMNS = ["treated"] as const;
+type AnyColumn = PatientCsvColumn | (typeof OPTIONAL_PATIENT_CSV_COLUMNS)[number];
 
 export type ArmRole = "single" | "experimental" | "control";
 export type ArmRef = { id: number; label: string; role: ArmRole };
@@ -44,16 +54,22 @@ export type PatientRecord = {
   evaluable: boolean;
   /** null exactly when the patient is not evaluable. */
   responder: boolean | null;
-  /** null when not recorded (allowed only without a safety rule). */
+  /** Evaluable for toxicity; null when the design has no safety rule (toxicity is not counted). */
+  treated: boolean | null;
+  /** null when not recorded (allowed only without a safety rule, or for a patient not treated). */
   toxicity: boolean | null;
   sourceLine: number;
 };
 
-export type DerivedArmCounts = { armId: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null };
+/** treated and toxicities are numbers exactly when the design has a safety rule. */
+export type DerivedArmCounts = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
+
+/** Rows enrolled after the cut-off, left out of the look: how many, and which (at most MAX_REPORTED_ISSUES listed). */
+export type ExcludedRows = { count: number; cutoffDate: string; rows: Array<{ line: number; subjectId: string; enrolmentDate: string }> };
 
 export type PatientCsvResult =
-  | { ok: true; rows: PatientRecord[]; counts: DerivedArmCounts[]; rowCount: number }
-  | { ok: false; issues: CsvIssue[]; issueCount: number; rowCount: number };
+  | { ok: true; rows: PatientRecord[]; counts: DerivedArmCounts[]; rowCount: number; excluded: ExcludedRows }
+  | { ok: false; issues: CsvIssue[]; issueCount: number; rowCount: number; excluded: ExcludedRows };
 
 /** Thrown for a file that cannot be read as CSV text at all; mapped to a single file-level issue. */
 export class NotCsvError extends Error {}
@@ -118,6 +134,7 @@ const rawRowSchema = z.object({
   evaluable: flagSchema("Evaluable"),
   response: flagSchema("Response"),
   toxicity: flagSchema("Toxicity"),
+  treated: flagSchema("Treated"),
 });
 
 /** Matches an arm by its label or by its role (single, experimental, control), ignoring case. */
@@ -167,34 +184,45 @@ export function parsePatientCsv(text: string, ctx: PatientCsvContext): PatientCs
       }
     },
   });
-  if (tooMany) return fail([{ line: null, column: null, message: `The file has more than ${MAX_PATIENT_ROWS} patient rows, the most one upload may hold.` }], 0);
-  if (records.length === 0) return fail([{ line: null, column: null, message: "The file has no rows: it needs a header line and one line per patient." }], 0);
+  if (tooMany) return fail([{ line: null, column: null, message: `The file has more than ${MAX_PATIENT_ROWS} patient rows, the most one upload may hold.` }], 0, NONE_EXCLUDED(ctx.cutoffDate));
+  if (records.length === 0) return fail([{ line: null, column: null, message: "The file has no rows: it needs a header line and one line per patient." }], 0, NONE_EXCLUDED(ctx.cutoffDate));
 
   const [header, ...body] = records;
   const names = header.cells.map((c) => c.trim().toLowerCase());
   const headerIssues: CsvIssue[] = [];
-  for (const col of PATIENT_CSV_COLUMNS) {
+  for (const col of [...PATIENT_CSV_COLUMNS, ...OPTIONAL_PATIENT_CSV_COLUMNS]) {
     const n = names.filter((x) => x === col).length;
-    if (n === 0) headerIssues.push({ line: header.line, column: col, message: `The column "${col}" is missing from the header line.` });
+    if (n === 0 && (PATIENT_CSV_COLUMNS as readonly string[]).includes(col))
+      headerIssues.push({ line: header.line, column: col, message: `The column "${col}" is missing from the header line.` });
     if (n > 1) headerIssues.push({ line: header.line, column: col, message: `The column "${col}" appears ${n} times in the header line.` });
   }
   if (headerIssues.length) {
     const looksLikeText = !names.some((x) => PATIENT_CSV_COLUMNS.includes(x as PatientCsvColumn));
     if (looksLikeText)
       headerIssues.unshift({ line: header.line, column: null, message: `This does not look like a CSV export: the first line should name the columns ${PATIENT_CSV_COLUMNS.join(", ")}.` });
-    return fail(headerIssues, body.length);
+    return fail(headerIssues, body.length, NONE_EXCLUDED(ctx.cutoffDate));
   }
-  if (body.length === 0) return fail([{ line: null, column: null, message: "The file has a header line but no patient rows." }], 0);
+  if (body.length === 0) return fail([{ line: null, column: null, message: "The file has a header line but no patient rows." }], 0, NONE_EXCLUDED(ctx.cutoffDate));
 
-  const index = Object.fromEntries(PATIENT_CSV_COLUMNS.map((c) => [c, names.indexOf(c)])) as Record<PatientCsvColumn, number>;
+  const all: AnyColumn[] = [...PATIENT_CSV_COLUMNS, ...OPTIONAL_PATIENT_CSV_COLUMNS];
+  const index = Object.fromEntries(all.map((c) => [c, names.indexOf(c)])) as Record<AnyColumn, number>;
+  const hasTreatedColumn = index.treated >= 0;
   const seen = new Map<string, number>();
   const rows: PatientRecord[] = [];
+  const excluded: ExcludedRows = { count: 0, cutoffDate: ctx.cutoffDate, rows: [] };
   for (const rec of body) {
     if (rec.cells.length !== names.length) {
       issues.push({ line: rec.line, column: null, message: `The row has ${rec.cells.length} fields but the header has ${names.length}.` });
       continue;
     }
-    const raw = Object.fromEntries(PATIENT_CSV_COLUMNS.map((c) => [c, rec.cells[index[c]] ?? ""]));
+    const raw = Object.fromEntries(all.map((c) => [c, index[c] >= 0 ? (rec.cells[index[c]] ?? "") : ""]));
+    // A patient enrolled after the cut-off does not belong to this look: left out, not checked, listed.
+    const enrolment = raw.enrolment_date.trim();
+    if (isIsoDate(enrolment) && enrolment > ctx.cutoffDate) {
+      excluded.count++;
+      if (excluded.rows.length < MAX_REPORTED_ISSUES) excluded.rows.push({ line: rec.line, subjectId: raw.subject_id.trim().slice(0, 64), enrolmentDate: enrolment });
+      continue;
+    }
     const parsed = rawRowSchema.safeParse(raw);
     if (!parsed.success) {
       for (const i of parsed.error.issues) issues.push({ line: rec.line, column: String(i.path[0] ?? ""), message: i.message });
@@ -209,15 +237,25 @@ export function parsePatientCsv(text: string, ctx: PatientCsvContext): PatientCs
         column: "arm",
         message: `Unknown arm "${r.arm}". This trial's arms are ${ctx.arms.map((a) => `"${a.label}" (${a.role})`).join(" and ")}.`,
       });
-    if (r.enrolment_date > ctx.cutoffDate)
-      rowIssues.push({ line: rec.line, column: "enrolment_date", message: `Enrolled on ${r.enrolment_date}, after the data cut-off ${ctx.cutoffDate}: this patient does not belong to this look.` });
     if (r.evaluable === null) rowIssues.push({ line: rec.line, column: "evaluable", message: `The evaluable flag is empty (${FLAG_HINT}).` });
     if (r.evaluable === false && r.response !== null)
       rowIssues.push({ line: rec.line, column: "response", message: "A response is recorded for a patient who is not evaluable: leave response empty or correct the evaluable flag." });
     if (r.evaluable === true && r.response === null)
       rowIssues.push({ line: rec.line, column: "response", message: `The patient is evaluable but the response is empty (${FLAG_HINT}).` });
-    if (ctx.safetyRule && r.toxicity === null)
-      rowIssues.push({ line: rec.line, column: "toxicity", message: `The toxicity outcome is empty; the design has a safety rule, so every patient needs one (${FLAG_HINT}).` });
+    // Without a treated column every patient counts as treated (the older format).
+    const treated = hasTreatedColumn ? r.treated : true;
+    if (ctx.safetyRule && hasTreatedColumn && treated === null)
+      rowIssues.push({ line: rec.line, column: "treated", message: `The treated flag is empty; the design has a safety rule, so say whether the patient was treated (${FLAG_HINT}).` });
+    if (ctx.safetyRule && treated === true && r.toxicity === null)
+      rowIssues.push({
+        line: rec.line,
+        column: "toxicity",
+        message: hasTreatedColumn
+          ? `The patient was treated but the toxicity outcome is empty; the design has a safety rule (${FLAG_HINT}).`
+          : `The toxicity outcome is empty; the design has a safety rule, so every patient needs one (${FLAG_HINT}), or add a treated column and mark patients not treated with no.`,
+      });
+    if (ctx.safetyRule && treated === false && r.toxicity !== null)
+      rowIssues.push({ line: rec.line, column: "toxicity", message: "A toxicity outcome is recorded for a patient who was not treated: leave toxicity empty or correct the treated flag." });
     const key = r.subject_id.toLowerCase();
     const first = seen.get(key);
     if (first !== undefined) rowIssues.push({ line: rec.line, column: "subject_id", message: `Subject "${r.subject_id}" already appears on line ${first}.` });
@@ -232,17 +270,26 @@ export function parsePatientCsv(text: string, ctx: PatientCsvContext): PatientCs
       enrolledOn: r.enrolment_date,
       evaluable: r.evaluable === true,
       responder: r.evaluable ? r.response : null,
+      treated: ctx.safetyRule ? treated === true : null,
       toxicity: r.toxicity,
       sourceLine: rec.line,
     });
   }
-  if (issues.length) return fail(issues, body.length);
-  return { ok: true, rows, counts: deriveArmCounts(rows, ctx), rowCount: body.length };
+  if (!issues.length && rows.length === 0)
+    issues.push({
+      line: null,
+      column: "enrolment_date",
+      message: `No patient in the file was enrolled on or before the data cut-off ${ctx.cutoffDate} (${excluded.count} row${excluded.count === 1 ? " is" : "s are"} after it), so the look would have no data.`,
+    });
+  if (issues.length) return fail(issues, body.length, excluded);
+  return { ok: true, rows, counts: deriveArmCounts(rows, ctx), rowCount: body.length, excluded };
 }
 
-function fail(issues: CsvIssue[], rowCount: number): PatientCsvResult {
+const NONE_EXCLUDED = (cutoffDate: string): ExcludedRows => ({ count: 0, cutoffDate, rows: [] });
+
+function fail(issues: CsvIssue[], rowCount: number, excluded: ExcludedRows): PatientCsvResult {
   const sorted = [...issues].sort((a, b) => (a.line ?? 0) - (b.line ?? 0));
-  return { ok: false, issues: sorted.slice(0, MAX_REPORTED_ISSUES), issueCount: issues.length, rowCount };
+  return { ok: false, issues: sorted.slice(0, MAX_REPORTED_ISSUES), issueCount: issues.length, rowCount, excluded };
 }
 
 function csvSyntaxMessage(code: string): string {
@@ -254,8 +301,9 @@ function csvSyntaxMessage(code: string): string {
 
 /**
  * Per-arm counts at the cut-off: patients enrolled on or before the cut-off date. Responders are
- * counted among evaluable patients; toxicities among all enrolled (null without a safety rule).
- * Every arm of the trial gets a row, with zeros if it has no patients yet.
+ * counted among the patients evaluable for response; toxicities among the treated patients
+ * (both null without a safety rule). Every arm of the trial gets a row, with zeros if it has no
+ * patients yet.
  */
 export function deriveArmCounts(rows: PatientRecord[], ctx: PatientCsvContext): DerivedArmCounts[] {
   return ctx.arms.map((arm) => {
@@ -263,9 +311,10 @@ export function deriveArmCounts(rows: PatientRecord[], ctx: PatientCsvContext): 
     return {
       armId: arm.id,
       enrolled: mine.length,
+      treated: ctx.safetyRule ? mine.filter((r) => r.treated === true).length : null,
       evaluable: mine.filter((r) => r.evaluable).length,
       responders: mine.filter((r) => r.evaluable && r.responder === true).length,
-      toxicities: ctx.safetyRule ? mine.filter((r) => r.toxicity === true).length : null,
+      toxicities: ctx.safetyRule ? mine.filter((r) => r.treated === true && r.toxicity === true).length : null,
     };
   });
 }

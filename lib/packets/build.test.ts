@@ -42,8 +42,8 @@ function reviewInput(respondersLook2 = 6): ReviewInput {
     design,
     arms: [{ id: 7, label: "Invented arm", role: "single" }],
     looks: [
-      { analysisId: 1, lookNumber: 1, cutoffDate: "2026-06-30", counts: [{ armId: 7, enrolled: 11, evaluable: 10, responders: 3, toxicities: 1 }] },
-      { analysisId: 2, lookNumber: 2, cutoffDate: "2026-09-30", counts: [{ armId: 7, enrolled: 21, evaluable: 20, responders: respondersLook2, toxicities: 3 }] },
+      { analysisId: 1, lookNumber: 1, cutoffDate: "2026-06-30", counts: [{ armId: 7, enrolled: 11, treated: 10, evaluable: 10, responders: 3, toxicities: 1 }] },
+      { analysisId: 2, lookNumber: 2, cutoffDate: "2026-09-30", counts: [{ armId: 7, enrolled: 21, treated: 20, evaluable: 20, responders: respondersLook2, toxicities: 3 }] },
     ],
     analysisId: 2,
     generatedAt: "2026-10-18T09:00:00Z",
@@ -61,6 +61,19 @@ function closedInput(respondersLook2 = 6): ClosedPacketInput {
     lock: { signedBy: "I. Statistician", lockedAt: new Date("2026-10-05T10:00:00Z") },
   };
 }
+
+describe("finding 1: the closed packet with toxicities above the patients evaluable for response", () => {
+  it("builds, states the treated denominator, and its safety probability matches @stdlib's Beta CDF with treated as n", () => {
+    const input = reviewInput();
+    input.looks[1].counts[0] = { armId: 7, enrolled: 21, treated: 21, evaluable: 15, responders: 4, toxicities: 16 };
+    const review = computeReview(input);
+    const doc = buildClosedPacket(openInput(), { ...closedInput(), review, record: reproducibilityRecord(input, review) });
+    const text = documentText(doc);
+    expect(text).toContain("16 of 21 treated patients (evaluable for toxicity)");
+    expect(text).toContain("Treated (evaluable for toxicity)");
+    expect(Math.abs(review.safety!.probAboveLimit - (1 - betaCdf(0.3, 16.6, 6.4)))).toBeLessThan(1e-12);
+  });
+});
 
 describe("open packet content", () => {
   it("holds the open sections only, the caution, and no arm-level count", () => {

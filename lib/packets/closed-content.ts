@@ -112,8 +112,15 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
       {
         kind: "table",
         caption: `Cumulative counts per arm at data cut-off ${r.cutoffDate ?? "not set"}`,
-        columns: ["Arm", "Enrolled", "Evaluable", "Responders", "Toxicities"],
-        rows: r.arms.map((a) => [a.label, String(a.enrolled), String(a.evaluable), String(a.responders), a.toxicities === null ? "not recorded" : String(a.toxicities)]),
+        columns: ["Arm", "Enrolled", "Evaluable for response", "Responders", "Treated (evaluable for toxicity)", "With toxicity"],
+        rows: r.arms.map((a) => [
+          a.label,
+          String(a.enrolled),
+          String(a.evaluable),
+          String(a.responders),
+          a.treated === null ? "not recorded" : String(a.treated),
+          a.toxicities === null ? "not recorded" : String(a.toxicities),
+        ]),
       },
     ],
   });
@@ -245,7 +252,7 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
           {
             kind: "facts",
             rows: [
-              ["Toxicities", `${s.toxicities} of ${s.n} evaluable patients`],
+              ["Toxicities", `${s.toxicities} of ${s.treated} treated patients (evaluable for toxicity)`],
               ["Posterior of the toxicity rate", `${mixtureText(s.posterior)}, mean ${formatRate(s.summary.mean)}`],
               [`P(q > ${s.limitLabel ?? formatRate(s.qmax)} | data)`, formatProbability(s.probAboveLimit)],
               ["Safety threshold", `${s.thetaS} (${s.crossed ? "CROSSED: the data favour stopping for safety" : "not crossed"})`],

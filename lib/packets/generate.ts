@@ -82,7 +82,7 @@ async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typ
       cutoffDate: l.cutoff_date,
       counts: counts
         .filter((c) => c.analysis_id === l.id)
-        .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
+        .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
     })),
     analysisId: open.analysisId,
     generatedAt: now.toISOString(),

@@ -6,7 +6,8 @@ import { describe, expect, it } from "vitest";
 import stdlibBetaCdf from "@stdlib/stats-base-dists-beta-cdf";
 import stdlibBetaPdf from "@stdlib/stats-base-dists-beta-pdf";
 import stdlibBetaln from "@stdlib/math-base-special-betaln";
-import { armPosterior, computeReview, intervalProbabilityOf, reproducibilityRecord, safetyDenominator, scepticalPrior, type ReviewInput } from "./compute-review";
+import jstat from "jstat";
+import { armPosterior, computeReview, intervalProbabilityOf, reproducibilityRecord, scepticalPrior, type ReviewInput } from "./compute-review";
 import { decideAtLook } from "@/lib/stats/decision";
 import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { ENGINE_VERSION } from "@/lib/stats/version";
@@ -33,8 +34,8 @@ const singleInput = (over: Partial<ReviewInput> = {}): ReviewInput => ({
   design: SINGLE,
   arms: [{ id: 7, label: "Arm A", role: "single" }],
   looks: [
-    { analysisId: 101, lookNumber: 1, cutoffDate: "2026-01-31", counts: [{ armId: 7, enrolled: 11, evaluable: 10, responders: 3, toxicities: 1 }] },
-    { analysisId: 102, lookNumber: 2, cutoffDate: "2026-03-31", counts: [{ armId: 7, enrolled: 21, evaluable: 20, responders: 6, toxicities: 3 }] },
+    { analysisId: 101, lookNumber: 1, cutoffDate: "2026-01-31", counts: [{ armId: 7, enrolled: 11, treated: 10, evaluable: 10, responders: 3, toxicities: 1 }] },
+    { analysisId: 102, lookNumber: 2, cutoffDate: "2026-03-31", counts: [{ armId: 7, enrolled: 21, treated: 20, evaluable: 20, responders: 6, toxicities: 3 }] },
   ],
   analysisId: 102,
   generatedAt: "2026-04-02T09:00:00.000Z",
@@ -86,9 +87,38 @@ describe("single arm", () => {
   it("safety: P(q > qmax | t of n) is 1 - F(qmax) under Beta(0.6 + t, 1.4 + n - t) (@stdlib) and is flagged only when above thetaS", () => {
     close(r.safety!.probAboveLimit, 1 - stdlibBetaCdf(0.3, 3.6, 18.4), 1e-10);
     expect(r.safety!.crossed).toBe(false);
-    const toxic = computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, evaluable: 20, responders: 6, toxicities: 11 }] }] }));
+    const toxic = computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, treated: 20, evaluable: 20, responders: 6, toxicities: 11 }] }] }));
     expect(toxic.safety!.crossed).toBe(true);
     expect(toxic.decision).toMatchObject({ action: "stop", stop: "safety" });
+  });
+
+  // Finding 1. jstat 1.9.6 (npm) is an independent Beta CDF; its continued fraction stops at a
+  // relative change of 3e-7, hence the 1e-6 tolerance.
+  it("finding 1: the safety posterior's denominator is the treated count, not the patients evaluable for response (8 of 21 treated, 15 evaluable)", () => {
+    const at = (treated: number) =>
+      computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, treated, evaluable: 15, responders: 4, toxicities: 8 }] }] }));
+    const right = at(21);
+    // Beta(0.6 + 8, 1.4 + 21 - 8) = Beta(8.6, 14.4).
+    close(right.safety!.probAboveLimit, 1 - jstat.jStat.beta.cdf(0.3, 8.6, 14.4), 1e-6);
+    expect(right.safety!.probAboveLimit.toFixed(3)).toBe("0.762");
+    expect(right.safety!.treated).toBe(21);
+    expect(right.safety!.crossed).toBe(false);
+    expect(right.decision.action).not.toBe("stop");
+    expect(right.decision.reason).toMatch(/8 with toxicity among 21 treated patients/);
+    expect(right.current.evaluation.safetyProbability).toBe(right.safety!.probAboveLimit);
+    // The response posterior still uses the 15 evaluable for response.
+    expect(right.arms[0].posterior[0]).toMatchObject({ a: 0.6 + 4, b: 0.4 + 15 - 4 });
+    // Had the 15 been used for toxicity: Beta(8.6, 8.4), 0.960, a safety stop.
+    const wrong = at(15);
+    close(wrong.safety!.probAboveLimit, 1 - jstat.jStat.beta.cdf(0.3, 8.6, 8.4), 1e-6);
+    expect(wrong.safety!.probAboveLimit.toFixed(3)).toBe("0.960");
+    expect(wrong.decision).toMatchObject({ action: "stop", stop: "safety" });
+  });
+
+  it("finding 1: more toxicities than patients evaluable for response no longer break the review", () => {
+    const r = computeReview(singleInput({ looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: null, counts: [{ armId: 7, enrolled: 21, treated: 21, evaluable: 5, responders: 1, toxicities: 12 }] }] }));
+    close(r.safety!.probAboveLimit, 1 - jstat.jStat.beta.cdf(0.3, 12.6, 10.4), 1e-6);
+    expect(r.safety!.observedPath).toEqual([{ lookNumber: 2, n: 21, toxicities: 12 }]);
   });
 
   it("prior sensitivity: design, uniform and sceptical priors side by side; the sceptical prior is centred at p0 with ESS 10% of nMax", () => {
@@ -114,7 +144,7 @@ describe("predictive probability against the published example", () => {
     const r = computeReview({
       design,
       arms: [{ id: 1, label: "A", role: "single" }],
-      looks: [{ analysisId: 1, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 23, evaluable: 23, responders: 16, toxicities: null }] }],
+      looks: [{ analysisId: 1, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 23, treated: null, evaluable: 23, responders: 16, toxicities: null }] }],
       analysisId: 1,
       generatedAt: "2026-01-01T00:00:00.000Z",
     });
@@ -142,7 +172,7 @@ describe("two arms", () => {
       { id: 1, label: "E", role: "experimental" },
       { id: 2, label: "C", role: "control" },
     ],
-    looks: [{ analysisId: 5, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 15, evaluable: 15, responders: 8, toxicities: null }, { armId: 2, enrolled: 15, evaluable: 15, responders: 4, toxicities: null }] }],
+    looks: [{ analysisId: 5, lookNumber: 1, cutoffDate: null, counts: [{ armId: 1, enrolled: 15, treated: null, evaluable: 15, responders: 8, toxicities: null }, { armId: 2, enrolled: 15, treated: null, evaluable: 15, responders: 4, toxicities: null }] }],
     analysisId: 5,
     generatedAt: "2026-01-01T00:00:00.000Z",
   };
@@ -197,8 +227,8 @@ describe("observed data vanish when n differs from the plan (finding 4)", () => 
     singleInput({
       design,
       looks: [
-        { analysisId: 101, lookNumber: 1, cutoffDate: "2026-01-31", plannedN: 10, counts: [{ armId: 7, enrolled: 11, evaluable: 10, responders: 3, toxicities: 1 }] },
-        { analysisId: 102, lookNumber: 2, cutoffDate: "2026-03-31", plannedN: 20, counts: [{ armId: 7, enrolled: n + 1, evaluable: n, responders: x, toxicities: t }] },
+        { analysisId: 101, lookNumber: 1, cutoffDate: "2026-01-31", plannedN: 10, counts: [{ armId: 7, enrolled: 11, treated: 10, evaluable: 10, responders: 3, toxicities: 1 }] },
+        { analysisId: 102, lookNumber: 2, cutoffDate: "2026-03-31", plannedN: 20, counts: [{ armId: 7, enrolled: n + 1, treated: n, evaluable: n, responders: x, toxicities: t }] },
       ],
     });
 
@@ -290,7 +320,7 @@ describe("observed data vanish when n differs from the plan (finding 4)", () => 
         { id: 1, label: "E", role: "experimental" },
         { id: 2, label: "C", role: "control" },
       ],
-      looks: [{ analysisId: 5, lookNumber: 1, cutoffDate: null, plannedN: 20, counts: [{ armId: 1, enrolled: 21, evaluable: 21, responders: 9, toxicities: null }, { armId: 2, enrolled: 20, evaluable: 20, responders: 6, toxicities: null }] }],
+      looks: [{ analysisId: 5, lookNumber: 1, cutoffDate: null, plannedN: 20, counts: [{ armId: 1, enrolled: 21, treated: null, evaluable: 21, responders: 9, toxicities: null }, { armId: 2, enrolled: 20, treated: null, evaluable: 20, responders: 6, toxicities: null }] }],
       analysisId: 5,
       generatedAt: "2026-01-01T00:00:00.000Z",
     });
@@ -307,9 +337,6 @@ describe("observed data vanish when n differs from the plan (finding 4)", () => 
     expect([row.futilityMax, row.efficacyMin]).toEqual([fut, eff]);
   });
 
-  it("the safety denominator is one function (evaluable until a treated count exists)", () => {
-    expect(safetyDenominator({ armId: 1, enrolled: 23, evaluable: 21, responders: 4, toxicities: 2 })).toBe(21);
-  });
 });
 
 describe("Wilson interval beside Clopper-Pearson", () => {

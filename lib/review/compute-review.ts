@@ -24,26 +24,23 @@ import { exceedsThreshold } from "@/lib/stats/compare";
 import { probDifferenceExceeds, differenceDensityGrid } from "@/lib/stats/difference";
 import { expandLooks } from "@/lib/stats/looks";
 import { ENGINE_VERSION } from "@/lib/stats/version";
-import { StatsDomainError } from "@/lib/stats/validate";
+import { requireData, StatsDomainError } from "@/lib/stats/validate";
 import { clopperPearson, wilson, mixtureCurves, mixtureIntervalProbability, summarisePosterior, type Curves, type Interval, type PosteriorSummary } from "./posterior-summary";
 
 export type ArmRole = "single" | "experimental" | "control";
 
 export type ReviewArm = { id: number; label: string; role: ArmRole };
 
-/** Cumulative counts of one arm at one look (as stored in analysis_arm_counts). */
-export type ReviewArmCounts = { armId: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null };
+/**
+ * Cumulative counts of one arm at one look (as stored in analysis_arm_counts). Two denominators:
+ * `evaluable` (evaluable for response) for responders, `treated` (evaluable for toxicity) for
+ * toxicities; treated and toxicities are null when the design records no toxicity.
+ */
+export type ReviewArmCounts = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
 
 /** plannedN: the planned look size this analysis was scheduled at (the evaluable count may differ). */
 export type ReviewLook = { analysisId: number; lookNumber: number; cutoffDate: string | null; plannedN?: number | null; counts: ReviewArmCounts[] };
 
-/**
- * The patients the toxicity rate is estimated over. Until the counts carry a separate "treated"
- * column this is the evaluable count; change only this function when it lands.
- */
-export function safetyDenominator(c: ReviewArmCounts): number {
-  return c.evaluable;
-}
 
 export type ReviewInput = {
   design: Design;
@@ -67,6 +64,9 @@ export type ArmReview = {
   label: string;
   role: ArmRole;
   enrolled: number;
+  /** Patients evaluable for toxicity: the safety rule's denominator. */
+  treated: number | null;
+  /** Patients evaluable for response: the response posterior's denominator. */
   evaluable: number;
   responders: number;
   toxicities: number | null;
@@ -86,14 +86,14 @@ export type LookReview = {
   analysisId: number;
   lookNumber: number;
   cutoffDate: string | null;
-  /** Evaluable patients (per arm for two arms: experimental, control). */
+  /** Patients evaluable for response (per arm for two arms: experimental, control). */
   n: number;
   nControl: number | null;
   responders: number;
   respondersControl: number | null;
+  /** Patients evaluable for toxicity (treated) of the arm the safety rule watches (single or experimental). */
+  treated: number | null;
   toxicities: number | null;
-  /** Patients the toxicity rate is estimated over (safetyDenominator of the arm monitored for safety). */
-  safetyN: number;
   plannedN: number | null;
   evaluation: LookEvaluation;
 };
@@ -142,7 +142,8 @@ export type SafetyReview = {
   /** What the toxicity rate is compared with, in words (fixed limit or uncertain standard plus margin). */
   limitLabel: string;
   thetaS: number;
-  n: number;
+  /** The denominator: patients evaluable for toxicity (treated), not the patients evaluable for response. */
+  treated: number;
   toxicities: number;
   prior: MixtureBeta;
   posterior: MixtureBeta;
@@ -151,6 +152,7 @@ export type SafetyReview = {
   /** True when the safety probability exceeds thetaS (strict, ties do not count: lib/stats/compare.ts). */
   crossed: boolean;
   boundary: SafetyBoundary[];
+  /** n is the number treated (evaluable for toxicity) at each locked look. */
   observedPath: { lookNumber: number; n: number; toxicities: number }[];
   /** Each look's toxicities against the safety boundary at its actual denominator. */
   observed: ObservedSafetyRow[];
@@ -249,16 +251,64 @@ function armsOfDesign(design: Design, arms: ReviewArm[]): { single?: ReviewArm; 
   return { experimental, control };
 }
 
+/** The safety rule's probability (fixed limit or uncertain standard plus margin) for toxicities among treated. */
+function safetyProbability(rule: NonNullable<Design["safety"]>, toxicities: number, treated: number): number {
+  return safetyProbabilityFromPosterior(rule, posteriorMixture(resolvePrior(rule.prior), toxicities, treated));
+}
+
+/**
+ * The response rule is decided by the engine without the safety rule; the safety rule is then
+ * applied here with its own denominator, the patients treated (evaluable for toxicity), because
+ * the engine's look data carry a single n (the patients evaluable for response). Same order and
+ * strictness as the engine: a safety signal outranks everything else, and a tie does not trigger.
+ */
+function withSafety(design: Design, response: LookEvaluation, toxicities: number | null, treated: number | null): LookEvaluation {
+  const rule = design.safety;
+  if (!rule) return response;
+  if (toxicities === null || treated === null)
+    throw new StatsDomainError("toxicities", toxicities, "and the number treated are required because the design has a safety rule");
+  requireData(toxicities, treated);
+  const prob = safetyProbability(rule, toxicities, treated);
+  const words = `posterior probability that the toxicity rate exceeds ${safetyLimitPhrase(rule)} is ${prob.toFixed(3)}`;
+  const among = `${toxicities} with toxicity among ${treated} treated patients (evaluable for toxicity)`;
+  if (exceedsThreshold(prob, rule.thetaS))
+    return {
+      ...response,
+      decision: { action: "stop", stop: "safety", reason: `Safety: ${words}, above the safety threshold ${rule.thetaS} (${among}): the data favour stopping for safety.` },
+      predictiveProbability: null,
+      posteriorProbabilityMonitoring: null,
+      safetyProbability: prob,
+    };
+  return {
+    ...response,
+    decision: { ...response.decision, reason: `${response.decision.reason} No safety signal: ${words}, not above the safety threshold ${rule.thetaS} (${among}).` },
+    safetyProbability: prob,
+  };
+}
+
 function evaluateLook(design: Design, look: ReviewLook, roles: ReturnType<typeof armsOfDesign>): LookReview {
+  const responseOnly = { ...design, safety: null } as Design;
   if (design.arms === "single") {
     const c = countsFor(look, roles.single!);
-    const evaluation = decideAtLook(design, { n: c.evaluable, responders: c.responders, toxicities: c.toxicities });
-    return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: c.evaluable, nControl: null, responders: c.responders, respondersControl: null, toxicities: c.toxicities, safetyN: safetyDenominator(c), plannedN: look.plannedN ?? null, evaluation };
+    const evaluation = withSafety(design, decideAtLook(responseOnly, { n: c.evaluable, responders: c.responders }), c.toxicities, c.treated);
+    return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: c.evaluable, nControl: null, responders: c.responders, respondersControl: null, treated: c.treated, toxicities: c.toxicities, plannedN: look.plannedN ?? null, evaluation };
   }
   const t = countsFor(look, roles.experimental!);
   const c = countsFor(look, roles.control!);
-  const evaluation = decideAtLook(design, { nT: t.evaluable, respondersT: t.responders, nC: c.evaluable, respondersC: c.responders, toxicitiesT: t.toxicities });
-  return { analysisId: look.analysisId, lookNumber: look.lookNumber, cutoffDate: look.cutoffDate, n: t.evaluable, nControl: c.evaluable, responders: t.responders, respondersControl: c.responders, toxicities: t.toxicities, safetyN: safetyDenominator(t), plannedN: look.plannedN ?? null, evaluation };
+  const evaluation = withSafety(design, decideAtLook(responseOnly, { nT: t.evaluable, respondersT: t.responders, nC: c.evaluable, respondersC: c.responders }), t.toxicities, t.treated);
+  return {
+    analysisId: look.analysisId,
+    lookNumber: look.lookNumber,
+    cutoffDate: look.cutoffDate,
+    n: t.evaluable,
+    nControl: c.evaluable,
+    responders: t.responders,
+    respondersControl: c.responders,
+    treated: t.treated,
+    toxicities: t.toxicities,
+    plannedN: look.plannedN ?? null,
+    evaluation,
+  };
 }
 
 function armReview(arm: ReviewArm, c: ReviewArmCounts, priorSpec: PriorSpec, p0: number | null, level: number, points: number): ArmReview {
@@ -269,6 +319,7 @@ function armReview(arm: ReviewArm, c: ReviewArmCounts, priorSpec: PriorSpec, p0:
     label: arm.label,
     role: arm.role,
     enrolled: c.enrolled,
+    treated: c.treated,
     evaluable: c.evaluable,
     responders: c.responders,
     toxicities: c.toxicities,
@@ -366,36 +417,37 @@ function observedBoundaryRows(design: Design, history: LookReview[], planned: Bo
 function safetyReview(design: Design, history: LookReview[], current: LookReview, level: number, points: number, boundary: SafetyBoundary[] | null): SafetyReview | null {
   const rule = design.safety;
   if (!rule) return null;
-  if (current.toxicities === null) throw new StatsDomainError("toxicities", null, "are required at this look because the design has a safety rule");
+  if (current.toxicities === null || current.treated === null)
+    throw new StatsDomainError("toxicities", current.toxicities, "and the number treated are required at this look because the design has a safety rule");
   const prior = resolvePrior(rule.prior);
-  const posterior = posteriorMixture(prior, current.toxicities, current.safetyN);
+  const posterior = posteriorMixture(prior, current.toxicities, current.treated);
   const probAboveLimit = safetyProbabilityFromPosterior(rule, posterior);
-  const seen = history.filter((h) => h.toxicities !== null);
-  const atActual = safetyBoundaries(rule, seen.map((h) => h.safetyN));
+  const seen = history.filter((h): h is LookReview & { toxicities: number; treated: number } => h.toxicities !== null && h.treated !== null);
+  const atActual = safetyBoundaries(rule, seen.map((h) => h.treated));
   return {
     qmax: rule.kind === "uncertainStandard" ? Math.min(1, Math.max(0, rule.standard.a / (rule.standard.a + rule.standard.b) + rule.margin)) : rule.qmax,
     limitLabel: safetyLimitPhrase(rule),
     thetaS: rule.thetaS,
-    n: current.safetyN,
+    treated: current.treated,
     toxicities: current.toxicities,
     prior,
     posterior,
-    summary: summarisePosterior(prior, current.toxicities, current.safetyN, level),
+    summary: summarisePosterior(prior, current.toxicities, current.treated, level),
     probAboveLimit,
     crossed: exceedsThreshold(probAboveLimit, rule.thetaS),
     boundary: boundary ?? [],
-    observedPath: seen.map((h) => ({ lookNumber: h.lookNumber, n: h.safetyN, toxicities: h.toxicities as number })),
+    observedPath: seen.map((h) => ({ lookNumber: h.lookNumber, n: h.treated, toxicities: h.toxicities })),
     observed: seen.map((h, k) => {
       const p = h.plannedN === null ? undefined : boundary?.find((r) => r.n === h.plannedN);
       const t = atActual[k].toxicityMin;
       return {
         lookNumber: h.lookNumber,
         plannedN: h.plannedN,
-        n: h.safetyN,
-        toxicities: h.toxicities as number,
+        n: h.treated,
+        toxicities: h.toxicities,
         toxicityMin: t,
         planned: p ? { n: p.n, toxicityMin: p.toxicityMin } : null,
-        crossed: t !== null && (h.toxicities as number) >= t,
+        crossed: t !== null && (h.toxicities) >= t,
       };
     }),
     curves: mixtureCurves(posterior, points),

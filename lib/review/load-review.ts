@@ -42,7 +42,7 @@ export async function loadReviewInput(trial: TrialRow, analysisId: number, now: 
     plannedN: l.planned_n,
     counts: counts
       .filter((c) => c.analysis_id === l.id)
-      .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
+      .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
   }));
   return {
     analysis,
@@ -97,7 +97,7 @@ export async function loadArmPosterior(trial: TrialRow, analysisId: number, armI
   const counts =
     row.arm_id === null || row.evaluable === null
       ? []
-      : [{ armId: row.arm_id, enrolled: row.enrolled!, evaluable: row.evaluable, responders: row.responders!, toxicities: row.toxicities }];
+      : [{ armId: row.arm_id, enrolled: row.enrolled!, treated: row.treated, evaluable: row.evaluable, responders: row.responders!, toxicities: row.toxicities }];
   const look: ReviewLook = { analysisId, lookNumber: row.look_number, cutoffDate: cutoffText(row.cutoff_date), counts };
   return armPosterior(parseStoredDesign(row.spec), arms, look, armId);
 }

@@ -52,11 +52,12 @@ async function lockWithPassword(page: Page, look: number) {
   void look;
 }
 
-async function expectRecorded(page: Page, role: string, want: { enrolled: number; evaluable: number; responders: number; toxicities?: number }) {
+async function expectRecorded(page: Page, role: string, want: { enrolled: number; evaluable: number; responders: number; treated?: number; toxicities?: number }) {
   const row = page.getByTestId(`recorded-${role}`);
   await expect(row.getByTestId("enrolled")).toHaveText(String(want.enrolled));
   await expect(row.getByTestId("evaluable")).toHaveText(String(want.evaluable));
   await expect(row.getByTestId("responders")).toHaveText(String(want.responders));
+  if (want.treated !== undefined) await expect(row.getByTestId("treated")).toHaveText(String(want.treated));
   if (want.toxicities !== undefined) await expect(row.getByTestId("toxicities")).toHaveText(String(want.toxicities));
 }
 
@@ -68,14 +69,14 @@ test("CRN-305 look 2 by hand: validation messages, then save and lock", async ({
   const cell = (arm: string, what: string) => form.getByLabel(`${arm}: ${what}`, { exact: true });
   // Impossible counts: responders above evaluable, evaluable above enrolled.
   await cell("TLM-417 + standard care", "enrolled").fill("41");
-  await cell("TLM-417 + standard care", "evaluable").fill("40");
+  await cell("TLM-417 + standard care", "evaluable for response").fill("40");
   await cell("TLM-417 + standard care", "responders").fill("45");
   await cell("Standard care", "enrolled").fill("38");
-  await cell("Standard care", "evaluable").fill("40");
+  await cell("Standard care", "evaluable for response").fill("40");
   await cell("Standard care", "responders").fill("12");
   await form.getByRole("button", { name: "Save counts" }).click();
-  await expect(form.getByText("Responders (45) cannot exceed evaluable (40).")).toBeVisible();
-  await expect(form.getByText("Evaluable (40) cannot exceed enrolled (38).")).toBeVisible();
+  await expect(form.getByText("Responders (45) cannot exceed evaluable for response (40).")).toBeVisible();
+  await expect(form.getByText("Evaluable for response (40) cannot exceed enrolled (38).")).toBeVisible();
   await expect(page.getByRole("table", { name: "Recorded counts" })).toHaveCount(0);
   // Corrected; what was typed stays in the inputs.
   await expect(cell("Standard care", "responders")).toHaveValue("12");
@@ -128,13 +129,14 @@ test("CRN-305 look 3 by CSV: a bad file gets a row-by-row report and writes noth
   await upload.getByRole("button", { name: "Check file" }).click();
   const problems = upload.getByRole("table", { name: "Problems in the file" });
   await expect(problems).toBeVisible();
-  await expect(upload.getByText("4 problems in 5 patient rows")).toBeVisible();
+  await expect(upload.getByText("3 problems in 5 patient rows")).toBeVisible();
   const rows = problems.getByRole("row");
-  await expect(rows).toHaveCount(5);
+  await expect(rows).toHaveCount(4);
   await expect(rows.nth(1).getByRole("cell")).toHaveText(["3", "arm", /Unknown arm "Placebo"/]);
   await expect(rows.nth(2).getByRole("cell")).toHaveText(["4", "response", /not evaluable/]);
-  await expect(rows.nth(3).getByRole("cell")).toHaveText(["5", "enrolment_date", /after the data cut-off 2026-11-25/]);
-  await expect(rows.nth(4).getByRole("cell")).toHaveText(["6", "subject_id", /already appears on line 2/]);
+  await expect(rows.nth(3).getByRole("cell")).toHaveText(["6", "subject_id", /already appears on line 2/]);
+  // Line 5 was enrolled after the cut-off: left out of the look and listed, not a problem.
+  await expect(upload.getByRole("table", { name: "Rows left out (enrolled after the cut-off)" }).getByRole("row").nth(1).getByRole("cell")).toHaveText(["5", "B-004", "2026-12-01"]);
   await expect(upload.getByRole("button", { name: /Write/ })).toHaveCount(0);
   // A file that is not CSV, and one over the size limit (refused in the browser before upload).
   await upload.getByLabel("Patient CSV file").setInputFiles({ name: "scan.csv", mimeType: "text/csv", buffer: Buffer.from([0x89, 0x50, 0x4e, 0x47, 0, 0, 0, 13, 0x49, 0x48]) });
@@ -148,22 +150,32 @@ test("CRN-305 look 3 by CSV: a bad file gets a row-by-row report and writes noth
   await expect(page.getByTestId("look-enrolled-total")).toHaveText("—");
 
   const { text, want } = patientFile(55, "2026-11-25");
-  await upload.getByLabel("Patient CSV file").setInputFiles({ name: "look3.csv", mimeType: "text/csv", buffer: Buffer.from(text) });
+  // Two patients enrolled after the cut-off: left out of the look and listed (finding 6).
+  const withLate = text + "L-001,control,2026-11-26,yes,yes,\nL-002,experimental,2026-12-03,no,,\n";
+  await upload.getByLabel("Patient CSV file").setInputFiles({ name: "look3.csv", mimeType: "text/csv", buffer: Buffer.from(withLate) });
   await upload.getByRole("button", { name: "Check file" }).click();
   const derived = upload.getByRole("table", { name: "Counts derived from the file" });
   await expect(derived).toBeVisible();
   const w = (c: { enrolled: number; evaluable: number; responders: number }) => [String(c.enrolled), String(c.evaluable), String(c.responders)];
   await expect(derived.getByRole("row").nth(1).getByRole("cell")).toHaveText(["TLM-417 + standard care", ...w(want.experimental)]);
   await expect(derived.getByRole("row").nth(2).getByRole("cell")).toHaveText(["Standard care", ...w(want.control)]);
+  const left = upload.getByRole("table", { name: "Rows left out (enrolled after the cut-off)" });
+  await expect(left.getByRole("row")).toHaveCount(3);
+  await expect(left.getByRole("row").nth(1).getByRole("cell")).toHaveText(["112", "L-001", "2026-11-26"]);
+  await expect(left.getByRole("row").nth(2).getByRole("cell")).toHaveText(["113", "L-002", "2026-12-03"]);
   // Preview only: still nothing recorded.
   await expect(page.getByRole("table", { name: "Recorded counts" })).toHaveCount(0);
   await upload.getByRole("button", { name: "Write 110 patient rows" }).click();
-  await expect(upload.getByText(/110 patient rows written/)).toBeVisible();
+  await expect(upload.getByText(/110 patient rows written; .* 2 rows enrolled after the cut-off left out\./)).toBeVisible();
   await expectRecorded(page, "experimental", want.experimental);
   await expectRecorded(page, "control", want.control);
   await expect(page.getByTestId("look-enrolled-total")).toHaveText(String(want.experimental.enrolled + want.control.enrolled));
   const grid = page.getByRole("region", { name: "Patient-level rows" });
   await expect(grid.getByText("E-001", { exact: true })).toBeVisible();
+  // A patient-level look: its counts come from the rows, so the hand-entry form gives way to the switch (finding 6).
+  await expect(page.getByTestId("data-level")).toHaveText("Patient-level: derived from 110 uploaded patient rows.");
+  await expect(page.getByRole("form", { name: "Enter counts by hand" })).toHaveCount(0);
+  await expect(page.getByRole("form", { name: "Switch to count-level entry" })).toBeVisible();
   await lockWithPassword(page, 3);
   await expectRecorded(page, "control", want.control);
 
@@ -182,17 +194,18 @@ test("CRN-201 look 3 by hand with toxicities (safety rule), locked; look 4 refus
   const form = page.getByRole("form", { name: "Enter counts by hand" });
   const arm = "TLM-417 400 mg";
   await form.getByLabel(`${arm}: enrolled`).fill("31");
-  await form.getByLabel(`${arm}: evaluable`).fill("30");
+  await form.getByLabel(`${arm}: evaluable for response`).fill("30");
   await form.getByLabel(`${arm}: responders`).fill("10");
+  await form.getByLabel(`${arm}: treated (evaluable for toxicity)`).fill("31");
   await form.getByLabel(`${arm}: with toxicity`).fill("");
   await form.getByRole("button", { name: "Save counts" }).click();
   await expect(form.getByText("Enter the number with toxicity as a whole number.")).toBeVisible();
   await form.getByLabel(`${arm}: with toxicity`).fill("4");
   await form.getByRole("button", { name: "Save counts" }).click();
   await expect(page.getByText("Counts saved (31 enrolled in total).")).toBeVisible();
-  await expectRecorded(page, "single", { enrolled: 31, evaluable: 30, responders: 10, toxicities: 4 });
+  await expectRecorded(page, "single", { enrolled: 31, evaluable: 30, responders: 10, treated: 31, toxicities: 4 });
   await lockWithPassword(page, 3);
-  await expectRecorded(page, "single", { enrolled: 31, evaluable: 30, responders: 10, toxicities: 4 });
+  await expectRecorded(page, "single", { enrolled: 31, evaluable: 30, responders: 10, treated: 31, toxicities: 4 });
 
   // Look 4: a CSV without the toxicity column is refused and nothing is written.
   await page.goto(`${base}/analyses`);
@@ -260,7 +273,7 @@ test("the upload API refuses a 50 MB body early with 413, and a stale save with 
   expect((await big.json()).error).toMatch(/limit is 5 MB/);
   const armId = (await (await page.request.get(`/api${base}/analyses/${look4.id}`)).json()).arms[0].id as number;
   const stale = await page.request.put(`/api${base}/analyses/${look4.id}/counts`, {
-    data: { rowVersion: look4.rowVersion - 1, cutoffDate: "2026-11-30", counts: [{ armId, enrolled: 1, evaluable: 1, responders: 0, toxicities: 0 }] },
+    data: { rowVersion: look4.rowVersion - 1, cutoffDate: "2026-11-30", counts: [{ armId, enrolled: 1, treated: 1, evaluable: 1, responders: 0, toxicities: 0 }] },
   });
   expect(stale.status()).toBe(409);
   expect((await stale.json()).error).toMatch(/Someone else saved look 4/);

@@ -62,8 +62,8 @@ beforeAll(async () => {
     arms = await tx("arms").where({ trial_id: trialId }).orderBy("id");
     const byRole = (r: string) => arms.find((a) => a.arm_role === r)!.id;
     await replaceArmCounts(tx, looks[0].id, [
-      { armId: byRole("experimental"), enrolled: 11, evaluable: 10, responders: 6, toxicities: null },
-      { armId: byRole("control"), enrolled: 10, evaluable: 9, responders: 2, toxicities: null },
+      { armId: byRole("experimental"), enrolled: 11, treated: null, evaluable: 10, responders: 6, toxicities: null },
+      { armId: byRole("control"), enrolled: 10, treated: null, evaluable: 9, responders: 2, toxicities: null },
     ]);
     await tx("analyses").where({ id: looks[0].id }).update({ status: "locked", cutoff_date: "2026-05-01", enrolled_total: 21, locked_at: new Date() });
     lockedLook = looks[0].id;

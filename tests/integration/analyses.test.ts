@@ -24,6 +24,9 @@ import {
   saveArmCounts,
 } from "@/app/trials/[trialId]/analyses/_lib/service";
 import { db, giveRole, killMidTransaction, makeTrial, makeUser, ownerKnex, resetDatabase } from "./support/db";
+import jstat from "jstat";
+import type { TrialRow } from "@/db/types";
+import { switchToCountLevel } from "@/app/trials/[trialId]/analyses/_lib/service";
 
 type Statistician = PublicUser & { password: string };
 let stat: Statistician;
@@ -191,9 +194,10 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
       lookNumber: 1,
       amendment: 0,
       cutoffDate: "2026-05-31",
-      counts: stored.map((c: { arm_id: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null }) => ({
+      counts: stored.map((c: { arm_id: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null }) => ({
         armId: c.arm_id,
         enrolled: c.enrolled,
+        treated: c.treated,
         evaluable: c.evaluable,
         responders: c.responders,
         toxicities: c.toxicities,
@@ -276,7 +280,7 @@ describe("patient-level upload", () => {
   const BAD: Array<[string, string, RegExp]> = [
     ["unknown arm", `${HEADER}\nP-01,placebo,2026-03-02,yes,yes,no\n`, /Unknown arm/],
     ["response on a non-evaluable patient", `${HEADER}\nP-01,single,2026-03-02,no,yes,no\n`, /not evaluable/],
-    ["a date after the cut-off", `${HEADER}\nP-01,single,2026-07-01,yes,yes,no\n`, /after the data cut-off/],
+    ["only rows after the cut-off", `${HEADER}\nP-01,single,2026-07-01,yes,yes,no\n`, /No patient in the file was enrolled on or before the data cut-off/],
     ["duplicate subject", `${HEADER}\nP-01,single,2026-03-02,yes,yes,no\nP-01,single,2026-03-03,yes,no,no\n`, /already appears on line 2/],
     ["missing column", "subject_id,arm,enrolment_date,evaluable,response\nP-01,single,2026-03-02,yes,yes\n", /"toxicity" is missing/],
     ["missing toxicity under a safety rule", `${HEADER}\nP-01,single,2026-03-02,yes,yes,\n`, /safety rule/],
@@ -312,14 +316,18 @@ describe("patient-level upload", () => {
   });
 
   it("a connection killed in the middle of an upload leaves nothing behind, and the error is surfaced", async () => {
+    // 1,000 patients need a design that allows them (counts above nMax are refused before any write).
+    const big = await trialWithLockedDesign({ ...SINGLE_ARM_DEMO_DESIGN, nMax: 1000, looks: { kind: "list", sizes: [1000] } }, "single");
+    const a1 = big.lookIds[0];
+    await openLookForEntry(stat, big.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
     const v = (await look(a1)).row_version;
     const before = { audits: await auditCount(), rows: await patientRows(a1), counts: await db("analysis_arm_counts").where({ analysis_id: a1 }), look: await look(a1) };
     const lines = [HEADER];
-    for (let i = 1; i <= 1200; i++) lines.push(`K-${String(i).padStart(4, "0")},single,2026-0${1 + (i % 6)}-1${i % 10},yes,${i % 3 ? "no" : "yes"},${i % 7 ? "no" : "yes"}`);
+    for (let i = 1; i <= 1000; i++) lines.push(`K-${String(i).padStart(4, "0")},single,2026-0${1 + (i % 6)}-1${i % 10},yes,${i % 3 ? "no" : "yes"},${i % 7 ? "no" : "yes"}`);
     // The upload inserts all its rows, then waits inside its transaction for the audit chain head.
     let peeked = -1;
     const err = await killMidTransaction(
-      () => confirmPatientUpload(stat, t.trialId, a1, enc(lines.join("\n")), { rowVersion: v }),
+      () => confirmPatientUpload(stat, big.trialId, a1, enc(lines.join("\n")), { rowVersion: v }),
       async (owner) => {
         // Mid-transaction: the rows are there, uncommitted (read uncommitted sees them).
         const peek = await owner.transaction(async (trx) => trx("patient_outcomes").where({ analysis_id: a1 }).where("subject_id", "like", "K-%").count({ n: "*" }).first(), {
@@ -328,7 +336,7 @@ describe("patient-level upload", () => {
         peeked = Number(peek?.n);
       },
     );
-    expect(peeked).toBe(1200);
+    expect(peeked).toBe(1000);
     expect(err, "the failure must reach the caller").toBeInstanceOf(HttpError);
     expect((err as HttpError).status).toBe(503);
     expect((err as HttpError).message).toMatch(/nothing was saved/);
@@ -343,6 +351,214 @@ describe("patient-level upload", () => {
   it("after the failure the same upload goes through", async () => {
     const v = (await look(a1)).row_version;
     await expectOneAuditRow("closed", "patient_data_uploaded", () => confirmPatientUpload(stat, t.trialId, a1, enc(good), { rowVersion: v }));
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
+// Issue 13, data entry side: each finding has its test, named after it.
+// ---------------------------------------------------------------------------------------------
+
+const { loadReview, loadReproducibilityRecord } = await import("@/lib/review/load-review");
+const trialRow = async (id: number): Promise<TrialRow> => db("trials").where({ id }).first();
+const single = (armId: number, c: { enrolled: number; treated: number; evaluable: number; responders: number; toxicities: number }) => [{ armId, ...c }];
+
+/** Opens look `i` at the cut-off, saves the counts and locks it; returns the look's id. */
+async function enterAndLock(t: Awaited<ReturnType<typeof trialWithLockedDesign>>, i: number, cutoffDate: string, counts: unknown[]) {
+  const id = t.lookIds[i];
+  await openLookForEntry(stat, t.trialId, id, { rowVersion: (await look(id)).row_version, cutoffDate });
+  await saveArmCounts(stat, t.trialId, id, { rowVersion: (await look(id)).row_version, cutoffDate, counts });
+  await lockAnalysis(stat, t.trialId, id, { rowVersion: (await look(id)).row_version, password: stat.password });
+  return id;
+}
+
+describe("finding 1: the safety denominator is the number treated (evaluable for toxicity)", () => {
+  it("8 with toxicity among 21 treated and 15 evaluable for response: the review uses 21 (P = 0.762, continue), not 15 (0.960, stop)", async () => {
+    const t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
+    const a1 = await enterAndLock(t, 0, "2026-06-30", single(t.arms[0].id, { enrolled: 21, treated: 21, evaluable: 15, responders: 4, toxicities: 8 }));
+    expect(await db("analysis_arm_counts").where({ analysis_id: a1 }).first()).toMatchObject({ enrolled: 21, treated: 21, evaluable: 15, toxicities: 8 });
+    const { review } = await loadReview(await trialRow(t.trialId), a1);
+    // The demo design's toxicity prior is Beta(0.6, 1.4) with qmax 0.3: posterior Beta(8.6, 14.4).
+    // jstat 1.9.6 (npm) as the independent Beta CDF (its continued fraction stops at 3e-7).
+    expect(Math.abs(review.safety!.probAboveLimit - (1 - jstat.jStat.beta.cdf(0.3, 8.6, 14.4)))).toBeLessThan(1e-6);
+    expect(Math.abs(1 - jstat.jStat.beta.cdf(0.3, 8.6, 8.4) - 0.9597)).toBeLessThan(1e-4); // what the 15 would have given
+    expect(review.safety!.probAboveLimit.toFixed(3)).toBe("0.762");
+    expect(review.safety!).toMatchObject({ treated: 21, toxicities: 8, crossed: false });
+    expect(review.decision.action).not.toBe("stop");
+    // The JSON record says which count is which.
+    const record = await loadReproducibilityRecord(await trialRow(t.trialId), a1);
+    expect(record.inputs.looks[0].counts[0]).toMatchObject({ enrolled: 21, treated: 21, evaluable: 15, responders: 4, toxicities: 8 });
+    expect(record.outputs.arms[0]).toMatchObject({ treated: 21, evaluable: 15 });
+  });
+
+  it("more toxicities than patients evaluable for response are accepted and the review computes", async () => {
+    const t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
+    const a1 = await enterAndLock(t, 0, "2026-06-30", single(t.arms[0].id, { enrolled: 12, treated: 12, evaluable: 3, responders: 1, toxicities: 9 }));
+    const { review } = await loadReview(await trialRow(t.trialId), a1);
+    expect(review.safety).toMatchObject({ treated: 12, toxicities: 9 });
+  });
+
+  it("toxicities above the number treated are refused (422) and write nothing", async () => {
+    const t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
+    const a1 = t.lookIds[0];
+    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    const err = await expectNothingWritten(a1, () =>
+      saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(t.arms[0].id, { enrolled: 21, treated: 7, evaluable: 15, responders: 4, toxicities: 8 }) }),
+    );
+    expect((err as ZodError).issues.map((i) => i.path.join("."))).toEqual(["counts.0.toxicities"]);
+  });
+});
+
+describe("finding 3: lock-time validation against the locked design and the neighbouring locked looks", () => {
+  let t: Awaited<ReturnType<typeof trialWithLockedDesign>>;
+  let arm: number;
+  beforeAll(async () => {
+    t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
+    arm = t.arms[0].id;
+  });
+
+  it("counts above the maximum sample size (nMax 40) are refused at save, with a message, and write nothing", async () => {
+    const a1 = t.lookIds[0];
+    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    const err = await expectNothingWritten(a1, () =>
+      saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(arm, { enrolled: 41, treated: 41, evaluable: 40, responders: 10, toxicities: 2 }) }),
+    );
+    expect((err as ZodError).issues[0].message).toMatch(/maximum sample size for an arm \(40\)/);
+    expect(errorResponse(err).status).toBe(422);
+  });
+
+  it("counts that break the design but were stored by other means are refused at lock (422) and nothing changes", async () => {
+    const a1 = t.lookIds[0];
+    // As if stored before this check existed: 41 enrolled, 41 evaluable, more than the design's 40.
+    await db("analysis_arm_counts").insert({ analysis_id: a1, arm_id: arm, enrolled: 41, treated: 41, evaluable: 41, responders: 10, toxicities: 2 });
+    const err = await expectNothingWritten(a1, () => lockAnalysis(stat, t.trialId, a1, { rowVersion: 2, password: stat.password }), 422);
+    expect((err as Error).message).toMatch(/^Look 1 was not locked: .*maximum sample size/);
+    expect(((err as HttpError).details as { issues: Array<{ path: string }> }).issues.map((i) => i.path)).toEqual(["counts.0.enrolled"]);
+    await db("analysis_arm_counts").where({ analysis_id: a1 }).delete();
+  });
+
+  it("the extreme data the checks allow (every count at nMax, and every count at 0) lock and the review computes without throwing", async () => {
+    const a1 = t.lookIds[0];
+    await saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(arm, { enrolled: 0, treated: 0, evaluable: 0, responders: 0, toxicities: 0 }) });
+    await lockAnalysis(stat, t.trialId, a1, { rowVersion: 3, password: stat.password });
+    const r0 = (await loadReview(await trialRow(t.trialId), a1)).review;
+    expect(r0.current).toMatchObject({ n: 0, treated: 0, toxicities: 0 });
+    const a2 = await enterAndLock(t, 1, "2026-09-30", single(arm, { enrolled: 40, treated: 40, evaluable: 40, responders: 40, toxicities: 40 }));
+    const r = (await loadReview(await trialRow(t.trialId), a2)).review;
+    expect(r.decision).toMatchObject({ action: "stop", stop: "safety" });
+    expect(r.history.map((h) => h.n)).toEqual([0, 40]);
+    // Two arms at nMaxPerArm (60) on both arms, responders at the extremes.
+    const two = await trialWithLockedDesign(TWO_ARM_DEMO_DESIGN, "two");
+    const c = (e: number, x: number) => ({ enrolled: e, treated: null, evaluable: e, responders: x, toxicities: null });
+    const b1 = await enterAndLock(two, 0, "2026-06-30", [
+      { armId: two.arms[0].id, ...c(60, 60) },
+      { armId: two.arms[1].id, ...c(60, 0) },
+    ]);
+    expect((await loadReview(await trialRow(two.trialId), b1)).review.current.evaluation.final).toBe(true);
+  });
+
+  it("cumulative counts may not fall below the previous locked look's (each field), and write nothing", async () => {
+    const fresh = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
+    const armId = fresh.arms[0].id;
+    await enterAndLock(fresh, 0, "2026-06-30", single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 4, toxicities: 2 }));
+    const a2 = fresh.lookIds[1];
+    await openLookForEntry(stat, fresh.trialId, a2, { rowVersion: 1, cutoffDate: "2026-09-30" });
+    const base = { enrolled: 22, treated: 21, evaluable: 20, responders: 6, toxicities: 3 };
+    for (const [field, value] of [
+      ["enrolled", 11],
+      ["treated", 10],
+      ["evaluable", 9],
+      ["responders", 3],
+      ["toxicities", 1],
+    ] as const) {
+      const bad = { ...base, [field]: value };
+      if (field === "enrolled") Object.assign(bad, { treated: 11, evaluable: 10 });
+      const err = await expectNothingWritten(a2, () => saveArmCounts(stat, fresh.trialId, a2, { rowVersion: 2, cutoffDate: "2026-09-30", counts: single(armId, bad) }), 422);
+      expect((err as Error).message).toMatch(/below the \d+ of locked look 1; counts are cumulative/);
+      expect(((err as HttpError).details as { issues: Array<{ path: string }> }).issues.map((i) => i.path)).toContain(`counts.0.${field}`);
+    }
+    // Equal counts are allowed (no new patient between the looks).
+    await saveArmCounts(stat, fresh.trialId, a2, { rowVersion: 2, cutoffDate: "2026-09-30", counts: single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 4, toxicities: 2 }) });
+  });
+
+  it("a reopened earlier look may not rise above the later locked look's counts, at save or at lock", async () => {
+    const fresh = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
+    const armId = fresh.arms[0].id;
+    const a1 = await enterAndLock(fresh, 0, "2026-06-30", single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 4, toxicities: 2 }));
+    await enterAndLock(fresh, 1, "2026-09-30", single(armId, { enrolled: 22, treated: 21, evaluable: 20, responders: 6, toxicities: 3 }));
+    await reopenAnalysis(stat, fresh.trialId, a1, { rowVersion: (await look(a1)).row_version, reason: "Site 2 recoded one responder after query." });
+    const v = (await look(a1)).row_version;
+    const err = await expectNothingWritten(
+      a1,
+      () => saveArmCounts(stat, fresh.trialId, a1, { rowVersion: v, cutoffDate: "2026-06-30", counts: single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 7, toxicities: 2 }) }),
+      422,
+    );
+    expect((err as Error).message).toMatch(/responders \(7\) is above the 6 of the later locked look 2/);
+  });
+});
+
+describe("finding 6: CSV rows dated after the cut-off are left out and reported", () => {
+  it("the preview lists them, confirm returns the same report, stores only the look's rows and audits the excluded lines", async () => {
+    const t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
+    const a1 = t.lookIds[0];
+    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    const text = [HEADER, "P-01,single,2026-03-02,yes,yes,no", "P-02,single,2026-07-01,yes,no,yes", "P-03,single,2026-06-30,no,,yes", "P-04,single,2026-08-15,yes,yes,no"].join("\n");
+    const want = {
+      count: 2,
+      cutoffDate: "2026-06-30",
+      rows: [
+        { line: 3, subjectId: "P-02", enrolmentDate: "2026-07-01" },
+        { line: 5, subjectId: "P-04", enrolmentDate: "2026-08-15" },
+      ],
+    };
+    const p = await previewPatientUpload(t.trialId, a1, enc(text));
+    expect(p).toMatchObject({ ok: true, rowCount: 4, includedRows: 2, excluded: want, counts: [{ enrolled: 2, treated: 2, evaluable: 1, responders: 1, toxicities: 1 }] });
+    const out = await expectOneAuditRow("closed", "patient_data_uploaded", () => confirmPatientUpload(stat, t.trialId, a1, enc(text), { rowVersion: 2 }));
+    expect(out).toMatchObject({ patientRows: 2, enrolledTotal: 2, excluded: want });
+    expect((await db("patient_outcomes").where({ analysis_id: a1 }).orderBy("source_line")).map((r: { subject_id: string }) => r.subject_id)).toEqual(["P-01", "P-03"]);
+    expect(JSON.parse((await lastAudit()).new_values!).excludedAfterCutoff).toEqual({ count: 2, lines: [3, 5] });
+  });
+});
+
+describe("finding 6: a look is patient-level or count-level, never both", () => {
+  let t: Awaited<ReturnType<typeof trialWithLockedDesign>>;
+  let a1: number;
+  const file = [HEADER, "P-01,single,2026-03-02,yes,yes,no", "P-02,single,2026-03-09,yes,no,yes"].join("\n");
+  beforeAll(async () => {
+    t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
+    a1 = t.lookIds[0];
+    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    await confirmPatientUpload(stat, t.trialId, a1, enc(file), { rowVersion: 2 });
+  });
+
+  it("hand-editing the counts of a patient-level look is refused (409) with how to switch, and writes nothing", async () => {
+    const err = await expectNothingWritten(
+      a1,
+      () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 3, cutoffDate: "2026-06-30", counts: single(t.arms[0].id, { enrolled: 3, treated: 3, evaluable: 2, responders: 2, toxicities: 1 }) }),
+      409,
+    );
+    expect((err as Error).message).toMatch(/patient-level: its counts are derived from its 2 uploaded patient rows.*switch the look to count-level entry/);
+  });
+
+  it("the switch needs a reason; with one it removes the patient rows, keeps the counts and records a closed audit entry", async () => {
+    const err = await expectNothingWritten(a1, () => switchToCountLevel(stat, t.trialId, a1, { rowVersion: 3, reason: "fix" }));
+    expect(err).toBeInstanceOf(ZodError);
+    const counts = await db("analysis_arm_counts").where({ analysis_id: a1 });
+    const reason = "The data-capture export for site 4 is late; counts confirmed by phone.";
+    const out = await expectOneAuditRow("closed", "switched_to_count_level", () => switchToCountLevel(stat, t.trialId, a1, { rowVersion: 3, reason }));
+    expect(out).toEqual({ rowVersion: 4, dataLevel: "count", removedPatientRows: 2 });
+    expect(await patientRows(a1)).toBe(0);
+    expect(await db("analysis_arm_counts").where({ analysis_id: a1 })).toEqual(counts);
+    const row = await lastAudit();
+    expect(row.reason).toBe(reason);
+    expect(JSON.parse(row.old_values!)).toMatchObject({ dataLevel: "patient", patientRows: 2 });
+  });
+
+  it("a count-level look takes typed counts; switching it again is a 409; an upload makes it patient-level again", async () => {
+    await saveArmCounts(stat, t.trialId, a1, { rowVersion: 4, cutoffDate: "2026-06-30", counts: single(t.arms[0].id, { enrolled: 3, treated: 3, evaluable: 2, responders: 2, toxicities: 1 }) });
+    await expectNothingWritten(a1, () => switchToCountLevel(stat, t.trialId, a1, { rowVersion: 5, reason: "Nothing to switch here at all." }), 409);
+    await confirmPatientUpload(stat, t.trialId, a1, enc(file), { rowVersion: 5 });
+    expect(await patientRows(a1)).toBe(2);
+    expect(await db("analysis_arm_counts").where({ analysis_id: a1 }).first()).toMatchObject({ enrolled: 2, evaluable: 2, responders: 1, treated: 2, toxicities: 1 });
   });
 });
 

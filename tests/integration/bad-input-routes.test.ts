@@ -25,6 +25,7 @@ import * as lookOpen from "@/app/api/trials/[trialId]/analyses/[analysisId]/open
 import * as lookCounts from "@/app/api/trials/[trialId]/analyses/[analysisId]/counts/route";
 import * as lookLock from "@/app/api/trials/[trialId]/analyses/[analysisId]/lock/route";
 import * as lookReopen from "@/app/api/trials/[trialId]/analyses/[analysisId]/reopen/route";
+import * as lookCountLevel from "@/app/api/trials/[trialId]/analyses/[analysisId]/count-level/route";
 import * as uploadPreview from "@/app/api/trials/[trialId]/analyses/[analysisId]/upload/preview/route";
 import * as uploadConfirm from "@/app/api/trials/[trialId]/analyses/[analysisId]/upload/confirm/route";
 import * as recommendations from "@/app/api/trials/[trialId]/analyses/[analysisId]/recommendations/route";
@@ -111,6 +112,7 @@ describe("write route handlers with generated payloads", () => {
     await checkRoute("PUT counts", lookCounts.PUT as Handler, "PUT", look("look3"), ["rowVersion", "cutoffDate", "counts", "reason"], stat);
     await checkRoute("POST lock look", lookLock.POST as Handler, "POST", look("look3"), ["rowVersion", "password"], stat);
     await checkRoute("POST reopen look", lookReopen.POST as Handler, "POST", look("look2"), ["rowVersion", "reason"], stat);
+    await checkRoute("POST switch to count-level", lookCountLevel.POST as Handler, "POST", look("look3"), ["rowVersion", "reason"], stat);
     await checkRoute("POST upload preview", uploadPreview.POST as Handler, "POST", look("look3"), ["subject_id", "arm"], stat, "text/csv");
     await checkRoute("POST upload confirm", uploadConfirm.POST as Handler, "POST", look("look3"), ["subject_id", "arm"], stat, "text/csv");
   }, 900_000);

@@ -224,9 +224,9 @@ describe("amendments", () => {
     const [l1, l2] = await db("analyses").where({ trial_id: trialId }).orderBy("look_number");
     const arm = await db("arms").where({ trial_id: trialId }).first();
     // Look 1 locked under version 1; look 2 open for entry with counts already saved.
-    await replaceArmCounts(db as never, l1.id, [{ armId: arm.id, enrolled: 11, evaluable: 10, responders: 4, toxicities: 0 }]);
+    await replaceArmCounts(db as never, l1.id, [{ armId: arm.id, enrolled: 11, treated: 11, evaluable: 10, responders: 4, toxicities: 0 }]);
     await db("analyses").where({ id: l1.id }).update({ status: "locked", cutoff_date: "2026-03-01", enrolled_total: 11, locked_at: new Date() });
-    await replaceArmCounts(db as never, l2.id, [{ armId: arm.id, enrolled: 22, evaluable: 21, responders: 7, toxicities: 1 }]);
+    await replaceArmCounts(db as never, l2.id, [{ armId: arm.id, enrolled: 22, treated: 22, evaluable: 21, responders: 7, toxicities: 1 }]);
     await db("analyses").where({ id: l2.id }).update({ status: "open", cutoff_date: "2026-05-01", enrolled_total: 22 });
 
     const amendment = await amendDesign(access, d.id, "Stricter futility threshold agreed with the DMC");

@@ -53,7 +53,7 @@ async function setUpTrial(owner: PublicUser, lockFirst: boolean): Promise<{ id: 
     const rows = await tx("analyses").where({ trial_id: id }).orderBy("look_number");
     if (lockFirst) {
       const arm = await tx("arms").where({ trial_id: id }).first();
-      await replaceArmCounts(tx, rows[0].id, [{ armId: arm.id, enrolled: 10, evaluable: 10, responders: 4, toxicities: null }]);
+      await replaceArmCounts(tx, rows[0].id, [{ armId: arm.id, enrolled: 10, treated: null, evaluable: 10, responders: 4, toxicities: null }]);
       await tx("analyses").where({ id: rows[0].id }).update({ status: "locked", cutoff_date: "2026-05-01", enrolled_total: 10, locked_at: new Date() });
     }
     return rows.map((r: { id: number }) => r.id);

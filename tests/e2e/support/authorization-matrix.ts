@@ -75,6 +75,14 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
     body: { decision: "stop_efficacy", rationale: "Matrix probe: must be refused for this role.", password: "not-the-password" },
     expect: { admin: 403, statistician: 403, dmc: null, sponsor: 403, coordinator: 403, anonymous: 401 },
   },
+  // The switch to count-level entry: the statistician reaches the service, which refuses it on a locked look (409, nothing changes).
+  {
+    method: "POST",
+    path: "/api/trials/{trial}/analyses/{analysis}/count-level",
+    kind: "api",
+    body: { rowVersion: 1, reason: "Matrix probe: must change nothing for any role." },
+    expect: { admin: 403, statistician: 409, dmc: 403, sponsor: 403, coordinator: 403, anonymous: 401 },
+  },
 ];
 
 /**

@@ -11,7 +11,7 @@ import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
 import { Banner } from "@/components/ui/banner";
 import { STATUS_TONES } from "@/components/analyses/status";
-import { CountsForm, LockForm, OpenLookForm, ReopenForm } from "@/components/analyses/look-forms";
+import { CountsForm, LockForm, OpenLookForm, ReopenForm, SwitchToCountLevelForm } from "@/components/analyses/look-forms";
 import { CsvUpload } from "@/components/analyses/csv-upload";
 import { PatientGrid } from "@/components/analyses/patient-grid";
 import { loadLookContext, type LookContext } from "../_lib/service";
@@ -38,7 +38,8 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
     fetchPatientOutcomeGrid(a.id),
     a.status === "locked" || a.status === "reviewed" ? fetchLockSignature(a.id) : Promise.resolve(undefined),
   ]);
-  const countValues = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities }));
+  const countValues = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities }));
+  const patientLevel = patients.length > 0;
   const arms = look.arms.map((x) => ({ id: x.id, label: x.label, role: x.arm_role }));
   return (
     <div className="flex flex-col gap-4">
@@ -78,9 +79,10 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
               <tr>
                 <th scope="col">Arm</th>
                 <th scope="col">Enrolled</th>
-                <th scope="col">Evaluable</th>
+                <th scope="col">Evaluable for response</th>
                 <th scope="col">Responders</th>
                 <th scope="col">Observed response rate</th>
+                {look.safetyRule ? <th scope="col">Treated (evaluable for toxicity)</th> : null}
                 {look.safetyRule ? <th scope="col">With toxicity</th> : null}
               </tr>
             </thead>
@@ -94,13 +96,16 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
                     <td data-testid="evaluable">{c?.evaluable ?? "—"}</td>
                     <td data-testid="responders">{c?.responders ?? "—"}</td>
                     <td>{c && c.evaluable > 0 ? formatRate(c.responders / c.evaluable) : "—"}</td>
+                    {look.safetyRule ? <td data-testid="treated">{c?.treated ?? "—"}</td> : null}
                     {look.safetyRule ? <td data-testid="toxicities">{c?.toxicities ?? "—"}</td> : null}
                   </tr>
                 );
               })}
             </tbody>
           </table>
-          {patients.length ? <p className="mt-2 text-xs text-stone-500">Derived from {patients.length} uploaded patient rows, or entered by hand afterwards (see the audit trail).</p> : null}
+          <p className="mt-2 text-xs text-stone-500" data-testid="data-level">
+            {patientLevel ? `Patient-level: derived from ${patients.length} uploaded patient rows.` : "Count-level: entered by hand."}
+          </p>
         </Card>
       ) : null}
 
@@ -113,19 +118,26 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
       {a.status === "open" ? (
         <>
           {a.amendment_count > 0 ? <Banner tone="warning" title={`Amendment ${a.amendment_count}`}>This look was reopened for a correction. Changes are recorded with their old values in the audit trail.</Banner> : null}
-          <Card title="Enter counts by hand">
-            <CountsForm
-              trialId={trial.id}
-              analysisId={a.id}
-              rowVersion={a.row_version}
-              cutoffDate={a.cutoff_date}
-              arms={arms}
-              safetyRule={look.safetyRule}
-              counts={countValues}
-              amendment={a.amendment_count}
-            />
-          </Card>
-          <Card title="Or upload patient-level data (CSV)">
+          {patientLevel ? (
+            <Card title="Counts come from the patient rows">
+              <SwitchToCountLevelForm trialId={trial.id} analysisId={a.id} rowVersion={a.row_version} patientRows={patients.length} />
+            </Card>
+          ) : (
+            <Card title="Enter counts by hand">
+              <CountsForm
+                trialId={trial.id}
+                analysisId={a.id}
+                rowVersion={a.row_version}
+                cutoffDate={a.cutoff_date}
+                arms={arms}
+                safetyRule={look.safetyRule}
+                counts={countValues}
+                amendment={a.amendment_count}
+                maxPerArm={look.maxPerArm}
+              />
+            </Card>
+          )}
+          <Card title={patientLevel ? "Upload a corrected patient-level file (CSV)" : "Or upload patient-level data (CSV)"}>
             <CsvUpload trialId={trial.id} analysisId={a.id} rowVersion={a.row_version} safetyRule={look.safetyRule} cutoffDate={a.cutoff_date} />
           </Card>
           <Card title="Lock this look">

@@ -28,6 +28,7 @@ export function patientJson(p: PatientOutcomeGridRow) {
     enrolmentDate: p.enrolled_on,
     evaluable: Boolean(p.evaluable),
     responder: flag(p.responder),
+    treated: flag(p.treated),
     toxicity: flag(p.toxicity),
   };
 }

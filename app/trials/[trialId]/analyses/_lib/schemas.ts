@@ -35,30 +35,52 @@ function cap(s: string) {
   return s.charAt(0).toUpperCase() + s.slice(1);
 }
 
-export type CountsContext = { armIds: number[]; safetyRule: boolean };
+/**
+ * What the counts are checked against: the trial's arms, whether the locked design has a safety
+ * rule, and its maximum sample size (per arm for two arms; null when the caller has no design).
+ */
+export type CountsContext = { armIds: number[]; safetyRule: boolean; maxPerArm?: number | null };
+
+const absentWithoutSafety = (what: string) =>
+  z.preprocess((v) => (v === "" || v === undefined ? null : v), z.null({ message: `This design has no safety rule, so ${what} are not recorded.` }));
+
+/** One arm's counts, for the stored-row check at lock as well as for input. */
+export type ArmCountsShape = { enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
 
 /**
- * Counts for every arm of the trial, once each, with responders <= evaluable <= enrolled and
- * toxicities <= enrolled; toxicities are required exactly when the design has a safety rule.
+ * The within-look rules, shared by input validation and the lock-time check: responders <=
+ * evaluable (for response) <= enrolled <= maximum sample size, toxicities <= treated (evaluable
+ * for toxicity) <= enrolled. Each problem has the path of the field a user would correct.
+ */
+export function withinLookProblems(c: ArmCountsShape, maxPerArm: number | null | undefined): Array<{ path: string; message: string }> {
+  const out: Array<{ path: string; message: string }> = [];
+  if (maxPerArm !== null && maxPerArm !== undefined && c.enrolled > maxPerArm)
+    out.push({ path: "enrolled", message: `Enrolled (${c.enrolled}) is above the locked design's maximum sample size for an arm (${maxPerArm}), which the design cannot analyse. If the trial has over-enrolled, amend the design first.` });
+  if (c.evaluable > c.enrolled) out.push({ path: "evaluable", message: `Evaluable for response (${c.evaluable}) cannot exceed enrolled (${c.enrolled}).` });
+  if (c.responders > c.evaluable) out.push({ path: "responders", message: `Responders (${c.responders}) cannot exceed evaluable for response (${c.evaluable}).` });
+  if (c.treated !== null && c.treated > c.enrolled) out.push({ path: "treated", message: `Treated (${c.treated}) cannot exceed enrolled (${c.enrolled}).` });
+  if (c.toxicities !== null && c.treated !== null && c.toxicities > c.treated)
+    out.push({ path: "toxicities", message: `Patients with toxicity (${c.toxicities}) cannot exceed treated, the patients evaluable for toxicity (${c.treated}).` });
+  return out;
+}
+
+/**
+ * Counts for every arm of the trial, once each, meeting withinLookProblems; treated and
+ * toxicities are required exactly when the design has a safety rule.
  */
 export function armCountsSchema(ctx: CountsContext) {
   const arm = z
     .object({
       armId: z.coerce.number().int().positive(),
       enrolled: countCell("the number enrolled"),
-      evaluable: countCell("the number evaluable"),
+      treated: ctx.safetyRule ? countCell("the number treated (evaluable for toxicity)") : absentWithoutSafety("treated counts"),
+      evaluable: countCell("the number evaluable for response"),
       responders: countCell("the number of responders"),
-      toxicities: ctx.safetyRule
-        ? countCell("the number with toxicity")
-        : z.preprocess((v) => (v === "" || v === undefined ? null : v), z.null({ message: "This design has no safety rule, so toxicities are not recorded." })),
+      toxicities: ctx.safetyRule ? countCell("the number with toxicity") : absentWithoutSafety("toxicities"),
     })
     .superRefine((c, z2) => {
-      if (c.evaluable > c.enrolled)
-        z2.addIssue({ code: "custom", path: ["evaluable"], message: `Evaluable (${c.evaluable}) cannot exceed enrolled (${c.enrolled}).` });
-      if (c.responders > c.evaluable)
-        z2.addIssue({ code: "custom", path: ["responders"], message: `Responders (${c.responders}) cannot exceed evaluable (${c.evaluable}).` });
-      if (typeof c.toxicities === "number" && c.toxicities > c.enrolled)
-        z2.addIssue({ code: "custom", path: ["toxicities"], message: `Patients with toxicity (${c.toxicities}) cannot exceed enrolled (${c.enrolled}).` });
+      for (const p of withinLookProblems({ ...c, treated: c.treated ?? null, toxicities: c.toxicities ?? null }, ctx.maxPerArm))
+        z2.addIssue({ code: "custom", path: [p.path], message: p.message });
     });
   return z.array(arm).superRefine((rows, z2) => {
     const ids = rows.map((r) => r.armId).sort((a, b) => a - b);
@@ -94,6 +116,15 @@ export const reopenAnalysisSchema = z.object({
     .max(1000, "The reason can be at most 1000 characters."),
   /** Needed only to reopen a reviewed look: that correction is signed (the password is asked again). */
   password: z.string().min(1, "Enter your password to sign.").max(200, "That password is too long.").optional(),
+});
+
+export const switchToCountLevelSchema = z.object({
+  rowVersion: rowVersionSchema,
+  reason: z
+    .string({ message: "Give the reason for switching to count-level entry." })
+    .trim()
+    .min(10, "Give the reason for switching to count-level entry (at least 10 characters).")
+    .max(1000, "The reason can be at most 1000 characters."),
 });
 
 export const uploadConfirmQuerySchema = z.object({

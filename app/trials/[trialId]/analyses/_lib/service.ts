@@ -5,13 +5,30 @@ import "server-only";
  * checks the row_version the editor loaded (a stale version is a 409, never a lost update), and
  * appends exactly one audit row: "closed" when counts or outcomes are in it, "open" for status.
  *
+ * A look is either patient-level (it has patient rows; its counts are always derived from them) or
+ * count-level (no patient rows; counts typed in). Uploading a file makes it patient-level; only an
+ * explicit switch with a reason (switchToCountLevel) removes the rows so counts can be typed, so
+ * the patient rows and the counts can never disagree.
+ *
+ * Counts are checked against the locked design and the neighbouring locked looks when they are
+ * saved, uploaded and again when the look is locked (countsProblems), so a locked look always holds
+ * data the review can analyse.
+ *
  * Callers (route handlers, tests) have already authorized the actor with enterData.
  */
 import { createHash } from "node:crypto";
 import { db, writeTransaction, type Tx } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { fetchAnalysisForUpdate, fetchNeighbourCutoffs, updateAnalysisOpenFields, type AnalysisLockedRow } from "@/db/queries/analyses";
-import { fetchArmCounts, replaceArmCounts, replacePatientOutcomes, countPatientOutcomes, type ArmCountsInput } from "@/db/queries/closed";
+import {
+  countPatientOutcomes,
+  deletePatientOutcomes,
+  fetchArmCounts,
+  fetchNeighbourLockedCounts,
+  replaceArmCounts,
+  replacePatientOutcomes,
+  type ArmCountsInput,
+} from "@/db/queries/closed";
 import { fetchAnalysisOpen } from "@/db/queries/open-status";
 import { fetchArms } from "@/db/queries/trials";
 import { fetchDesign } from "@/db/queries/designs";
@@ -20,16 +37,72 @@ import type { AnalysisOpenRow, ArmRow, PublicUser } from "@/db/types";
 import { HttpError, conflict, notFoundError } from "@/lib/http";
 import { confirmSigner } from "@/lib/auth/signature";
 import { decodeCsvBytes, NotCsvError, parsePatientCsv, type ArmRef, type PatientCsvResult } from "@/lib/csv/patient-outcomes";
-import { lockAnalysisSchema, openLookSchema, reopenAnalysisSchema, saveCountsSchema } from "./schemas";
+import type { ExcludedRows } from "@/lib/csv/patient-outcomes";
+import { lockAnalysisSchema, openLookSchema, reopenAnalysisSchema, saveCountsSchema, switchToCountLevelSchema, withinLookProblems } from "./schemas";
 
-export type LookContext = { analysis: AnalysisOpenRow; arms: ArmRow[]; safetyRule: boolean };
+/** maxPerArm: the look's design's maximum sample size (nMax; per arm for two arms); null without a design. */
+export type LookContext = { analysis: AnalysisOpenRow; arms: ArmRow[]; safetyRule: boolean; maxPerArm: number | null };
 
-/** The look, its trial's arms and whether its design has a safety rule; 404 if not on this trial. */
+/** The look, its trial's arms and what its design allows; 404 if not on this trial. */
 export async function loadLookContext(trialId: number, analysisId: number, tx: Tx = db): Promise<LookContext> {
   const analysis = await fetchAnalysisOpen(analysisId, tx);
   if (!analysis || analysis.trial_id !== trialId) throw notFoundError("That look");
   const [arms, design] = await Promise.all([fetchArms(trialId, tx), fetchDesign(analysis.design_id, tx)]);
-  return { analysis, arms, safetyRule: !!design?.spec.safety };
+  const maxPerArm = !design ? null : design.spec.arms === "single" ? design.spec.nMax : design.spec.nMaxPerArm;
+  return { analysis, arms, safetyRule: !!design?.spec.safety, maxPerArm };
+}
+
+export type CountsProblem = { path: string; message: string };
+type NeighbourCounts = Awaited<ReturnType<typeof fetchNeighbourLockedCounts>>;
+
+const MONOTONE_FIELDS = [
+  ["enrolled", "enrolled"],
+  ["treated", "treated"],
+  ["evaluable", "evaluable for response"],
+  ["responders", "responders"],
+  ["toxicities", "with toxicity"],
+] as const;
+
+/**
+ * Everything that would stop the review from analysing these counts, or that cannot be true of
+ * cumulative data: the within-look rules against the design's maximum sample size, treated and
+ * toxicities present exactly when the design has a safety rule, and no count falling below the
+ * previous locked look's or rising above the next locked look's. Pure; paths are
+ * `counts.<index>.<field>` so a form can show each message beside its input.
+ */
+export function countsProblems(ctx: LookContext, counts: ArmCountsInput[], neighbours: NeighbourCounts): CountsProblem[] {
+  const out: CountsProblem[] = [];
+  const label = (armId: number) => ctx.arms.find((a) => a.id === armId)?.label ?? `arm ${armId}`;
+  counts.forEach((c, i) => {
+    const at = (field: string) => `counts.${i}.${field}`;
+    if (ctx.safetyRule && (c.treated === null || c.toxicities === null))
+      out.push({ path: at(c.treated === null ? "treated" : "toxicities"), message: `${label(c.armId)}: the design has a safety rule, so the number treated and the number with toxicity are both needed.` });
+    if (!ctx.safetyRule && (c.treated !== null || c.toxicities !== null))
+      out.push({ path: at("toxicities"), message: `${label(c.armId)}: the design has no safety rule, so treated and toxicity counts are not recorded.` });
+    for (const p of withinLookProblems(c, ctx.maxPerArm)) out.push({ path: at(p.path), message: `${label(c.armId)}: ${p.message}` });
+    for (const [side, n] of [
+      ["before", neighbours.before],
+      ["after", neighbours.after],
+    ] as const) {
+      const other = n?.counts.find((x) => x.arm_id === c.armId);
+      if (!n || !other) continue;
+      for (const [field, words] of MONOTONE_FIELDS) {
+        const mine = c[field];
+        const theirs = other[field];
+        if (mine === null || theirs === null) continue;
+        if (side === "before" && mine < theirs)
+          out.push({ path: at(field), message: `${label(c.armId)}: ${words} (${mine}) is below the ${theirs} of locked look ${n.lookNumber}; counts are cumulative and cannot fall from one look to the next.` });
+        if (side === "after" && mine > theirs)
+          out.push({ path: at(field), message: `${label(c.armId)}: ${words} (${mine}) is above the ${theirs} of the later locked look ${n.lookNumber}; counts are cumulative and cannot fall from one look to the next.` });
+      }
+    }
+  });
+  return out;
+}
+
+function refuseProblems(problems: CountsProblem[], what: string): void {
+  if (!problems.length) return;
+  throw new HttpError(422, `${what}: ${problems[0].message}${problems.length > 1 ? ` (and ${problems.length - 1} more problem${problems.length > 2 ? "s" : ""})` : ""}`, { issues: problems });
 }
 
 async function lockLook(tx: Tx, trialId: number, analysisId: number, rowVersion: number): Promise<AnalysisLockedRow> {
@@ -89,12 +162,25 @@ export async function openLookForEntry(actor: PublicUser, trialId: number, analy
 
 export async function saveArmCounts(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
   const ctx = await loadLookContext(trialId, analysisId);
-  const input = saveCountsSchema({ armIds: ctx.arms.map((x) => x.id), safetyRule: ctx.safetyRule }).parse(body);
-  const counts: ArmCountsInput[] = input.counts.map((c) => ({ armId: c.armId, enrolled: c.enrolled, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities ?? null }));
+  const input = saveCountsSchema({ armIds: ctx.arms.map((x) => x.id), safetyRule: ctx.safetyRule, maxPerArm: ctx.maxPerArm }).parse(body);
+  const counts: ArmCountsInput[] = input.counts.map((c) => ({
+    armId: c.armId,
+    enrolled: c.enrolled,
+    treated: c.treated ?? null,
+    evaluable: c.evaluable,
+    responders: c.responders,
+    toxicities: c.toxicities ?? null,
+  }));
   return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
     requireOpenForEntry(a);
+    const patientRows = await countPatientOutcomes(a.id, tx);
+    if (patientRows > 0)
+      throw conflict(
+        `Look ${a.look_number} is patient-level: its counts are derived from its ${patientRows} uploaded patient rows, so they cannot be typed in. Correct the file and upload it again, or switch the look to count-level entry (this removes the patient rows and needs a reason).`,
+      );
     await checkCutoffOrder(tx, a, input.cutoffDate);
+    refuseProblems(countsProblems(ctx, counts, await fetchNeighbourLockedCounts(trialId, a.look_number, tx)), "The counts were not saved");
     const old = await fetchArmCounts(a.id, tx);
     await replaceArmCounts(tx, a.id, counts);
     const enrolledTotal = counts.reduce((s, c) => s + c.enrolled, 0);
@@ -114,17 +200,25 @@ export async function saveArmCounts(actor: PublicUser, trialId: number, analysis
   });
 }
 
-function plainCounts(c: { arm_id: number; enrolled: number; evaluable: number; responders: number; toxicities: number | null }) {
-  return { armId: c.arm_id, enrolled: c.enrolled, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities };
+function plainCounts(c: { arm_id: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null }) {
+  return { armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities };
 }
 
 function armRefs(arms: ArmRow[]): ArmRef[] {
   return arms.map((a) => ({ id: a.id, label: a.label, role: a.arm_role }));
 }
 
+/** `excluded`: rows enrolled after the cut-off, left out of the look (not an error). */
 export type UploadPreview =
-  | { ok: true; rowCount: number; counts: Array<{ armId: number; armLabel: string; enrolled: number; evaluable: number; responders: number; toxicities: number | null }>; cutoffDate: string }
-  | { ok: false; rowCount: number; issueCount: number; issues: Array<{ line: number | null; column: string | null; message: string }> };
+  | {
+      ok: true;
+      rowCount: number;
+      includedRows: number;
+      counts: Array<{ armId: number; armLabel: string; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null }>;
+      cutoffDate: string;
+      excluded: ExcludedRows;
+    }
+  | { ok: false; rowCount: number; issueCount: number; issues: Array<{ line: number | null; column: string | null; message: string }>; excluded: ExcludedRows };
 
 /** Parses and validates a file against a look without writing anything. */
 export function checkUpload(ctx: LookContext, bytes: Uint8Array): { result: PatientCsvResult; preview: UploadPreview } {
@@ -139,18 +233,36 @@ export function checkUpload(ctx: LookContext, bytes: Uint8Array): { result: Pati
   try {
     result = parsePatientCsv(decodeCsvBytes(bytes), { arms: armRefs(ctx.arms), cutoffDate: ctx.analysis.cutoff_date, safetyRule: ctx.safetyRule });
   } catch (e) {
-    if (e instanceof NotCsvError) result = { ok: false, issues: [{ line: null, column: null, message: e.message }], issueCount: 1, rowCount: 0 };
+    if (e instanceof NotCsvError)
+      result = { ok: false, issues: [{ line: null, column: null, message: e.message }], issueCount: 1, rowCount: 0, excluded: { count: 0, cutoffDate: ctx.analysis.cutoff_date, rows: [] } };
     else throw e;
   }
   const label = (id: number) => ctx.arms.find((x) => x.id === id)?.label ?? String(id);
   const preview: UploadPreview = result.ok
-    ? { ok: true, rowCount: result.rowCount, cutoffDate: ctx.analysis.cutoff_date, counts: result.counts.map((c) => ({ ...c, armLabel: label(c.armId) })) }
-    : { ok: false, rowCount: result.rowCount, issueCount: result.issueCount, issues: result.issues };
+    ? {
+        ok: true,
+        rowCount: result.rowCount,
+        includedRows: result.rows.length,
+        cutoffDate: ctx.analysis.cutoff_date,
+        counts: result.counts.map((c) => ({ ...c, armLabel: label(c.armId) })),
+        excluded: result.excluded,
+      }
+    : { ok: false, rowCount: result.rowCount, issueCount: result.issueCount, issues: result.issues, excluded: result.excluded };
   return { result, preview };
 }
 
+/** The derived counts' problems against the design and the neighbouring locked looks, as file-level issues. */
+function withCountsProblems(preview: UploadPreview, problems: CountsProblem[]): UploadPreview {
+  if (!preview.ok || !problems.length) return preview;
+  const issues = problems.map((p) => ({ line: null, column: null, message: `Counts derived from the file: ${p.message}` }));
+  return { ok: false, rowCount: preview.rowCount, issueCount: issues.length, issues, excluded: preview.excluded };
+}
+
 export async function previewPatientUpload(trialId: number, analysisId: number, bytes: Uint8Array): Promise<UploadPreview> {
-  return checkUpload(await loadLookContext(trialId, analysisId), bytes).preview;
+  const ctx = await loadLookContext(trialId, analysisId);
+  const { result, preview } = checkUpload(ctx, bytes);
+  if (!result.ok) return preview;
+  return withCountsProblems(preview, countsProblems(ctx, result.counts, await fetchNeighbourLockedCounts(trialId, ctx.analysis.look_number)));
 }
 
 /**
@@ -168,11 +280,26 @@ export async function confirmPatientUpload(actor: PublicUser, trialId: number, a
     requireOpenForEntry(a);
     // The cut-off the file was checked against must still be the look's cut-off.
     if (a.cutoff_date !== ctx.analysis.cutoff_date) throw conflict("The look's data cut-off changed while the file was checked; reload and upload again.");
+    const problems = countsProblems(ctx, result.counts, await fetchNeighbourLockedCounts(trialId, a.look_number, tx));
+    if (problems.length)
+      throw new HttpError(422, `The file was not saved: ${problems[0].message}`, {
+        issues: problems.map((p) => ({ line: null, column: null, message: `Counts derived from the file: ${p.message}` })),
+        issueCount: problems.length,
+      });
     const [oldCounts, oldRows] = await Promise.all([fetchArmCounts(a.id, tx), countPatientOutcomes(a.id, tx)]);
     await replacePatientOutcomes(
       tx,
       a.id,
-      result.rows.map((r) => ({ subject_id: r.subjectId, arm_id: r.armId, enrolled_on: r.enrolledOn, evaluable: r.evaluable, responder: r.responder, toxicity: r.toxicity, source_line: r.sourceLine })),
+      result.rows.map((r) => ({
+        subject_id: r.subjectId,
+        arm_id: r.armId,
+        enrolled_on: r.enrolledOn,
+        evaluable: r.evaluable,
+        responder: r.responder,
+        treated: r.treated,
+        toxicity: r.toxicity,
+        source_line: r.sourceLine,
+      })),
     );
     await replaceArmCounts(tx, a.id, result.counts);
     const enrolledTotal = result.counts.reduce((s, c) => s + c.enrolled, 0);
@@ -185,9 +312,19 @@ export async function confirmPatientUpload(actor: PublicUser, trialId: number, a
       entityId: a.id,
       visibility: "closed",
       oldValues: oldCounts.length || oldRows ? { patientRows: oldRows, enrolledTotal: a.enrolled_total, counts: oldCounts.map(plainCounts) } : undefined,
-      newValues: { lookNumber: a.look_number, amendment: a.amendment_count, cutoffDate: a.cutoff_date, fileName: opts.fileName ?? null, fileSha256, patientRows: result.rows.length, enrolledTotal, counts: result.counts },
+      newValues: {
+        lookNumber: a.look_number,
+        amendment: a.amendment_count,
+        cutoffDate: a.cutoff_date,
+        fileName: opts.fileName ?? null,
+        fileSha256,
+        patientRows: result.rows.length,
+        excludedAfterCutoff: { count: result.excluded.count, lines: result.excluded.rows.map((r) => r.line) },
+        enrolledTotal,
+        counts: result.counts,
+      },
     });
-    return { rowVersion: a.row_version + 1, patientRows: result.rows.length, enrolledTotal, counts: preview.counts };
+    return { rowVersion: a.row_version + 1, patientRows: result.rows.length, enrolledTotal, counts: preview.counts, excluded: result.excluded };
   });
 }
 
@@ -202,6 +339,15 @@ export async function lockAnalysis(actor: PublicUser, trialId: number, analysisI
     const counts = await fetchArmCounts(a.id, tx);
     if (!a.cutoff_date || counts.length !== ctx.arms.length)
       throw conflict(`Look ${a.look_number} has no counts for every arm yet: enter or upload them before locking.`);
+    // Checked again here: the design or a neighbouring look may have changed since the counts were saved.
+    refuseProblems(
+      countsProblems(
+        ctx,
+        counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
+        await fetchNeighbourLockedCounts(trialId, a.look_number, tx),
+      ),
+      `Look ${a.look_number} was not locked`,
+    );
     const record = { trialId, analysisId: a.id, lookNumber: a.look_number, amendment: a.amendment_count, cutoffDate: a.cutoff_date, counts: counts.map(plainCounts) };
     const sig = await insertSignature(tx, {
       userId: actor.id,
@@ -284,5 +430,34 @@ export async function reopenAnalysis(actor: PublicUser, trialId: number, analysi
       reason: input.reason,
     });
     return { rowVersion: a.row_version + 1, amendment, reviewVersion, signatureId: sig?.id ?? null };
+  });
+}
+
+/**
+ * Makes a patient-level look count-level: removes its patient rows (the counts stay as they are, to
+ * be corrected by hand) and records the switch with its reason as a closed audit entry (the old
+ * row count and the counts they gave). Uploading a file later makes the look patient-level again.
+ */
+export async function switchToCountLevel(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
+  const input = switchToCountLevelSchema.parse(body);
+  return writeTransaction(async (tx) => {
+    const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
+    requireOpenForEntry(a);
+    const counts = await fetchArmCounts(a.id, tx);
+    const removed = await deletePatientOutcomes(tx, a.id);
+    if (removed === 0) throw conflict(`Look ${a.look_number} has no patient rows: it is already count-level, so its counts can be typed in.`);
+    await bump(tx, a, {});
+    await appendAudit(tx, {
+      ...actorFields(actor),
+      trialId,
+      action: "switched_to_count_level",
+      entityType: "analysis",
+      entityId: a.id,
+      visibility: "closed",
+      oldValues: { lookNumber: a.look_number, dataLevel: "patient", patientRows: removed, counts: counts.map(plainCounts) },
+      newValues: { lookNumber: a.look_number, amendment: a.amendment_count, dataLevel: "count", patientRows: 0 },
+      reason: input.reason,
+    });
+    return { rowVersion: a.row_version + 1, dataLevel: "count" as const, removedPatientRows: removed };
   });
 }

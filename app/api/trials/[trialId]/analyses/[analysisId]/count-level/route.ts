@@ -1,0 +1,17 @@
+import { NextResponse } from "next/server";
+import { requireTrialAccess } from "@/lib/auth";
+import { handle, readJson } from "@/lib/http";
+import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { switchToCountLevel } from "@/app/trials/[trialId]/analyses/_lib/service";
+
+export const dynamic = "force-dynamic";
+
+/**
+ * Switches a patient-level look to count-level entry: its patient rows are removed so its counts
+ * can be typed in. Body: { rowVersion, reason }. Recorded in the audit trail (closed).
+ */
+export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
+  const { user } = await requireTrialAccess(trialId, "enterData");
+  return NextResponse.json(await switchToCountLevel(user, trialId, analysisId, await readJson(req, 16 * 1024)));
+});
