@@ -1,0 +1,113 @@
+/**
+ * Attacks a blinded role could try with what Cairn shows it, written as tests: each must fail to
+ * learn anything closed. Every attack also runs once against a record where it must succeed
+ * (a positive control), so a test that cannot find anything is not mistaken for a defence.
+ */
+import { beforeAll, describe, expect, it, vi } from "vitest";
+import { createHash } from "node:crypto";
+import { insertDesignVersion, markDesignLocked } from "@/db/queries/designs";
+import { insertSignature, stableStringify } from "@/db/queries/signatures";
+import { createPlannedLooks } from "@/db/queries/analyses";
+import { SINGLE_ARM_DEMO_DESIGN } from "@/db/seeds/demo";
+import { expandLooks } from "@/lib/stats/looks";
+import { lockAnalysis, openLookForEntry, saveArmCounts } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { GET as auditGet } from "@/app/api/trials/[trialId]/audit/route";
+import { actAs, currentSession, routeContext } from "./support/as-user";
+import { db, giveRole, makeTrial, makeUser, resetDatabase } from "./support/db";
+import type { PublicUser } from "@/db/types";
+
+vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null) }));
+vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }));
+
+type Member = PublicUser & { password: string };
+let stat: Member;
+let sponsor: Member;
+let trialId: number;
+let analysisId: number;
+let armId: number;
+// The closed truth the attacker is after (invented numbers).
+const SECRET = { enrolled: 14, evaluable: 13, responders: 5, toxicities: 2 as number | null };
+
+const plainSha256 = (s: string) => createHash("sha256").update(s).digest("hex");
+const HEX64 = /\b[0-9a-f]{64}\b/g;
+
+/**
+ * The brute force: every count combination consistent with the open enrolled total, hashed the way
+ * the signed lock record is built, compared with every 64-hex value the blinded answer contains.
+ * Returns the counts it recovered, or null.
+ */
+function bruteForceCounts(visible: { trialId: number; analysisId: number; lookNumber: number; amendment: number; cutoffDate: string; enrolled: number; armId: number }, hashes: Set<string>) {
+  const e = visible.enrolled;
+  for (let ev = 0; ev <= e; ev++)
+    for (let r = 0; r <= ev; r++)
+      for (const tox of [null, ...Array.from({ length: ev + 1 }, (_, i) => i)]) {
+        const record = { trialId: visible.trialId, analysisId: visible.analysisId, lookNumber: visible.lookNumber, amendment: visible.amendment, cutoffDate: visible.cutoffDate, counts: [{ armId: visible.armId, enrolled: e, evaluable: ev, responders: r, toxicities: tox }] };
+        if (hashes.has(plainSha256(stableStringify(record)))) return { enrolled: e, evaluable: ev, responders: r, toxicities: tox };
+      }
+  return null;
+}
+
+async function auditAs(user: PublicUser) {
+  actAs(user.id);
+  const res = await auditGet(new Request(`http://localhost/api/trials/${trialId}/audit`), routeContext({ trialId: String(trialId) }));
+  expect(res.status).toBe(200);
+  return (await res.json()) as { openOnly: boolean; entries: Array<{ action: string; newValues: Record<string, unknown> | null }> };
+}
+
+beforeAll(async () => {
+  await resetDatabase();
+  stat = await makeUser({ name: "Test statistician" });
+  sponsor = await makeUser({ name: "Test sponsor" });
+  trialId = await makeTrial({ designType: "single" });
+  await giveRole(stat.id, trialId, "unblinded_statistician");
+  await giveRole(sponsor.id, trialId, "sponsor");
+  const design = SINGLE_ARM_DEMO_DESIGN;
+  await db.transaction(async (tx) => {
+    const d = await insertDesignVersion(tx, { trialId, spec: design, createdBy: stat.id, amendmentReason: null });
+    const sig = await insertSignature(tx, { userId: stat.id, signerName: stat.name, signerEmail: stat.email, meaning: "design approved", entityType: "design", entityId: d.id, record: design });
+    await markDesignLocked(tx, d.id, sig.id);
+    await createPlannedLooks(tx, trialId, d.id, expandLooks(design.looks, design.nMax));
+  });
+  armId = (await db("arms").where({ trial_id: trialId }).first()).id;
+  analysisId = (await db("analyses").where({ trial_id: trialId }).orderBy("look_number").first()).id;
+  await openLookForEntry(stat, trialId, analysisId, { rowVersion: 1, cutoffDate: "2026-05-31" });
+  await saveArmCounts(stat, trialId, analysisId, { rowVersion: 2, cutoffDate: "2026-05-31", counts: [{ armId, ...SECRET }] });
+  await lockAnalysis(stat, trialId, analysisId, { rowVersion: 3, password: stat.password });
+});
+
+describe("a blinded role cannot recover closed values from the audit trail", () => {
+  it("the brute force works on an unkeyed hash of the lock record (positive control)", () => {
+    const visible = { trialId, analysisId, lookNumber: 1, amendment: 0, cutoffDate: "2026-05-31", enrolled: SECRET.enrolled, armId };
+    const record = { ...visible, counts: [{ armId, ...SECRET }] } as Record<string, unknown>;
+    delete record.enrolled;
+    delete record.armId;
+    const started = Date.now();
+    expect(bruteForceCounts(visible, new Set([plainSha256(stableStringify(record))]))).toEqual(SECRET);
+    expect(Date.now() - started).toBeLessThan(10_000);
+  });
+
+  it("a sponsor cannot recover look counts from the audit trail by trying values", async () => {
+    const answer = await auditAs(sponsor);
+    expect(answer.openOnly).toBe(true);
+    const locked = answer.entries.find((e) => e.action === "analysis_locked");
+    expect(locked, "the open lock entry is shown to the sponsor").toBeTruthy();
+    const text = JSON.stringify(answer);
+    const hashes = new Set(text.match(HEX64) ?? []);
+    const visible = { trialId, analysisId, lookNumber: Number(locked!.newValues!.lookNumber), amendment: Number(locked!.newValues!.amendment), cutoffDate: String(locked!.newValues!.cutoffDate), enrolled: Number(locked!.newValues!.enrolledTotal), armId };
+    expect(visible.enrolled).toBe(SECRET.enrolled);
+    expect(bruteForceCounts(visible, hashes)).toBeNull();
+  });
+
+  it("a sponsor sees no hash of any audit row (row hash, previous hash, record hashes)", async () => {
+    const answer = await auditAs(sponsor);
+    const text = JSON.stringify(answer);
+    expect(text.match(HEX64) ?? []).toEqual([]);
+    for (const e of answer.entries) for (const k of Object.keys(e)) expect(k.toLowerCase()).not.toContain("hash");
+  });
+
+  it("the statistician (unblinded) still sees the row hashes (the stripping is per role)", async () => {
+    const answer = await auditAs(stat);
+    expect(answer.openOnly).toBe(false);
+    expect((JSON.stringify(answer).match(HEX64) ?? []).length).toBeGreaterThan(0);
+  });
+});
