@@ -23,6 +23,8 @@ import * as m22 from "./20261202002200_create_packets";
 import * as m23 from "./20261202002300_create_email_messages";
 import * as m24 from "./20261202002400_create_calibration_jobs";
 import * as m25 from "./20261202002500_create_sign_in_failures";
+import * as mBlind1 from "./20261203060100_audit_events_hash_scheme";
+import * as mBlind2 from "./20261203060200_signatures_hash_scheme";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
 const migrations: Array<[string, Migration]> = [
@@ -46,6 +48,8 @@ const migrations: Array<[string, Migration]> = [
   ["20261202002300_create_email_messages", m23],
   ["20261202002400_create_calibration_jobs", m24],
   ["20261202002500_create_sign_in_failures", m25],
+  ["20261203060100_audit_events_hash_scheme", mBlind1],
+  ["20261203060200_signatures_hash_scheme", mBlind2],
 ];
 
 export const migrationSource: Knex.MigrationSource<[string, Migration]> = {

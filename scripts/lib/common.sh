@@ -56,8 +56,17 @@ ensure_secrets() {
       echo "NEXTAUTH_SECRET=$(head -c 32 /dev/urandom | base64 | tr -dc 'A-Za-z0-9')"
     } >"$SECRETS_FILE"
   fi
+  # Secrets added later are appended to an existing file, so a checkout made before keeps its others.
+  # CAIRN_AUDIT_KEY keys the audit chain and signature hashes: it lives here, never in the database,
+  # so a database dump (scripts/backup) holds no key. Keep a copy of this file apart from the dumps.
+  if ! grep -q '^CAIRN_AUDIT_KEY=' "$SECRETS_FILE"; then
+    (umask 077; echo "CAIRN_AUDIT_KEY=$(head -c 48 /dev/urandom | base64 | tr -dc 'A-Za-z0-9')" >>"$SECRETS_FILE")
+  fi
+  if ! grep -q '^CAIRN_DB_BLIND_PASSWORD=' "$SECRETS_FILE"; then
+    (umask 077; echo "CAIRN_DB_BLIND_PASSWORD=$(head -c 18 /dev/urandom | base64 | tr -dc 'A-Za-z0-9')" >>"$SECRETS_FILE")
+  fi
   set -a; . "$SECRETS_FILE"; set +a
-  export CAIRN_DB_APP_USER=cairn_app CAIRN_DB_OWNER_USER=cairn_owner
+  export CAIRN_DB_APP_USER=cairn_app CAIRN_DB_OWNER_USER=cairn_owner CAIRN_DB_BLIND_USER=cairn_blind
 }
 
 mysql_root() { mariadb --no-defaults --socket="$MARIADB_SOCKET" -uroot "$@"; }
