@@ -11,7 +11,7 @@ import { fetchAnyRoleHeld } from "@/db/queries/memberships";
 import { fetchAccessFacts, type AccessFacts } from "@/db/queries/trials";
 import type { PublicUser, TrialRole, TrialRow } from "@/db/types";
 import { allows, isUnblinded, type Capability, type Principal } from "./permissions";
-import { HttpError, forbiddenError, notFoundError, unauthorized } from "@/lib/http";
+import { HttpError, forbiddenError, noteCallerClearance, notFoundError, unauthorized } from "@/lib/http";
 
 export { allows, isUnblinded, type Capability } from "./permissions";
 
@@ -69,7 +69,10 @@ function decideTrialAccess(user: PublicUser, { trial, roles }: AccessFacts, cap:
   const principal: Principal = { isAdmin: user.isAdmin, roles };
   if (roles.length === 0 && !user.isAdmin) throw notFoundError("That trial");
   if (!allows(principal, cap)) throw forbiddenError(describe(cap));
-  return { user, trial, roles, principal, unblinded: isUnblinded(principal) };
+  const unblinded = isUnblinded(principal);
+  // Error messages that may quote closed values reach only unblinded callers (lib/http).
+  noteCallerClearance(unblinded);
+  return { user, trial, roles, principal, unblinded };
 }
 
 /** For pages: the same checks, answered the way a browser expects (sign-in redirect, 404 page, 403 page). */

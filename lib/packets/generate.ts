@@ -63,7 +63,7 @@ export async function loadOpenPacketInput(trial: TrialRow, meetingId: number): P
  * The closed packet document, or the reason it cannot be made yet. CLOSED: arm-level counts are
  * read here; callers must not pass the document (or its hash) to a blinded user.
  */
-async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typeof loadOpenPacketInput>>, now: Date): Promise<PacketDocument | string> {
+async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typeof loadOpenPacketInput>>, now: Date, unblinded: boolean): Promise<PacketDocument | string> {
   const lock = await fetchAnalysisLockSigner(open.analysisId);
   const reviewed = open.looks.find((l) => l.lookNumber === open.meeting.lookNumber);
   if (!lock || !reviewed || (reviewed.status !== "locked" && reviewed.status !== "reviewed"))
@@ -104,7 +104,8 @@ async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typ
       lock: { signedBy: lock.signerName, lockedAt: lock.lockedAt ? new Date(lock.lockedAt) : null },
     });
   } catch (e) {
-    if (e instanceof StatsDomainError) return `the closed review cannot be computed from the stored data (${e.message})`;
+    // The engine's message quotes values from closed rows: only an unblinded caller reads it.
+    if (e instanceof StatsDomainError) return unblinded ? `the closed review cannot be computed from the stored data (${e.message})` : "the closed review cannot be computed from the stored data; an unblinded statistician can see why on the review screen";
     throw e;
   }
 }
@@ -140,11 +141,14 @@ async function storeIfChanged(trial: TrialRow, meetingId: number, doc: PacketDoc
   });
 }
 
-/** Generates (or confirms unchanged) the open and closed packets of a meeting. */
-export async function generateMeetingPackets(trial: TrialRow, meetingId: number, user: PublicUser, now = new Date()): Promise<GenerationResult> {
+/**
+ * Generates (or confirms unchanged) the open and closed packets of a meeting. `unblinded`: whether
+ * the caller may read closed values; a blinded caller (the default) gets no engine message.
+ */
+export async function generateMeetingPackets(trial: TrialRow, meetingId: number, user: PublicUser, now = new Date(), opts: { unblinded?: boolean } = {}): Promise<GenerationResult> {
   const open = await loadOpenPacketInput(trial, meetingId);
   const openResult = await storeIfChanged(trial, meetingId, buildOpenPacket(open), user, now);
-  const closedDoc = await buildClosedDocument(trial, open, now);
+  const closedDoc = await buildClosedDocument(trial, open, now, opts.unblinded === true);
   if (typeof closedDoc === "string") return { open: openResult, closed: { audience: "closed", skipped: closedDoc } };
   return { open: openResult, closed: await storeIfChanged(trial, meetingId, closedDoc, user, now) };
 }

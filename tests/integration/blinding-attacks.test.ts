@@ -12,6 +12,11 @@ import { SINGLE_ARM_DEMO_DESIGN } from "@/db/seeds/demo";
 import { expandLooks } from "@/lib/stats/looks";
 import { lockAnalysis, openLookForEntry, saveArmCounts } from "@/app/trials/[trialId]/analyses/_lib/service";
 import { GET as auditGet } from "@/app/api/trials/[trialId]/audit/route";
+import { generatePackets } from "@/app/trials/[trialId]/meetings/actions";
+import { insertMeeting } from "@/db/queries/meetings";
+import { checkTrialAccess } from "@/lib/auth";
+import { handle } from "@/lib/http";
+import { StatsDomainError } from "@/lib/stats/validate";
 import { actAs, currentSession, routeContext } from "./support/as-user";
 import { db, giveRole, makeTrial, makeUser, resetDatabase } from "./support/db";
 import type { PublicUser } from "@/db/types";
@@ -22,6 +27,7 @@ vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }
 type Member = PublicUser & { password: string };
 let stat: Member;
 let sponsor: Member;
+let coordinator: Member;
 let trialId: number;
 let analysisId: number;
 let armId: number;
@@ -61,6 +67,8 @@ beforeAll(async () => {
   trialId = await makeTrial({ designType: "single" });
   await giveRole(stat.id, trialId, "unblinded_statistician");
   await giveRole(sponsor.id, trialId, "sponsor");
+  coordinator = await makeUser({ name: "Test coordinator" });
+  await giveRole(coordinator.id, trialId, "coordinator");
   const design = SINGLE_ARM_DEMO_DESIGN;
   await db.transaction(async (tx) => {
     const d = await insertDesignVersion(tx, { trialId, spec: design, createdBy: stat.id, amendmentReason: null });
@@ -109,5 +117,59 @@ describe("a blinded role cannot recover closed values from the audit trail", () 
     const answer = await auditAs(stat);
     expect(answer.openOnly).toBe(false);
     expect((JSON.stringify(answer).match(HEX64) ?? []).length).toBeGreaterThan(0);
+  });
+});
+
+describe("error messages to blinded roles carry no closed values", () => {
+  // Counts no design allows (an invented, impossible value), stored behind the services' back,
+  // so the engine throws while building the closed packet and its message quotes them.
+  const TELL = 943;
+  let meetingId: number;
+  beforeAll(async () => {
+    await db("analysis_arm_counts").where({ analysis_id: analysisId }).update({ enrolled: TELL, evaluable: TELL, responders: TELL, toxicities: TELL });
+    meetingId = await db.transaction((tx) =>
+      insertMeeting(tx, { trialId, analysisId, scheduledAt: new Date("2027-03-01T10:00:00Z"), timeZone: "UTC", openAgenda: "Accrual", closedAgenda: "Look 1", reminderDaysBefore: 1, createdBy: coordinator.id, attendeeUserIds: [] }),
+    );
+  });
+  const form = () => {
+    const f = new FormData();
+    f.set("trialId", String(trialId));
+    f.set("meetingId", String(meetingId));
+    return f;
+  };
+
+  it("the engine message does quote the closed value to the unblinded statistician (positive control)", async () => {
+    actAs(stat.id);
+    const r = await generatePackets({}, form());
+    expect(JSON.stringify(r)).toContain(String(TELL));
+  });
+
+  it("a coordinator generating a packet on data that makes the engine throw learns no closed count", async () => {
+    actAs(coordinator.id);
+    const r = await generatePackets({}, form());
+    expect(r.ok ?? r.error).toBeTruthy();
+    expect(JSON.stringify(r)).not.toContain(String(TELL));
+    expect(JSON.stringify(r)).toMatch(/cannot be computed/);
+  });
+
+  it("a route answering a blinded caller maps an engine error to generic text; an unblinded caller gets the detail", async () => {
+    const route = (user: PublicUser) =>
+      handle(async () => {
+        await checkTrialAccess(user, trialId, "viewOpen");
+        throw new StatsDomainError("n", TELL, "must not exceed the planned size");
+      })();
+    const blinded = await route(sponsor);
+    expect(blinded.status).toBe(422);
+    expect(JSON.stringify(await blinded.json())).not.toContain(String(TELL));
+    const unblinded = await route(stat);
+    expect(unblinded.status).toBe(422);
+    expect(JSON.stringify(await unblinded.json())).toContain(String(TELL));
+  });
+
+  it("with no trial access decided at all, an engine error is generic (blinded by default)", async () => {
+    const res = await handle(async () => {
+      throw new StatsDomainError("n", TELL, "must not exceed the planned size");
+    })();
+    expect(JSON.stringify(await res.json())).not.toContain(String(TELL));
   });
 });

@@ -9,7 +9,8 @@ import { revalidatePath } from "next/cache";
 import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { requireTrialAccess, type TrialAccess } from "@/lib/auth";
-import { HttpError } from "@/lib/http";
+import { HttpError, publicErrorMessage } from "@/lib/http";
+import { StatsDomainError } from "@/lib/stats/validate";
 import { fetchAnalysisOpen } from "@/db/queries/open-status";
 import { fetchMemberships } from "@/db/queries/memberships";
 import { fetchAttendees, fetchMeeting, insertMeeting, recordAttendance, updateMeetingStatus } from "@/db/queries/meetings";
@@ -88,13 +89,13 @@ export async function generatePackets(_prev: MeetingFormState, form: FormData): 
   const ref = meetingRefSchema.safeParse({ trialId: form.get("trialId"), meetingId: form.get("meetingId") });
   if (!ref.success) return { error: "That meeting is not valid." };
   try {
-    const r = await generateMeetingPackets(a.trial, ref.data.meetingId, a.user);
+    const r = await generateMeetingPackets(a.trial, ref.data.meetingId, a.user, new Date(), { unblinded: a.unblinded });
     const open = `Open report: version ${r.open.version}${r.open.created ? " (new)" : " (unchanged)"}.`;
     const closed = "skipped" in r.closed ? `Closed report not made: ${r.closed.skipped}.` : `Closed report: version ${r.closed.version}${r.closed.created ? " (new)" : " (unchanged)"}.`;
     revalidatePath(`/trials/${a.trial.id}/meetings/${ref.data.meetingId}`);
     return { ok: `${open} ${closed}` };
   } catch (e) {
-    if (e instanceof HttpError) return { error: e.message };
+    if (e instanceof HttpError || e instanceof StatsDomainError) return { error: publicErrorMessage(e, a.unblinded) };
     throw e;
   }
 }
