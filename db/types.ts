@@ -130,7 +130,7 @@ export type AuditEventRow = {
 export type AuditEventOpenRow = Omit<AuditEventRow, "hash" | "prev_hash" | "hash_scheme">;
 
 export type MeetingStatus = "scheduled" | "held" | "cancelled";
-/** A DMC meeting. Open information: time, agendas (organiser's text), the look it reviews. */
+/** A DMC meeting. Open information: time, open agenda, the look it reviews. The closed agenda is closed (db/queries/closed.ts fetchClosedAgenda). */
 export type MeetingRow = {
   id: number;
   trial_id: number;
@@ -140,7 +140,6 @@ export type MeetingRow = {
   /** IANA time zone the meeting was scheduled in, e.g. "Europe/Oslo". */
   time_zone: string;
   open_agenda: string;
-  closed_agenda: string;
   reminder_days_before: number;
   reminder_sent_at: Date | null;
   status: MeetingStatus;

@@ -25,6 +25,8 @@ import * as m24 from "./20261202002400_create_calibration_jobs";
 import * as m25 from "./20261202002500_create_sign_in_failures";
 import * as mBlind1 from "./20261203060100_audit_events_hash_scheme";
 import * as mBlind2 from "./20261203060200_signatures_hash_scheme";
+import * as mBlind3 from "./20261203060300_create_view_audit_events_open";
+import * as mBlind4 from "./20261203060400_create_view_packets_open";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
 const migrations: Array<[string, Migration]> = [
@@ -50,6 +52,8 @@ const migrations: Array<[string, Migration]> = [
   ["20261202002500_create_sign_in_failures", m25],
   ["20261203060100_audit_events_hash_scheme", mBlind1],
   ["20261203060200_signatures_hash_scheme", mBlind2],
+  ["20261203060300_create_view_audit_events_open", mBlind3],
+  ["20261203060400_create_view_packets_open", mBlind4],
 ];
 
 export const migrationSource: Knex.MigrationSource<[string, Migration]> = {

@@ -13,7 +13,8 @@ import { fetchLookSchedule, fetchRecommendationsOpen } from "@/db/queries/open-s
 import { fetchAnalysisLockSigner, fetchLatestPacket, insertPacketVersion, lockMeetingRow } from "@/db/queries/packets";
 import { fetchDesign } from "@/db/queries/designs";
 import { fetchArms } from "@/db/queries/trials";
-import { fetchArmCountsForTrial } from "@/db/queries/closed";
+import { fetchArmCountsForTrial, fetchClosedAgenda } from "@/db/queries/closed";
+import { asClosedConnection } from "@/db/knex";
 import { CAUTION_TEXT } from "@/components/caution";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { ENGINE_VERSION } from "@/lib/stats/version";
@@ -29,13 +30,13 @@ export type GeneratedPacket = { audience: PacketAudience; packetId: number; vers
 export type GenerationResult = { open: GeneratedPacket; closed: GeneratedPacket | { audience: "closed"; skipped: string } };
 
 /** Everything the open part needs, read with open queries only. */
-export async function loadOpenPacketInput(trial: TrialRow, meetingId: number): Promise<OpenPacketInput & { analysisId: number; closedAgenda: string }> {
+export async function loadOpenPacketInput(trial: TrialRow, meetingId: number): Promise<OpenPacketInput & { analysisId: number; meetingId: number }> {
   const meeting = await fetchMeeting(trial.id, meetingId);
   if (!meeting) throw new HttpError(404, "That meeting was not found.");
   const [looks, recommendations, attendees] = await Promise.all([fetchLookSchedule(trial.id), fetchRecommendationsOpen(trial.id), fetchAttendees(meetingId)]);
   return {
     analysisId: meeting.analysis_id,
-    closedAgenda: meeting.closed_agenda,
+    meetingId: meeting.id,
     trial: {
       code: trial.code,
       title: trial.title,
@@ -70,7 +71,11 @@ async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typ
     return `the analysis for look ${open.meeting.lookNumber} is not locked yet; the closed report is made from locked data only`;
   const design = await fetchDesign(lock.designId);
   if (!design) return "the analysis has no design";
-  const [arms, counts, schedule] = await Promise.all([fetchArms(trial.id), fetchArmCountsForTrial(trial.id), fetchLookSchedule(trial.id)]);
+  // The closed report is built by the server for the meeting, whoever asked for it; nothing
+  // built here is returned to the caller (only version numbers), so this is the one place outside
+  // lib/auth that takes a closed connection (allow-listed in the blinding-database test).
+  const closed = asClosedConnection();
+  const [arms, counts, schedule, closedAgenda] = await Promise.all([fetchArms(trial.id), fetchArmCountsForTrial(trial.id, closed), fetchLookSchedule(trial.id), fetchClosedAgenda(open.meetingId, closed)]);
   const lockedLooks = schedule.filter((l) => l.status === "locked" || l.status === "reviewed");
   const input: ReviewInput = {
     design: design.spec,
@@ -91,7 +96,7 @@ async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typ
     return buildClosedPacket(open, {
       review,
       record: reproducibilityRecord(input, review),
-      closedAgenda: open.closedAgenda,
+      closedAgenda,
       design: {
         id: design.id,
         version: design.version,

@@ -75,8 +75,20 @@ export async function scheduleMeeting(_prev: MeetingFormState, form: FormData): 
       entityType: "meeting",
       entityId: id,
       visibility: "open",
-      newValues: { lookNumber: analysis.look_number, scheduledAt: when.utc.toISOString(), timeZone: v.timeZone, attendees: v.attendeeIds, reminderDaysBefore: v.reminderDaysBefore, openAgenda: v.openAgenda, closedAgenda: v.closedAgenda },
+      newValues: { lookNumber: analysis.look_number, scheduledAt: when.utc.toISOString(), timeZone: v.timeZone, attendees: v.attendeeIds, reminderDaysBefore: v.reminderDaysBefore, openAgenda: v.openAgenda },
     });
+    // Closed text (db/classification.ts) goes only into a closed row, never into the open one above.
+    if (v.closedAgenda.trim())
+      await appendAudit(tx, {
+        actorUserId: a.user.id,
+        actorEmail: a.user.email,
+        trialId: a.trial.id,
+        action: "meeting_closed_agenda_set",
+        entityType: "meeting",
+        entityId: id,
+        visibility: "closed",
+        newValues: { closedAgenda: v.closedAgenda },
+      });
     return id;
   });
   revalidatePath(`/trials/${a.trial.id}/meetings`);
