@@ -12,7 +12,7 @@ import { SINGLE_ARM_DEMO_DESIGN } from "@/db/seeds/demo";
 import { expandLooks } from "@/lib/stats/looks";
 import { lockAnalysis, openLookForEntry, saveArmCounts } from "@/app/trials/[trialId]/analyses/_lib/service";
 import { GET as auditGet } from "@/app/api/trials/[trialId]/audit/route";
-import { generatePackets } from "@/app/trials/[trialId]/meetings/actions";
+import { generatePackets, scheduleMeeting } from "@/app/trials/[trialId]/meetings/actions";
 import { insertMeeting } from "@/db/queries/meetings";
 import { checkTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
@@ -171,5 +171,31 @@ describe("error messages to blinded roles carry no closed values", () => {
       throw new StatsDomainError("n", TELL, "must not exceed the planned size");
     })();
     expect(JSON.stringify(await res.json())).not.toContain(String(TELL));
+  });
+});
+
+describe("closed text stays out of open audit rows", () => {
+  const CLOSED_TEXT = "Closed session: discuss the responder imbalance at look 1 (invented)";
+
+  it("a sponsor cannot read the closed-session agenda in the audit trail (API and the rows the page and CSV export are drawn from)", async () => {
+    actAs(coordinator.id);
+    const f = new FormData();
+    f.set("trialId", String(trialId));
+    f.set("analysisId", String(analysisId));
+    f.set("scheduledLocal", "2030-06-01T10:00");
+    f.set("timeZone", "UTC");
+    f.set("openAgenda", "Accrual and data timeliness");
+    f.set("closedAgenda", CLOSED_TEXT);
+    f.set("reminderDaysBefore", "2");
+    const r = await scheduleMeeting({}, f);
+    expect(r.ok, JSON.stringify(r)).toBeTruthy();
+    const answer = await auditAs(sponsor);
+    const scheduled = answer.entries.find((e) => e.action === "meeting_scheduled");
+    expect(scheduled?.newValues?.openAgenda).toBe("Accrual and data timeliness");
+    expect(JSON.stringify(answer)).not.toContain("responder imbalance");
+    // The closed text is recorded, in a closed row the unblinded statistician reads.
+    const closedRows = await db("audit_events").where({ action: "meeting_closed_agenda_set", visibility: "closed", entity_id: String(r.meetingId) });
+    expect(closedRows).toHaveLength(1);
+    expect(JSON.stringify(await auditAs(stat))).toContain("responder imbalance");
   });
 });
