@@ -1,8 +1,8 @@
 import "server-only";
-import { createHash } from "node:crypto";
 import type { Knex } from "knex";
-import { db } from "./knex";
-import type { AuditEventRow, AuditVisibility } from "./types";
+import { blindDb, db } from "./knex";
+import { CURRENT_HASH_SCHEME, hashByScheme, sha256Hex } from "./keyed-hash";
+import type { AuditEventOpenRow, AuditEventRow, AuditVisibility } from "./types";
 
 export const GENESIS_HASH = "0".repeat(64);
 
@@ -20,7 +20,10 @@ export type AuditInput = {
   reason?: string | null;
 };
 
-/** The canonical text a row's hash covers: every field but id and hash, in a fixed order. */
+/**
+ * The canonical text a row's hash covers: every field but id and hash, in a fixed order. Keyed
+ * rows also cover their scheme, so a row cannot be relabelled as a legacy (unkeyed) one.
+ */
 export function auditHashInput(row: Omit<AuditEventRow, "id" | "hash">): string {
   const occurred = row.occurred_at instanceof Date ? row.occurred_at.toISOString() : String(row.occurred_at);
   return JSON.stringify([
@@ -36,11 +39,16 @@ export function auditHashInput(row: Omit<AuditEventRow, "id" | "hash">): string 
     row.new_values,
     row.reason,
     row.prev_hash,
+    ...(row.hash_scheme === "sha256" || row.hash_scheme === undefined ? [] : [row.hash_scheme]),
   ]);
 }
 
-export function sha256(text: string): string {
-  return createHash("sha256").update(text).digest("hex");
+/** Plain SHA-256; kept for rows written before keyed hashing (hash_scheme "sha256"). */
+export const sha256 = sha256Hex;
+
+/** The hash a row should carry, by the scheme it names. */
+export function auditRowHash(row: Omit<AuditEventRow, "id" | "hash">, key?: string): string {
+  return hashByScheme(row.hash_scheme ?? "sha256", "audit-row", auditHashInput(row), key);
 }
 
 /**
@@ -66,8 +74,9 @@ export async function appendAudit(tx: Knex.Transaction, e: AuditInput): Promise<
     new_values: e.newValues === undefined ? null : JSON.stringify(e.newValues),
     reason: e.reason ?? null,
     prev_hash: head.last_hash as string,
+    hash_scheme: CURRENT_HASH_SCHEME,
   };
-  const hash = sha256(auditHashInput(row));
+  const hash = auditRowHash(row);
   const [id] = await tx("audit_events").insert({ ...row, hash });
   await tx("audit_chain_head").where({ id: 1 }).update({ last_event_id: id, last_hash: hash });
   return id;
@@ -80,9 +89,14 @@ export async function recordAuditEvent(e: AuditInput): Promise<number> {
 
 export type ChainCheck = { ok: true; checked: number } | { ok: false; checked: number; brokenAtId: number; problem: string };
 
-/** Walks the chain in id order and recomputes every hash. */
-export async function verifyAuditChain(knex: Knex = db): Promise<ChainCheck> {
+/**
+ * Walks the chain in id order and recomputes every hash (keyed rows need CAIRN_AUDIT_KEY). The
+ * scheme may only move forward: once a keyed row appears, an unkeyed row after it is a break,
+ * so nobody without the key can append or rewrite rows by labelling them "sha256".
+ */
+export async function verifyAuditChain(knex: Knex = db, key?: string): Promise<ChainCheck> {
   let prev = GENESIS_HASH;
+  let keyedSeen = false;
   let checked = 0;
   let lastId = 0;
   for (;;) {
@@ -90,7 +104,10 @@ export async function verifyAuditChain(knex: Knex = db): Promise<ChainCheck> {
     if (rows.length === 0) break;
     for (const r of rows) {
       if (r.prev_hash !== prev) return { ok: false, checked, brokenAtId: Number(r.id), problem: "previous-hash link does not match" };
-      if (sha256(auditHashInput(r)) !== r.hash) return { ok: false, checked, brokenAtId: Number(r.id), problem: "row content does not match its hash" };
+      if (r.hash_scheme === "sha256" && keyedSeen) return { ok: false, checked, brokenAtId: Number(r.id), problem: "an unkeyed row after keyed rows (written without the key?)" };
+      if (r.hash_scheme !== "sha256" && r.hash_scheme !== CURRENT_HASH_SCHEME) return { ok: false, checked, brokenAtId: Number(r.id), problem: `unknown hash scheme "${r.hash_scheme}"` };
+      if (r.hash_scheme === CURRENT_HASH_SCHEME) keyedSeen = true;
+      if (auditRowHash(r, key) !== r.hash) return { ok: false, checked, brokenAtId: Number(r.id), problem: "row content does not match its hash" };
       prev = r.hash;
       lastId = Number(r.id);
       checked++;
@@ -103,10 +120,21 @@ export async function verifyAuditChain(knex: Knex = db): Promise<ChainCheck> {
 
 export type AuditFilter = { trialId?: number; openOnly: boolean; limit?: number };
 
-/** Audit rows for a trial; blinded viewers pass openOnly so closed rows are never selected. */
-export async function fetchAuditEvents(f: AuditFilter): Promise<AuditEventRow[]> {
-  const q = db("audit_events").orderBy("id", "desc").limit(f.limit ?? 2000);
+/** The columns a blinded viewer's audit query selects: no hash, previous hash or scheme. */
+export const AUDIT_OPEN_COLUMNS = ["id", "occurred_at", "actor_user_id", "actor_email", "trial_id", "action", "entity_type", "entity_id", "visibility", "old_values", "new_values", "reason"] as const;
+
+/**
+ * Audit rows for a trial. Blinded viewers pass openOnly: closed rows are never selected, and
+ * neither are the hash columns (each open row's prev_hash is a hash of the row before it, which
+ * may be closed).
+ */
+export async function fetchAuditEvents(f: AuditFilter & { openOnly: true }): Promise<AuditEventOpenRow[]>;
+export async function fetchAuditEvents(f: AuditFilter): Promise<AuditEventRow[] | AuditEventOpenRow[]>;
+export async function fetchAuditEvents(f: AuditFilter): Promise<AuditEventRow[] | AuditEventOpenRow[]> {
+  // Blinded: the blinded account through the view of open rows without hashes; it has no grant on
+  // audit_events itself, so even a query that forgot the filter could not select a closed row.
+  const q = f.openOnly ? blindDb("audit_events_open").select(AUDIT_OPEN_COLUMNS).where("visibility", "open") : db("audit_events");
+  q.orderBy("id", "desc").limit(f.limit ?? 2000);
   if (f.trialId !== undefined) q.where("trial_id", f.trialId);
-  if (f.openOnly) q.where("visibility", "open");
   return q;
 }

@@ -109,6 +109,8 @@ export type SignatureRow = {
   entity_id: number;
   record_hash: string;
   signed_at: Date;
+  /** How record_hash was made: "sha256" (before keyed hashing) or "hmac-sha256". */
+  hash_scheme?: "sha256" | "hmac-sha256";
 };
 
 export type RecommendationDecision = "continue" | "continue_modified" | "stop_futility" | "stop_efficacy" | "stop_safety";
@@ -129,10 +131,15 @@ export type AuditEventRow = {
   reason: string | null;
   prev_hash: string;
   hash: string;
+  /** "sha256" for rows written before keyed hashing, "hmac-sha256" since (db/keyed-hash.ts). */
+  hash_scheme: "sha256" | "hmac-sha256";
 };
 
+/** An audit row without its hashes: what a blinded viewer's query selects (see fetchAuditEvents). */
+export type AuditEventOpenRow = Omit<AuditEventRow, "hash" | "prev_hash" | "hash_scheme">;
+
 export type MeetingStatus = "scheduled" | "held" | "cancelled";
-/** A DMC meeting. Open information: time, agendas (organiser's text), the look it reviews. */
+/** A DMC meeting. Open information: time, open agenda, the look it reviews. The closed agenda is closed (db/queries/closed.ts fetchClosedAgenda). */
 export type MeetingRow = {
   id: number;
   trial_id: number;
@@ -142,7 +149,6 @@ export type MeetingRow = {
   /** IANA time zone the meeting was scheduled in, e.g. "Europe/Oslo". */
   time_zone: string;
   open_agenda: string;
-  closed_agenda: string;
   reminder_days_before: number;
   reminder_sent_at: Date | null;
   status: MeetingStatus;

@@ -17,3 +17,16 @@ export function databaseConnection(asOwner = process.env.CAIRN_DB_AS_OWNER === "
     connectTimeout: 5_000,
   };
 }
+
+/**
+ * The blinded account (cairn_blind): SELECT only on open tables, open columns and the *_open
+ * views (grants from db/classification.ts). Reads made for blinded roles use it, so the database
+ * itself refuses closed data even if a query asks for it.
+ */
+export function blindedDatabaseConnection() {
+  return {
+    ...databaseConnection(false),
+    user: process.env.CAIRN_DB_BLIND_USER ?? "cairn_blind",
+    password: process.env.CAIRN_DB_BLIND_PASSWORD ?? "",
+  };
+}

@@ -1,5 +1,6 @@
 import "server-only";
 import { randomUUID } from "node:crypto";
+import { AsyncLocalStorage } from "node:async_hooks";
 import { NextResponse } from "next/server";
 import { ZodError } from "zod";
 import { StatsDomainError } from "./stats/validate";
@@ -35,6 +36,36 @@ export const writeNotSaved = () =>
   new HttpError(503, "The database connection was lost before the change was committed, so nothing was saved. Try again in a moment.");
 
 /**
+ * Whether this request's caller is unblinded on the trial it touched, recorded by lib/auth when it
+ * decides trial access. An engine message can quote values from closed rows ("... (got 43)"), so
+ * it is passed on only to an unblinded caller; with no record (no trial access decided, or a
+ * blinded role) the caller gets generic text. Blinded is the default by construction.
+ */
+const callerClearance = new AsyncLocalStorage<{ unblinded: boolean }>();
+
+export function noteCallerClearance(unblinded: boolean): void {
+  const store = callerClearance.getStore();
+  if (store) store.unblinded = unblinded;
+}
+
+/** Runs fn with a fresh clearance record (blinded until lib/auth says otherwise). */
+export function withCallerClearance<T>(fn: () => Promise<T>): Promise<T> {
+  return callerClearance.run({ unblinded: false }, fn);
+}
+
+export const callerIsUnblinded = (): boolean => callerClearance.getStore()?.unblinded === true;
+
+/** What a blinded caller is told instead of an engine message. */
+export const GENERIC_ENGINE_MESSAGE = "The request cannot be computed from the stored data. An unblinded statistician can see the reason.";
+
+/** The message a server action may show for an error, under the same rule as errorResponse. */
+export function publicErrorMessage(e: unknown, unblinded: boolean): string {
+  if (e instanceof HttpError) return e.message;
+  if (e instanceof StatsDomainError) return unblinded ? `The request is not valid: ${e.message}.` : GENERIC_ENGINE_MESSAGE;
+  return "Something went wrong on the server.";
+}
+
+/**
  * invalid input 422 with the issues; no session 401; wrong role 403; missing 404; conflict 409;
  * database unreachable 503; anything else 500 with a logged id and no internals.
  */
@@ -52,7 +83,7 @@ export function errorResponse(e: unknown): NextResponse {
     );
   }
   if (e instanceof StatsDomainError) {
-    return NextResponse.json({ error: `The request is not valid: ${e.message}.` }, { status: 422 });
+    return NextResponse.json({ error: publicErrorMessage(e, callerIsUnblinded()) }, { status: 422 });
   }
   if (e instanceof SyntaxError) {
     return NextResponse.json({ error: "The request body is not valid JSON." }, { status: 400 });
@@ -92,11 +123,13 @@ export function handle<A extends unknown[]>(fn: (...args: A) => Promise<Response
     if (args[0] instanceof Request && isCrossSiteWrite(args[0])) {
       return NextResponse.json({ error: "Cross-site requests may not change data." }, { status: 403 });
     }
-    try {
-      return await fn(...args);
-    } catch (e) {
-      return errorResponse(e);
-    }
+    return withCallerClearance(async () => {
+      try {
+        return await fn(...args);
+      } catch (e) {
+        return errorResponse(e);
+      }
+    });
   };
 }
 

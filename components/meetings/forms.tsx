@@ -72,10 +72,10 @@ export function ScheduleMeetingForm({ action, trialId, analyses, members, zones,
         ))}
         <p id="attendeeIds-error" aria-live="polite" className="text-xs text-berry-700">{fe.attendeeIds?.[0] ?? ""}</p>
       </fieldset>
-      <Field label="Open session agenda" name="openAgenda" error={fe.openAgenda} hint="Shared with everyone on the trial, in the open report.">
+      <Field label="Open session agenda" name="openAgenda" error={fe.openAgenda} hint="Open: blinded roles (sponsor, coordinator, administrator) will read this, in the open report, reminders and the audit trail.">
         <TextArea id="openAgenda" name="openAgenda" rows={3} maxLength={5000} invalid={!!fe.openAgenda} />
       </Field>
-      <Field label="Closed session agenda" name="closedAgenda" error={fe.closedAgenda} hint="Printed in the closed report only.">
+      <Field label="Closed session agenda" name="closedAgenda" error={fe.closedAgenda} hint="Closed: only the DMC and the unblinded statistician read this (closed report, closed audit entry). Once saved, you cannot read it back here unless you are unblinded.">
         <TextArea id="closedAgenda" name="closedAgenda" rows={3} maxLength={5000} invalid={!!fe.closedAgenda} />
       </Field>
       <Field label="Reminder (days before)" name="reminderDaysBefore" error={fe.reminderDaysBefore}>

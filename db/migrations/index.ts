@@ -36,6 +36,10 @@ import * as a6 from "./20261203050600_recommendations_refuse_delete";
 import * as a7 from "./20261203050700_sign_in_failures_add_pair_scope";
 import * as a8 from "./20261203050800_email_messages_trial_optional";
 import * as a9 from "./20261203050900_email_messages_account_kinds";
+import * as mBlind1 from "./20261203060100_audit_events_hash_scheme";
+import * as mBlind2 from "./20261203060200_signatures_hash_scheme";
+import * as mBlind3 from "./20261203060300_create_view_audit_events_open";
+import * as mBlind4 from "./20261203060400_create_view_packets_open";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
 const migrations: Array<[string, Migration]> = [
@@ -72,6 +76,10 @@ const migrations: Array<[string, Migration]> = [
   ["20261203050700_sign_in_failures_add_pair_scope", a7],
   ["20261203050800_email_messages_trial_optional", a8],
   ["20261203050900_email_messages_account_kinds", a9],
+  ["20261203060100_audit_events_hash_scheme", mBlind1],
+  ["20261203060200_signatures_hash_scheme", mBlind2],
+  ["20261203060300_create_view_audit_events_open", mBlind3],
+  ["20261203060400_create_view_packets_open", mBlind4],
 ];
 
 export const migrationSource: Knex.MigrationSource<[string, Migration]> = {

@@ -1,17 +1,19 @@
 import "server-only";
 /**
- * CLOSED data: arm-level counts and patient-level outcomes. Only callers that have passed
- * requireTrialAccess(..., "viewClosed" or "enterData") may import from here; the blinding test
- * checks that no module reachable from a blinded route does.
+ * CLOSED data: arm-level counts, patient-level outcomes, rationales, the closed-session agenda.
+ * Every read takes a ClosedReader and has no default: the branded connection comes only from an
+ * unblinded TrialAccess (lib/auth closedConnection), or a write transaction of a service that
+ * checked enterData. The blinding tests check that no module reachable from a blinded route
+ * imports this one.
  */
-import { db, type Tx } from "../knex";
+import type { ClosedReader, Tx } from "../knex";
 import type { ArmCountRow, PatientOutcomeRow } from "../types";
 
-export async function fetchArmCounts(analysisId: number, tx: Tx = db): Promise<ArmCountRow[]> {
+export async function fetchArmCounts(analysisId: number, tx: ClosedReader): Promise<ArmCountRow[]> {
   return tx<ArmCountRow>("analysis_arm_counts").where({ analysis_id: analysisId }).orderBy("arm_id");
 }
 
-export async function fetchArmCountsForTrial(trialId: number, tx: Tx = db): Promise<(ArmCountRow & { look_number: number })[]> {
+export async function fetchArmCountsForTrial(trialId: number, tx: ClosedReader): Promise<(ArmCountRow & { look_number: number })[]> {
   return tx("analysis_arm_counts as c")
     .join("analyses as a", "a.id", "c.analysis_id")
     .where("a.trial_id", trialId)
@@ -35,7 +37,7 @@ export type ArmAtLookRow = {
   toxicities: number | null;
 };
 
-export async function fetchArmAtLook(trialId: number, analysisId: number, armId: number, tx: Tx = db): Promise<ArmAtLookRow | undefined> {
+export async function fetchArmAtLook(trialId: number, analysisId: number, armId: number, tx: ClosedReader): Promise<ArmAtLookRow | undefined> {
   return tx("analyses as a")
     .join("designs as d", "d.id", "a.design_id")
     .leftJoin("arms as r", (j) => j.onVal("r.id", "=", armId).andOn("r.trial_id", "=", "a.trial_id"))
@@ -64,7 +66,7 @@ export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCo
     );
 }
 
-export async function fetchPatientOutcomes(analysisId: number, tx: Tx = db): Promise<PatientOutcomeRow[]> {
+export async function fetchPatientOutcomes(analysisId: number, tx: ClosedReader): Promise<PatientOutcomeRow[]> {
   return tx<PatientOutcomeRow>("patient_outcomes").where({ analysis_id: analysisId }).orderBy("source_line");
 }
 
@@ -77,14 +79,14 @@ export async function replacePatientOutcomes(tx: Tx, analysisId: number, rows: P
   }
 }
 
-export async function fetchRecommendationRationales(trialId: number, tx: Tx = db) {
+export async function fetchRecommendationRationales(trialId: number, tx: ClosedReader) {
   return tx("recommendations").where({ trial_id: trialId }).select("id", "analysis_id", "rationale", "decision", "corrects_id", "created_at").orderBy("id", "desc");
 }
 
 /** CLOSED: patient rows of a look with their arm label, for the data grid. */
 export type PatientOutcomeGridRow = PatientOutcomeRow & { arm_label: string };
 
-export async function fetchPatientOutcomeGrid(analysisId: number, tx: Tx = db): Promise<PatientOutcomeGridRow[]> {
+export async function fetchPatientOutcomeGrid(analysisId: number, tx: ClosedReader): Promise<PatientOutcomeGridRow[]> {
   return tx("patient_outcomes as p")
     .join("arms as a", "a.id", "p.arm_id")
     .where("p.analysis_id", analysisId)
@@ -104,7 +106,7 @@ export async function deletePatientOutcomes(tx: Tx, analysisId: number): Promise
 export async function fetchNeighbourLockedCounts(
   trialId: number,
   lookNumber: number,
-  tx: Tx = db,
+  tx: ClosedReader,
 ): Promise<{ before: { lookNumber: number; counts: ArmCountRow[] } | null; after: { lookNumber: number; counts: ArmCountRow[] } | null }> {
   const locked = ["locked", "reviewed"];
   const [prev, next] = await Promise.all([
@@ -115,7 +117,13 @@ export async function fetchNeighbourLockedCounts(
   return { before: await load(prev), after: await load(next) };
 }
 
-export async function countPatientOutcomes(analysisId: number, tx: Tx = db): Promise<number> {
+export async function countPatientOutcomes(analysisId: number, tx: ClosedReader): Promise<number> {
   const r = await tx("patient_outcomes").where({ analysis_id: analysisId }).count({ n: "*" }).first();
   return Number(r?.n ?? 0);
+}
+
+/** CLOSED: a meeting's closed-session agenda (typed by the organiser, read only by unblinded roles). */
+export async function fetchClosedAgenda(meetingId: number, tx: ClosedReader): Promise<string> {
+  const r = await tx("meetings").where({ id: meetingId }).first("closed_agenda");
+  return (r?.closed_agenda as string | undefined) ?? "";
 }

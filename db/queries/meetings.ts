@@ -1,16 +1,20 @@
 import "server-only";
-/** DMC meetings and their attendees. Open information only: no arm-level data is selected here. */
-import { db, type Tx } from "../knex";
+/** DMC meetings and their attendees. Open information only: no arm-level data, and not the closed agenda (closed.ts). */
+import { blindDb, db, type Tx } from "../knex";
 import type { MeetingRow, MeetingStatus, TrialRole } from "../types";
+
+/** Every meetings column but closed_agenda (closed text, db/classification.ts). */
+export const MEETING_OPEN_COLUMNS = ["id", "trial_id", "analysis_id", "scheduled_at", "time_zone", "open_agenda", "reminder_days_before", "reminder_sent_at", "status", "row_version", "created_by", "created_at", "updated_at"] as const;
+const m = (c: string) => `m.${c}`;
 
 export type MeetingListing = MeetingRow & { lookNumber: number; analysisStatus: string; attendeeCount: number };
 
-export async function fetchMeetings(trialId: number, tx: Tx = db): Promise<MeetingListing[]> {
+export async function fetchMeetings(trialId: number, tx: Tx = blindDb): Promise<MeetingListing[]> {
   return tx("meetings as m")
     .join("analyses as a", "a.id", "m.analysis_id")
     .where("m.trial_id", trialId)
     .select(
-      "m.*",
+      ...MEETING_OPEN_COLUMNS.map(m),
       "a.look_number as lookNumber",
       "a.status as analysisStatus",
       tx("meeting_attendees as ma").whereRaw("ma.meeting_id = m.id").count("*").as("attendeeCount"),
@@ -18,16 +22,16 @@ export async function fetchMeetings(trialId: number, tx: Tx = db): Promise<Meeti
     .orderBy("m.scheduled_at", "desc");
 }
 
-export async function fetchMeeting(trialId: number, meetingId: number, tx: Tx = db): Promise<(MeetingRow & { lookNumber: number }) | undefined> {
+export async function fetchMeeting(trialId: number, meetingId: number, tx: Tx = blindDb): Promise<(MeetingRow & { lookNumber: number }) | undefined> {
   return tx("meetings as m")
     .join("analyses as a", "a.id", "m.analysis_id")
     .where({ "m.id": meetingId, "m.trial_id": trialId })
-    .first("m.*", "a.look_number as lookNumber");
+    .first(...MEETING_OPEN_COLUMNS.map(m), "a.look_number as lookNumber");
 }
 
 export type AttendeeListing = { userId: number; name: string; email: string; attended: boolean | null; roles: TrialRole[] };
 
-export async function fetchAttendees(meetingId: number, tx: Tx = db): Promise<AttendeeListing[]> {
+export async function fetchAttendees(meetingId: number, tx: Tx = blindDb): Promise<AttendeeListing[]> {
   const rows = await tx("meeting_attendees as ma")
     .join("meetings as m", "m.id", "ma.meeting_id")
     .join("users as u", "u.id", "ma.user_id")
@@ -101,7 +105,7 @@ export async function fetchMeetingsDueForReminder(now: Date, trialId?: number, t
     .where("scheduled_at", ">", now)
     .whereRaw("DATE_SUB(scheduled_at, INTERVAL reminder_days_before DAY) <= ?", [now]);
   if (trialId !== undefined) q.where({ trial_id: trialId });
-  return q.orderBy("scheduled_at");
+  return q.select(MEETING_OPEN_COLUMNS).orderBy("scheduled_at");
 }
 
 /** Marks a reminder as sent only if nobody else did first (two senders cannot both remind). */

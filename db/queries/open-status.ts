@@ -1,9 +1,11 @@
 import "server-only";
 /**
  * Open information only. Nothing in this module may select from analysis_arm_counts,
- * patient_outcomes or recommendation rationales; the blinding tests grep for that.
+ * patient_outcomes or recommendation rationales; the blinding tests grep for that. Reads default
+ * to the blinded account (blindDb), which MariaDB refuses closed data, for every caller: what is
+ * open is the same for every role.
  */
-import { db, type Tx } from "../knex";
+import { blindDb as db, type Tx } from "../knex";
 import type { AnalysisOpenRow, RecommendationDecision } from "../types";
 
 export const ANALYSIS_OPEN_COLUMNS = [

@@ -1,11 +1,15 @@
 import "server-only";
-import { createHash } from "node:crypto";
 import type { Tx } from "../knex";
 import type { SignatureRow } from "../types";
+import { CURRENT_HASH_SCHEME, keyedHash } from "../keyed-hash";
 
-/** Hash of the exact record content being signed (stable key order), binding the signature to it. */
-export function recordHash(record: unknown): string {
-  return createHash("sha256").update(stableStringify(record)).digest("hex");
+/**
+ * Keyed hash of the exact record content being signed (stable key order), binding the signature
+ * to it. Keyed because a record of a look's counts has few possible values: a plain hash of it
+ * would give the counts away to anyone who can see the hash and try values.
+ */
+export function recordHash(record: unknown, key?: string): string {
+  return keyedHash("signature-record", stableStringify(record), key);
 }
 
 export function stableStringify(v: unknown): string {
@@ -34,6 +38,7 @@ export async function insertSignature(
     entity_type: s.entityType,
     entity_id: s.entityId,
     record_hash: recordHash(s.record),
+    hash_scheme: CURRENT_HASH_SCHEME,
     signed_at: new Date(),
   };
   const [id] = await tx("signatures").insert(row);

@@ -11,11 +11,28 @@ import { fetchAnyRoleHeld } from "@/db/queries/memberships";
 import { fetchAccessFacts, type AccessFacts } from "@/db/queries/trials";
 import type { PublicUser, TrialRole, TrialRow } from "@/db/types";
 import { allows, isUnblinded, type Capability, type Principal } from "./permissions";
-import { HttpError, forbiddenError, notFoundError, unauthorized } from "@/lib/http";
+import type { Knex } from "knex";
+import { asClosedConnection, blindDb, db, type ClosedConnection } from "@/db/knex";
+import { HttpError, forbiddenError, noteCallerClearance, notFoundError, unauthorized } from "@/lib/http";
 
 export { allows, isUnblinded, type Capability } from "./permissions";
 
-export type TrialAccess = { user: PublicUser; trial: TrialRow; roles: TrialRole[]; principal: Principal; unblinded: boolean };
+/**
+ * What a request may do on a trial, and which database connection its reads use: `reader` is the
+ * blinded account for blinded roles (MariaDB refuses closed data to it) and the application's
+ * account for unblinded ones; `closed` (the only way to call db/queries/closed.ts outside a write
+ * transaction) exists only on an unblinded access.
+ */
+export type TrialAccess = { user: PublicUser; trial: TrialRow; roles: TrialRole[]; principal: Principal } & (
+  | { unblinded: true; reader: Knex; closed: ClosedConnection }
+  | { unblinded: false; reader: Knex; closed: null }
+);
+
+/** The closed connection of an unblinded access; a blinded one gets 403 (it never holds one). */
+export function closedConnection(access: TrialAccess): ClosedConnection {
+  if (!access.unblinded) throw forbiddenError("viewing closed (unblinded) results");
+  return access.closed;
+}
 
 /**
  * The signed-in, active user, or null. A session issued under an older session version (the
@@ -72,7 +89,12 @@ function decideTrialAccess(user: PublicUser, { trial, roles }: AccessFacts, cap:
   const principal: Principal = { isAdmin: user.isAdmin, roles };
   if (roles.length === 0 && !user.isAdmin) throw notFoundError("That trial");
   if (!allows(principal, cap)) throw forbiddenError(describe(cap));
-  return { user, trial, roles, principal, unblinded: isUnblinded(principal) };
+  const unblinded = isUnblinded(principal);
+  // Error messages that may quote closed values reach only unblinded callers (lib/http).
+  noteCallerClearance(unblinded);
+  return unblinded
+    ? { user, trial, roles, principal, unblinded: true, reader: db, closed: asClosedConnection(db) }
+    : { user, trial, roles, principal, unblinded: false, reader: blindDb, closed: null };
 }
 
 /** For pages: the same checks, answered the way a browser expects (sign-in redirect, 404 page, 403 page). */

@@ -13,7 +13,8 @@ import { fetchLookSchedule, fetchRecommendationsOpen } from "@/db/queries/open-s
 import { fetchAnalysisLockSigner, fetchLatestPacket, insertPacketVersion, lockMeetingRow } from "@/db/queries/packets";
 import { fetchDesign } from "@/db/queries/designs";
 import { fetchArms } from "@/db/queries/trials";
-import { fetchArmCountsForTrial } from "@/db/queries/closed";
+import { fetchArmCountsForTrial, fetchClosedAgenda } from "@/db/queries/closed";
+import { asClosedConnection } from "@/db/knex";
 import { CAUTION_TEXT } from "@/components/caution";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { ENGINE_VERSION } from "@/lib/stats/version";
@@ -30,13 +31,13 @@ export type GeneratedPacket = { audience: PacketAudience; packetId: number; vers
 export type GenerationResult = { open: GeneratedPacket; closed: GeneratedPacket | { audience: "closed"; skipped: string } };
 
 /** Everything the open part needs, read with open queries only. */
-export async function loadOpenPacketInput(trial: TrialRow, meetingId: number): Promise<OpenPacketInput & { analysisId: number; closedAgenda: string }> {
+export async function loadOpenPacketInput(trial: TrialRow, meetingId: number): Promise<OpenPacketInput & { analysisId: number; meetingId: number }> {
   const meeting = await fetchMeeting(trial.id, meetingId);
   if (!meeting) throw new HttpError(404, "That meeting was not found.");
   const [looks, recommendations, attendees] = await Promise.all([fetchLookSchedule(trial.id), fetchRecommendationsOpen(trial.id), fetchAttendees(meetingId)]);
   return {
     analysisId: meeting.analysis_id,
-    closedAgenda: meeting.closed_agenda,
+    meetingId: meeting.id,
     trial: {
       code: trial.code,
       title: trial.title,
@@ -64,14 +65,18 @@ export async function loadOpenPacketInput(trial: TrialRow, meetingId: number): P
  * The closed packet document, or the reason it cannot be made yet. CLOSED: arm-level counts are
  * read here; callers must not pass the document (or its hash) to a blinded user.
  */
-async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typeof loadOpenPacketInput>>, now: Date): Promise<PacketDocument | string> {
+async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typeof loadOpenPacketInput>>, now: Date, unblinded: boolean): Promise<PacketDocument | string> {
   const lock = await fetchAnalysisLockSigner(open.analysisId);
   const reviewed = open.looks.find((l) => l.lookNumber === open.meeting.lookNumber);
   if (!lock || !reviewed || (reviewed.status !== "locked" && reviewed.status !== "reviewed"))
     return `the analysis for look ${open.meeting.lookNumber} is not locked yet; the closed report is made from locked data only`;
   const design = await fetchDesign(lock.designId);
   if (!design) return "the analysis has no design";
-  const [arms, counts, schedule] = await Promise.all([fetchArms(trial.id), fetchArmCountsForTrial(trial.id), fetchLookSchedule(trial.id)]);
+  // The closed report is built by the server for the meeting, whoever asked for it; nothing
+  // built here is returned to the caller (only version numbers), so this is the one place outside
+  // lib/auth that takes a closed connection (allow-listed in the blinding-database test).
+  const closed = asClosedConnection();
+  const [arms, counts, schedule, closedAgenda] = await Promise.all([fetchArms(trial.id), fetchArmCountsForTrial(trial.id, closed), fetchLookSchedule(trial.id), fetchClosedAgenda(open.meetingId, closed)]);
   const lockedLooks = schedule.filter((l) => l.status === "locked" || l.status === "reviewed");
   const input: ReviewInput = {
     design: design.spec,
@@ -92,7 +97,7 @@ async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typ
     return buildClosedPacket(open, {
       review,
       record: reproducibilityRecord(input, review),
-      closedAgenda: open.closedAgenda,
+      closedAgenda,
       design: {
         id: design.id,
         version: design.version,
@@ -105,7 +110,8 @@ async function buildClosedDocument(trial: TrialRow, open: Awaited<ReturnType<typ
       lock: { signedBy: lock.signerName, lockedAt: lock.lockedAt ? new Date(lock.lockedAt) : null },
     });
   } catch (e) {
-    if (e instanceof StatsDomainError) return `the closed review cannot be computed from the stored data (${e.message})`;
+    // The engine's message quotes values from closed rows: only an unblinded caller reads it.
+    if (e instanceof StatsDomainError) return unblinded ? `the closed review cannot be computed from the stored data (${e.message})` : "the closed review cannot be computed from the stored data; an unblinded statistician can see why on the review screen";
     throw e;
   }
 }
@@ -141,11 +147,14 @@ async function storeIfChanged(trial: TrialRow, meetingId: number, doc: PacketDoc
   });
 }
 
-/** Generates (or confirms unchanged) the open and closed packets of a meeting. */
-export async function generateMeetingPackets(trial: TrialRow, meetingId: number, user: PublicUser, now = new Date()): Promise<GenerationResult> {
+/**
+ * Generates (or confirms unchanged) the open and closed packets of a meeting. `unblinded`: whether
+ * the caller may read closed values; a blinded caller (the default) gets no engine message.
+ */
+export async function generateMeetingPackets(trial: TrialRow, meetingId: number, user: PublicUser, now = new Date(), opts: { unblinded?: boolean } = {}): Promise<GenerationResult> {
   const open = await loadOpenPacketInput(trial, meetingId);
   const openResult = await storeIfChanged(trial, meetingId, buildOpenPacket(open), user, now);
-  const closedDoc = await buildClosedDocument(trial, open, now);
+  const closedDoc = await buildClosedDocument(trial, open, now, opts.unblinded === true);
   if (typeof closedDoc === "string") return { open: openResult, closed: { audience: "closed", skipped: closedDoc } };
   return { open: openResult, closed: await storeIfChanged(trial, meetingId, closedDoc, user, now) };
 }

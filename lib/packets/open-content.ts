@@ -145,7 +145,7 @@ export function buildOpenSections(input: OpenPacketInput): PacketSection[] {
       ? [
           {
             kind: "table",
-            caption: "The committee's recommendations (decision only; the rationale is part of the closed record)",
+            caption: "The committee's recommendations (decision only; the reasons given are part of the closed record)",
             columns: ["Look", "Recommendation", "Recorded", "Signed by"],
             rows: input.recommendations.map((r) => [String(r.lookNumber), `${DECISION_LABELS[r.decision]}${r.correctsId ? " (correction)" : ""}${r.superseded ? " (superseded: the look was reopened for a correction)" : ""}`, day(r.recordedAt), r.signerName]),
           },

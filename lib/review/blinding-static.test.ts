@@ -20,6 +20,11 @@ const BLINDED_ENTRY_POINTS = [
   "app/trials/page.tsx",
   "app/api/trials/[trialId]/open-status/route.ts",
   "components/review/accrual-chart.tsx",
+  // The audit trail as a blinded role reads it (page, JSON API and CSV from the same rows), and
+  // the open packet's content.
+  "app/trials/[trialId]/audit/page.tsx",
+  "app/api/trials/[trialId]/audit/route.ts",
+  "lib/packets/open-content.ts",
 ];
 
 function stripComments(src: string): string {

@@ -5,6 +5,7 @@ import "server-only";
  */
 import { fetchAnalysesOpen } from "@/db/queries/analyses";
 import { fetchArmAtLook, fetchArmCountsForTrial } from "@/db/queries/closed";
+import type { ClosedReader } from "@/db/knex";
 import { fetchDesign, parseStoredDesign } from "@/db/queries/designs";
 import { fetchRecommendationsClosed, fetchReviewSignatures } from "@/db/queries/recommendations";
 import { fetchArms } from "@/db/queries/trials";
@@ -27,12 +28,12 @@ function cutoffText(v: unknown): string | null {
 }
 
 /** @throws HttpError 404 when the analysis is not this trial's, 409 when it is not locked yet. */
-export async function loadReviewInput(trial: TrialRow, analysisId: number, now: Date = new Date()): Promise<ReviewContext> {
+export async function loadReviewInput(trial: TrialRow, analysisId: number, closed: ClosedReader, now: Date = new Date()): Promise<ReviewContext> {
   const looks = await fetchAnalysesOpen(trial.id);
   const analysis = looks.find((l) => l.id === analysisId);
   if (!analysis) throw notFoundError("That analysis");
   if (!REVIEWABLE.has(analysis.status)) throw conflict(NOT_LOCKED);
-  const [design, arms, counts] = await Promise.all([fetchDesign(analysis.design_id), fetchArms(trial.id), fetchArmCountsForTrial(trial.id)]);
+  const [design, arms, counts] = await Promise.all([fetchDesign(analysis.design_id), fetchArms(trial.id), fetchArmCountsForTrial(trial.id, closed)]);
   if (!design) throw notFoundError("The design of that analysis");
   const locked = looks.filter((l) => REVIEWABLE.has(l.status) && l.look_number <= analysis.look_number);
   const reviewLooks: ReviewLook[] = locked.map((l) => ({
@@ -58,8 +59,8 @@ export async function loadReviewInput(trial: TrialRow, analysisId: number, now: 
   };
 }
 
-export async function loadReview(trial: TrialRow, analysisId: number) {
-  const ctx = await loadReviewInput(trial, analysisId);
+export async function loadReview(trial: TrialRow, analysisId: number, closed: ClosedReader) {
+  const ctx = await loadReviewInput(trial, analysisId, closed);
   return { ...ctx, review: computeReview(ctx.input) };
 }
 
@@ -69,8 +70,8 @@ export async function loadReview(trial: TrialRow, analysisId: number) {
  * the look and that recorded each recommendation, with the hashes of the records they signed, so
  * an auditor can tie the numbers to the signed records.
  */
-export async function loadReproducibilityRecord(trial: TrialRow, analysisId: number) {
-  const ctx = await loadReviewInput(trial, analysisId);
+export async function loadReproducibilityRecord(trial: TrialRow, analysisId: number, closed: ClosedReader) {
+  const ctx = await loadReviewInput(trial, analysisId, closed);
   const [signatures, recommendations] = await Promise.all([fetchReviewSignatures(analysisId), fetchRecommendationsClosed(trial.id, analysisId)]);
   return {
     ...reproducibilityRecord(ctx.input),
@@ -87,8 +88,8 @@ export async function loadReproducibilityRecord(trial: TrialRow, analysisId: num
 }
 
 /** One arm's posterior at one look; a single query, because the interval question asks it at typing speed. */
-export async function loadArmPosterior(trial: TrialRow, analysisId: number, armId: number) {
-  const row = await fetchArmAtLook(trial.id, analysisId, armId);
+export async function loadArmPosterior(trial: TrialRow, analysisId: number, armId: number, closed: ClosedReader) {
+  const row = await fetchArmAtLook(trial.id, analysisId, armId, closed);
   if (!row) throw notFoundError("That analysis");
   if (!REVIEWABLE.has(row.status)) throw conflict(NOT_LOCKED);
   // An arm of another trial, or a look without counts, reaches armPosterior empty, which refuses it

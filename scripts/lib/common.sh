@@ -56,8 +56,17 @@ ensure_secrets() {
       echo "NEXTAUTH_SECRET=$(head -c 32 /dev/urandom | base64 | tr -dc 'A-Za-z0-9')"
     } >"$SECRETS_FILE"
   fi
+  # Secrets added later are appended to an existing file, so a checkout made before keeps its others.
+  # CAIRN_AUDIT_KEY keys the audit chain and signature hashes: it lives here, never in the database,
+  # so a database dump (scripts/backup) holds no key. Keep a copy of this file apart from the dumps.
+  if ! grep -q '^CAIRN_AUDIT_KEY=' "$SECRETS_FILE"; then
+    (umask 077; echo "CAIRN_AUDIT_KEY=$(head -c 48 /dev/urandom | base64 | tr -dc 'A-Za-z0-9')" >>"$SECRETS_FILE")
+  fi
+  if ! grep -q '^CAIRN_DB_BLIND_PASSWORD=' "$SECRETS_FILE"; then
+    (umask 077; echo "CAIRN_DB_BLIND_PASSWORD=$(head -c 18 /dev/urandom | base64 | tr -dc 'A-Za-z0-9')" >>"$SECRETS_FILE")
+  fi
   set -a; . "$SECRETS_FILE"; set +a
-  export CAIRN_DB_APP_USER=cairn_app CAIRN_DB_OWNER_USER=cairn_owner
+  export CAIRN_DB_APP_USER=cairn_app CAIRN_DB_OWNER_USER=cairn_owner CAIRN_DB_BLIND_USER=cairn_blind
 }
 
 mysql_root() { mariadb --no-defaults --socket="$MARIADB_SOCKET" -uroot "$@"; }
@@ -113,6 +122,8 @@ CREATE USER IF NOT EXISTS '$CAIRN_DB_OWNER_USER'@'127.0.0.1' IDENTIFIED BY '$CAI
 ALTER USER '$CAIRN_DB_OWNER_USER'@'127.0.0.1' IDENTIFIED BY '$CAIRN_DB_OWNER_PASSWORD';
 CREATE USER IF NOT EXISTS '$CAIRN_DB_APP_USER'@'127.0.0.1' IDENTIFIED BY '$CAIRN_DB_APP_PASSWORD';
 ALTER USER '$CAIRN_DB_APP_USER'@'127.0.0.1' IDENTIFIED BY '$CAIRN_DB_APP_PASSWORD';
+CREATE USER IF NOT EXISTS '$CAIRN_DB_BLIND_USER'@'127.0.0.1' IDENTIFIED BY '$CAIRN_DB_BLIND_PASSWORD';
+ALTER USER '$CAIRN_DB_BLIND_USER'@'127.0.0.1' IDENTIFIED BY '$CAIRN_DB_BLIND_PASSWORD';
 GRANT ALL PRIVILEGES ON \`$db\`.* TO '$CAIRN_DB_OWNER_USER'@'127.0.0.1';
 FLUSH PRIVILEGES;
 SQL
@@ -144,12 +155,31 @@ grant_app_privileges() {
   } | mysql_root
 }
 
+# The blinded account (reads for sponsor, coordinator, administrator): SELECT only on what
+# db/classification.ts lists as open (whole tables, open columns, the *_open views), nothing else.
+# Its grants on this database are dropped and rebuilt (other databases on the server keep theirs),
+# so a column reclassified as closed loses its grant.
+grant_blind_privileges() {
+  local db="$1" account="'$CAIRN_DB_BLIND_USER'@'127.0.0.1'" names grants
+  names=$(mysql_root -N -e "SELECT table_name FROM information_schema.tables WHERE table_schema='$db'")
+  grants=$(cd "$ROOT" && printf '%s\n' $names | npx tsx scripts/blind-grants.ts "$db" "$account") \
+    || die "could not compute the blinded account's grants"
+  {
+    echo "DELETE FROM mysql.columns_priv WHERE Db='$db' AND User='$CAIRN_DB_BLIND_USER';"
+    echo "DELETE FROM mysql.tables_priv WHERE Db='$db' AND User='$CAIRN_DB_BLIND_USER';"
+    echo "FLUSH PRIVILEGES;"
+    echo "$grants"
+    echo "FLUSH PRIVILEGES;"
+  } | mysql_root
+}
+
 migrate_database() {
   local db="$1"
   log "migrating database $db"
   (cd "$ROOT" && CAIRN_DB_NAME="$db" CAIRN_DB_AS_OWNER=1 npx tsx scripts/migrate.ts) \
     || die "migrations failed on $db"
   grant_app_privileges "$db"
+  grant_blind_privileges "$db"
 }
 
 # Start a background process with its pid in .run/NAME.pid and output in .run/NAME.log.

@@ -14,6 +14,7 @@ import type { TwoArmDesign } from "@/lib/stats/types";
 import type { TrialRow } from "@/db/types";
 import { statusOf } from "./support/status";
 import { db, giveRole, makeTrial, makeUser, resetDatabase } from "./support/db";
+import { asClosedConnection } from "@/db/knex";
 
 let signedIn: number | null = null;
 /** The session version the mocked session token carries (fresh accounts start at 0). */
@@ -130,23 +131,23 @@ describe("requireTrialAccess (one query per request)", () => {
 
 describe("loadArmPosterior (the interval question's single query)", () => {
   it("gives, for each arm, exactly the posterior the full closed review builds", async () => {
-    const full = await loadReviewInput(trial, lockedLook);
+    const full = await loadReviewInput(trial, lockedLook, asClosedConnection(db));
     const look = full.input.looks.find((l) => l.analysisId === lockedLook)!;
     for (const arm of arms) {
-      const narrow = await loadArmPosterior(trial, lockedLook, arm.id);
+      const narrow = await loadArmPosterior(trial, lockedLook, arm.id, asClosedConnection(db));
       expect(narrow).toEqual(armPosterior(full.input.design, full.input.arms, look, arm.id));
     }
     // And the two arms differ (different priors and counts), so a swap would not pass unseen.
-    expect(await loadArmPosterior(trial, lockedLook, arms[0].id)).not.toEqual(await loadArmPosterior(trial, lockedLook, arms[1].id));
+    expect(await loadArmPosterior(trial, lockedLook, arms[0].id, asClosedConnection(db))).not.toEqual(await loadArmPosterior(trial, lockedLook, arms[1].id, asClosedConnection(db)));
   });
 
   it("refuses a look that is not locked (409), another trial's look (404) and another trial's arm (domain error)", async () => {
-    expect(await statusOf(loadArmPosterior(trial, plannedLook, arms[0].id))).toBe(409);
+    expect(await statusOf(loadArmPosterior(trial, plannedLook, arms[0].id, asClosedConnection(db)))).toBe(409);
     const designId = (await db("designs").where({ trial_id: trial.id }).first()).id;
     const [otherLook] = await db("analyses").insert({ trial_id: otherTrialId, design_id: designId, look_number: 1, planned_n: 10, status: "locked" });
-    expect(await statusOf(loadArmPosterior(trial, otherLook, arms[0].id))).toBe(404);
-    expect(await statusOf(loadArmPosterior(trial, 999_999, arms[0].id))).toBe(404);
+    expect(await statusOf(loadArmPosterior(trial, otherLook, arms[0].id, asClosedConnection(db)))).toBe(404);
+    expect(await statusOf(loadArmPosterior(trial, 999_999, arms[0].id, asClosedConnection(db)))).toBe(404);
     const otherArm = (await db("arms").where({ trial_id: otherTrialId }).first()).id;
-    await expect(loadArmPosterior(trial, lockedLook, otherArm)).rejects.toBeInstanceOf(StatsDomainError);
+    await expect(loadArmPosterior(trial, lockedLook, otherArm, asClosedConnection(db))).rejects.toBeInstanceOf(StatsDomainError);
   });
 });

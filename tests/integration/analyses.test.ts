@@ -5,6 +5,7 @@
  * leaves nothing behind.
  */
 import { beforeAll, describe, expect, it } from "vitest";
+import { asClosedConnection } from "@/db/knex";
 import { ZodError } from "zod";
 import { verifyAuditChain } from "@/db/audit";
 import { insertDesignVersion, markDesignLocked } from "@/db/queries/designs";
@@ -271,7 +272,7 @@ describe("patient-level upload", () => {
 
   it("preview writes nothing and reports the derived counts", async () => {
     const before = await auditCount();
-    const p = await previewPatientUpload(t.trialId, a1, enc(good));
+    const p = await previewPatientUpload(t.trialId, a1, enc(good), asClosedConnection(db));
     expect(p).toMatchObject({ ok: true, rowCount: 4, counts: [{ armId: t.arms[0].id, enrolled: 4, evaluable: 3, responders: 2, toxicities: 1 }] });
     expect(await auditCount()).toBe(before);
     expect(await patientRows(a1)).toBe(0);
@@ -287,7 +288,7 @@ describe("patient-level upload", () => {
   ];
   for (const [what, text, message] of BAD) {
     it(`a CSV with ${what} is reported by line and writes nothing on confirm`, async () => {
-      const p = await previewPatientUpload(t.trialId, a1, enc(text));
+      const p = await previewPatientUpload(t.trialId, a1, enc(text), asClosedConnection(db));
       expect(p.ok).toBe(false);
       if (!p.ok) expect(p.issues.map((i) => i.message).join(" | ")).toMatch(message);
       const v = (await look(a1)).row_version;
@@ -298,7 +299,7 @@ describe("patient-level upload", () => {
 
   it("a file that is not CSV (binary) writes nothing", async () => {
     const png = new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13, 0x49, 0x48, 0x44, 0x52]);
-    const p = await previewPatientUpload(t.trialId, a1, png);
+    const p = await previewPatientUpload(t.trialId, a1, png, asClosedConnection(db));
     expect(p).toMatchObject({ ok: false, issues: [{ line: null, message: expect.stringMatching(/not a CSV file/) }] });
     await expectNothingWritten(a1, () => confirmPatientUpload(stat, t.trialId, a1, png, { rowVersion: 2 }), 422);
   });
@@ -376,7 +377,7 @@ describe("finding 1: the safety denominator is the number treated (evaluable for
     const t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
     const a1 = await enterAndLock(t, 0, "2026-06-30", single(t.arms[0].id, { enrolled: 21, treated: 21, evaluable: 15, responders: 4, toxicities: 8 }));
     expect(await db("analysis_arm_counts").where({ analysis_id: a1 }).first()).toMatchObject({ enrolled: 21, treated: 21, evaluable: 15, toxicities: 8 });
-    const { review } = await loadReview(await trialRow(t.trialId), a1);
+    const { review } = await loadReview(await trialRow(t.trialId), a1, asClosedConnection(db));
     // The demo design's toxicity prior is Beta(0.6, 1.4) with qmax 0.3: posterior Beta(8.6, 14.4).
     // jstat 1.9.6 (npm) as the independent Beta CDF (its continued fraction stops at 3e-7).
     expect(Math.abs(review.safety!.probAboveLimit - (1 - jstat.jStat.beta.cdf(0.3, 8.6, 14.4)))).toBeLessThan(1e-6);
@@ -385,7 +386,7 @@ describe("finding 1: the safety denominator is the number treated (evaluable for
     expect(review.safety!).toMatchObject({ treated: 21, toxicities: 8, crossed: false });
     expect(review.decision.action).not.toBe("stop");
     // The JSON record says which count is which.
-    const record = await loadReproducibilityRecord(await trialRow(t.trialId), a1);
+    const record = await loadReproducibilityRecord(await trialRow(t.trialId), a1, asClosedConnection(db));
     expect(record.inputs.looks[0].counts[0]).toMatchObject({ enrolled: 21, treated: 21, evaluable: 15, responders: 4, toxicities: 8 });
     expect(record.outputs.arms[0]).toMatchObject({ treated: 21, evaluable: 15 });
   });
@@ -393,7 +394,7 @@ describe("finding 1: the safety denominator is the number treated (evaluable for
   it("more toxicities than patients evaluable for response are accepted and the review computes", async () => {
     const t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
     const a1 = await enterAndLock(t, 0, "2026-06-30", single(t.arms[0].id, { enrolled: 12, treated: 12, evaluable: 3, responders: 1, toxicities: 9 }));
-    const { review } = await loadReview(await trialRow(t.trialId), a1);
+    const { review } = await loadReview(await trialRow(t.trialId), a1, asClosedConnection(db));
     expect(review.safety).toMatchObject({ treated: 12, toxicities: 9 });
   });
 
@@ -440,10 +441,10 @@ describe("finding 3: lock-time validation against the locked design and the neig
     const a1 = t.lookIds[0];
     await saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(arm, { enrolled: 0, treated: 0, evaluable: 0, responders: 0, toxicities: 0 }) });
     await lockAnalysis(stat, t.trialId, a1, { rowVersion: 3, password: stat.password });
-    const r0 = (await loadReview(await trialRow(t.trialId), a1)).review;
+    const r0 = (await loadReview(await trialRow(t.trialId), a1, asClosedConnection(db))).review;
     expect(r0.current).toMatchObject({ n: 0, treated: 0, toxicities: 0 });
     const a2 = await enterAndLock(t, 1, "2026-09-30", single(arm, { enrolled: 40, treated: 40, evaluable: 40, responders: 40, toxicities: 40 }));
-    const r = (await loadReview(await trialRow(t.trialId), a2)).review;
+    const r = (await loadReview(await trialRow(t.trialId), a2, asClosedConnection(db))).review;
     expect(r.decision).toMatchObject({ action: "stop", stop: "safety" });
     expect(r.history.map((h) => h.n)).toEqual([0, 40]);
     // Two arms at nMaxPerArm (60) on both arms, responders at the extremes.
@@ -453,7 +454,7 @@ describe("finding 3: lock-time validation against the locked design and the neig
       { armId: two.arms[0].id, ...c(60, 60) },
       { armId: two.arms[1].id, ...c(60, 0) },
     ]);
-    expect((await loadReview(await trialRow(two.trialId), b1)).review.current.evaluation.final).toBe(true);
+    expect((await loadReview(await trialRow(two.trialId), b1, asClosedConnection(db))).review.current.evaluation.final).toBe(true);
   });
 
   it("cumulative counts may not fall below the previous locked look's (each field), and write nothing", async () => {
@@ -510,7 +511,7 @@ describe("finding 6: CSV rows dated after the cut-off are left out and reported"
         { line: 5, subjectId: "P-04", enrolmentDate: "2026-08-15" },
       ],
     };
-    const p = await previewPatientUpload(t.trialId, a1, enc(text));
+    const p = await previewPatientUpload(t.trialId, a1, enc(text), asClosedConnection(db));
     expect(p).toMatchObject({ ok: true, rowCount: 4, includedRows: 2, excluded: want, counts: [{ enrolled: 2, treated: 2, evaluable: 1, responders: 1, toxicities: 1 }] });
     const out = await expectOneAuditRow("closed", "patient_data_uploaded", () => confirmPatientUpload(stat, t.trialId, a1, enc(text), { rowVersion: 2 }));
     expect(out).toMatchObject({ patientRows: 2, enrolledTotal: 2, excluded: want });

@@ -3,6 +3,7 @@
  * an e-signature, amendments, and exactly one audit row per write (none for a refused write).
  */
 import { beforeAll, beforeEach, describe, expect, it } from "vitest";
+import { asClosedConnection } from "@/db/knex";
 import { checkTrialAccess, type TrialAccess } from "@/lib/auth";
 import { HttpError } from "@/lib/http";
 import { verifyAuditChain } from "@/db/audit";
@@ -246,10 +247,10 @@ describe("amendments", () => {
     // Look 2 locked now: reviewed under version 2 (the new futility threshold); look 1 still under version 1.
     await db("analyses").where({ id: l2.id }).update({ status: "locked", locked_at: new Date() });
     const trial = (await fetchTrial(trialId))!;
-    const r2 = await loadReviewInput(trial, l2.id);
+    const r2 = await loadReviewInput(trial, l2.id, asClosedConnection(db));
     expect(r2.designVersion).toMatchObject({ id: amendment.id, version: 2 });
     expect(r2.input.design.rule.futilityThreshold).toBe(0.1);
-    const r1 = await loadReviewInput(trial, l1.id);
+    const r1 = await loadReviewInput(trial, l1.id, asClosedConnection(db));
     expect(r1.designVersion).toMatchObject({ id: d.id, version: 1, status: "superseded" });
     expect((await verifyAuditChain()).ok).toBe(true);
   });

@@ -4,6 +4,7 @@
  * (a correction is a new linked entry), and nothing written when anything is wrong.
  */
 import { beforeAll, describe, expect, it } from "vitest";
+import { asClosedConnection } from "@/db/knex";
 import { ZodError } from "zod";
 import { checkTrialAccess } from "@/lib/auth";
 import { verifyAuditChain } from "@/db/audit";
@@ -260,7 +261,7 @@ describe("correction after review (finding 6): reopening a reviewed look starts 
     expect(look).toMatchObject({ status: "reviewed", review_version: 2 });
 
     const trial = (await fetchTrial(trialId))!;
-    const json = await loadReproducibilityRecord(trial, lockedLook);
+    const json = await loadReproducibilityRecord(trial, lockedLook, asClosedConnection(db));
     expect(json.provenance.reviewVersion).toBe(2);
     expect(json.provenance.designVersion).toMatchObject({ id: look.design_id, version: 1 });
     const lockSig = await db("signatures").where({ id: look.lock_signature_id }).first();

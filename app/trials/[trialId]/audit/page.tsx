@@ -19,7 +19,7 @@ export default async function AuditPage({ params }: { params: Promise<{ trialId:
       {rows.length === 0 ? (
         <p className="text-sm text-stone-600">No audit entries for this trial yet.</p>
       ) : (
-        <AuditGrid entries={rows.map(auditEntryJson)} openOnly={openOnly} trialCode={trial.code} />
+        <AuditGrid entries={rows.map((r) => auditEntryJson(r, { hashes: !openOnly }))} openOnly={openOnly} trialCode={trial.code} />
       )}
     </Card>
   );

@@ -9,7 +9,8 @@ import { revalidatePath } from "next/cache";
 import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { requireTrialAccess, type TrialAccess } from "@/lib/auth";
-import { HttpError } from "@/lib/http";
+import { HttpError, publicErrorMessage } from "@/lib/http";
+import { StatsDomainError } from "@/lib/stats/validate";
 import { fetchAnalysisOpen } from "@/db/queries/open-status";
 import { fetchMemberships } from "@/db/queries/memberships";
 import { fetchAttendees, fetchMeeting, insertMeeting, recordAttendance, updateMeetingStatus } from "@/db/queries/meetings";
@@ -74,8 +75,20 @@ export async function scheduleMeeting(_prev: MeetingFormState, form: FormData): 
       entityType: "meeting",
       entityId: id,
       visibility: "open",
-      newValues: { lookNumber: analysis.look_number, scheduledAt: when.utc.toISOString(), timeZone: v.timeZone, attendees: v.attendeeIds, reminderDaysBefore: v.reminderDaysBefore, openAgenda: v.openAgenda, closedAgenda: v.closedAgenda },
+      newValues: { lookNumber: analysis.look_number, scheduledAt: when.utc.toISOString(), timeZone: v.timeZone, attendees: v.attendeeIds, reminderDaysBefore: v.reminderDaysBefore, openAgenda: v.openAgenda },
     });
+    // Closed text (db/classification.ts) goes only into a closed row, never into the open one above.
+    if (v.closedAgenda.trim())
+      await appendAudit(tx, {
+        actorUserId: a.user.id,
+        actorEmail: a.user.email,
+        trialId: a.trial.id,
+        action: "meeting_closed_agenda_set",
+        entityType: "meeting",
+        entityId: id,
+        visibility: "closed",
+        newValues: { closedAgenda: v.closedAgenda },
+      });
     return id;
   });
   revalidatePath(`/trials/${a.trial.id}/meetings`);
@@ -88,13 +101,13 @@ export async function generatePackets(_prev: MeetingFormState, form: FormData): 
   const ref = meetingRefSchema.safeParse({ trialId: form.get("trialId"), meetingId: form.get("meetingId") });
   if (!ref.success) return { error: "That meeting is not valid." };
   try {
-    const r = await generateMeetingPackets(a.trial, ref.data.meetingId, a.user);
+    const r = await generateMeetingPackets(a.trial, ref.data.meetingId, a.user, new Date(), { unblinded: a.unblinded });
     const open = `Open report: version ${r.open.version}${r.open.created ? " (new)" : " (unchanged)"}.`;
     const closed = "skipped" in r.closed ? `Closed report not made: ${r.closed.skipped}.` : `Closed report: version ${r.closed.version}${r.closed.created ? " (new)" : " (unchanged)"}.`;
     revalidatePath(`/trials/${a.trial.id}/meetings/${ref.data.meetingId}`);
     return { ok: `${open} ${closed}` };
   } catch (e) {
-    if (e instanceof HttpError) return { error: e.message };
+    if (e instanceof HttpError || e instanceof StatsDomainError) return { error: publicErrorMessage(e, a.unblinded) };
     throw e;
   }
 }

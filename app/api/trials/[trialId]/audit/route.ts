@@ -20,5 +20,5 @@ export const GET = handle(async (req: Request, ctx: { params: Promise<{ trialId:
   const { limit } = querySchema.parse(Object.fromEntries(new URL(req.url).searchParams));
   const openOnly = !allows(principal, "viewAuditClosed");
   const rows = await fetchAuditEvents({ trialId, openOnly, limit });
-  return NextResponse.json({ openOnly, entries: rows.map(auditEntryJson) });
+  return NextResponse.json({ openOnly, entries: rows.map((r) => auditEntryJson(r, { hashes: !openOnly })) });
 });

@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { authorizePage } from "@/lib/auth";
+import { authorizePage, closedConnection } from "@/lib/auth";
 import { parseId } from "@/lib/route-params";
 import { HttpError } from "@/lib/http";
 import { ANALYSIS_STATUS_LABELS, formatRate } from "@/lib/format";
@@ -23,7 +23,8 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
   const p = await params;
   const trialId = parseId(p.trialId);
   const analysisId = parseId(p.analysisId);
-  const { trial, user } = await authorizePage(trialId, "enterData");
+  const access = await authorizePage(trialId, "enterData");
+  const { trial, user } = access;
   let look: LookContext;
   try {
     look = await loadLookContext(trial.id, analysisId);
@@ -34,8 +35,8 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
   const a = look.analysis;
   // Closed data: this page is reachable only with enterData (unblinded statistician).
   const [counts, patients, signature] = await Promise.all([
-    fetchArmCounts(a.id),
-    fetchPatientOutcomeGrid(a.id),
+    fetchArmCounts(a.id, closedConnection(access)),
+    fetchPatientOutcomeGrid(a.id, closedConnection(access)),
     a.status === "locked" || a.status === "reviewed" ? fetchLockSignature(a.id) : Promise.resolve(undefined),
   ]);
   const countValues = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities }));

@@ -17,7 +17,7 @@ import "server-only";
  * Callers (route handlers, tests) have already authorized the actor with enterData.
  */
 import { createHash } from "node:crypto";
-import { db, writeTransaction, type Tx } from "@/db/knex";
+import { db, writeTransaction, type ClosedReader, type Tx } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { fetchAnalysisForUpdate, fetchNeighbourCutoffs, updateAnalysisOpenFields, type AnalysisLockedRow } from "@/db/queries/analyses";
 import {
@@ -258,11 +258,11 @@ function withCountsProblems(preview: UploadPreview, problems: CountsProblem[]): 
   return { ok: false, rowCount: preview.rowCount, issueCount: issues.length, issues, excluded: preview.excluded };
 }
 
-export async function previewPatientUpload(trialId: number, analysisId: number, bytes: Uint8Array): Promise<UploadPreview> {
+export async function previewPatientUpload(trialId: number, analysisId: number, bytes: Uint8Array, closed: ClosedReader): Promise<UploadPreview> {
   const ctx = await loadLookContext(trialId, analysisId);
   const { result, preview } = checkUpload(ctx, bytes);
   if (!result.ok) return preview;
-  return withCountsProblems(preview, countsProblems(ctx, result.counts, await fetchNeighbourLockedCounts(trialId, ctx.analysis.look_number)));
+  return withCountsProblems(preview, countsProblems(ctx, result.counts, await fetchNeighbourLockedCounts(trialId, ctx.analysis.look_number, closed)));
 }
 
 /**

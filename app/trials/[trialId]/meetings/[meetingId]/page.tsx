@@ -8,6 +8,7 @@ import { fetchAttendees, fetchMeeting } from "@/db/queries/meetings";
 import { fetchPackets } from "@/db/queries/packets";
 import { fetchEmailsForMeeting } from "@/db/queries/emails";
 import { fetchRecommendationsOpen } from "@/db/queries/open-status";
+import { fetchClosedAgenda } from "@/db/queries/closed";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { DECISION_LABELS } from "@/lib/format";
 import { formatMeetingTime } from "@/lib/packets/meeting-time";
@@ -28,7 +29,8 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
   const p = await params;
   const trialId = parseId(p.trialId);
   const meetingId = parseId(p.meetingId);
-  const { trial, principal, unblinded } = await authorizePage(trialId, "viewOpen");
+  const access = await authorizePage(trialId, "viewOpen");
+  const { trial, principal, unblinded } = access;
   const meeting = await fetchMeeting(trial.id, meetingId);
   if (!meeting) notFound();
   const manage = allows(principal, "manageMeetings");
@@ -40,6 +42,8 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
     manage ? fetchEmailsForMeeting(meeting.id) : Promise.resolve([]),
     fetchRecommendationsOpen(trial.id),
   ]);
+  // Closed text: read only with an unblinded access's closed connection (the organiser who typed it may be blinded and not read it back).
+  const closedAgenda = access.unblinded ? await fetchClosedAgenda(meeting.id, access.closed) : null;
   const when = new Date(meeting.scheduled_at);
   const started = when.getTime() <= Date.now();
   const recommendation = recommendations.find((r) => r.analysisId === meeting.analysis_id);
@@ -68,11 +72,13 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
           </dl>
           <h3 className="mt-4 text-sm font-semibold">Open session agenda</h3>
           <p className="whitespace-pre-wrap text-sm text-stone-700">{meeting.open_agenda || "None entered."}</p>
-          {unblinded || manage ? (
+          {unblinded && closedAgenda !== null ? (
             <>
               <h3 className="mt-3 text-sm font-semibold">Closed session agenda</h3>
-              <p className="whitespace-pre-wrap text-sm text-stone-700">{meeting.closed_agenda || "None entered."}</p>
+              <p className="whitespace-pre-wrap text-sm text-stone-700">{closedAgenda || "None entered."}</p>
             </>
+          ) : manage ? (
+            <p className="mt-3 text-xs text-stone-500">The closed session agenda is shown only to the DMC and the unblinded statistician.</p>
           ) : null}
         </Card>
         <Card title="Attendees">

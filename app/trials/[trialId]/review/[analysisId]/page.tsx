@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { authorizePage, allows } from "@/lib/auth";
+import { authorizePage, allows, closedConnection } from "@/lib/auth";
 import { parseId } from "@/lib/route-params";
 import { HttpError } from "@/lib/http";
 import { StatsDomainError } from "@/lib/stats/validate";
@@ -42,10 +42,11 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
   const p = await params;
   const trialId = parseId(p.trialId);
   const analysisId = parseId(p.analysisId);
-  const { trial, principal, user } = await authorizePage(trialId, "viewClosed");
+  const access = await authorizePage(trialId, "viewClosed");
+  const { trial, principal, user } = access;
   let loaded;
   try {
-    loaded = await loadReview(trial, analysisId);
+    loaded = await loadReview(trial, analysisId, closedConnection(access));
   } catch (e) {
     if (e instanceof HttpError && e.status === 409) return <Banner tone="warning" title="Nothing to review yet">{e.message}</Banner>;
     if (e instanceof StatsDomainError)

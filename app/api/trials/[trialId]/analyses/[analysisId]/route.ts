@@ -1,5 +1,5 @@
 import { NextResponse } from "next/server";
-import { allows, requireTrialAccess } from "@/lib/auth";
+import { allows, closedConnection, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
 import { loadLookContext } from "@/app/trials/[trialId]/analyses/_lib/service";
@@ -22,7 +22,7 @@ export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
     safetyRule: look.safetyRule,
   };
   if (allows(access.principal, "viewClosed") || allows(access.principal, "enterData")) {
-    const [counts, patientRows] = await Promise.all([fetchArmCounts(analysisId), countPatientOutcomes(analysisId)]);
+    const [counts, patientRows] = await Promise.all([fetchArmCounts(analysisId, closedConnection(access)), countPatientOutcomes(analysisId, closedConnection(access))]);
     body.counts = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities }));
     body.patientRows = patientRows;
     // patient: counts derived from the patient rows; count: typed in (no patient rows).

@@ -1,6 +1,6 @@
 import { NextResponse } from "next/server";
 import { z } from "zod";
-import { requireTrialAccess } from "@/lib/auth";
+import { closedConnection, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { loadArmPosterior } from "@/lib/review/load-review";
 import { intervalProbabilityOf } from "@/lib/review/compute-review";
@@ -25,9 +25,10 @@ const querySchema = z
 /** CLOSED: the reviewer's interval question, P(lo < p <= hi | data) for one arm at this look. */
 export const GET = handle(async (req: Request, ctx: AnalysisRouteContext) => {
   const { trialId, analysisId } = await analysisRouteIds(ctx);
-  const { trial } = await requireTrialAccess(trialId, "viewClosed");
+  const access = await requireTrialAccess(trialId, "viewClosed");
+  const { trial } = access;
   const sp = new URL(req.url).searchParams;
   const q = querySchema.parse({ arm: sp.get("arm") ?? undefined, lo: sp.get("lo") ?? undefined, hi: sp.get("hi") ?? undefined });
-  const posterior = await loadArmPosterior(trial, analysisId, q.arm);
+  const posterior = await loadArmPosterior(trial, analysisId, q.arm, closedConnection(access));
   return NextResponse.json({ arm: q.arm, lo: q.lo, hi: q.hi, probability: intervalProbabilityOf(posterior, q.lo, q.hi) }, { headers: { "Cache-Control": "no-store" } });
 });

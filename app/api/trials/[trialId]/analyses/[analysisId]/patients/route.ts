@@ -1,5 +1,5 @@
 import { NextResponse } from "next/server";
-import { allows, requireTrialAccess } from "@/lib/auth";
+import { allows, closedConnection, requireTrialAccess } from "@/lib/auth";
 import { forbiddenError, handle } from "@/lib/http";
 import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
 import { loadLookContext } from "@/app/trials/[trialId]/analyses/_lib/service";
@@ -14,6 +14,6 @@ export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
   const access = await requireTrialAccess(trialId, "viewOpen");
   if (!allows(access.principal, "viewClosed") && !allows(access.principal, "enterData")) throw forbiddenError("viewing closed (unblinded) results");
   await loadLookContext(trialId, analysisId);
-  const rows = await fetchPatientOutcomeGrid(analysisId);
+  const rows = await fetchPatientOutcomeGrid(analysisId, closedConnection(access));
   return NextResponse.json({ patients: rows.map(patientJson) });
 });

@@ -1,4 +1,4 @@
-import { requireTrialAccess } from "@/lib/auth";
+import { closedConnection, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { loadReproducibilityRecord } from "@/lib/review/load-review";
 import { analysisRouteIds, type AnalysisRouteContext } from "@/lib/review/route-ids";
@@ -8,8 +8,9 @@ export const dynamic = "force-dynamic";
 /** CLOSED: the reproducibility record (inputs, engine version, outputs, time) as a JSON download. */
 export const GET = handle(async (_req: Request, ctx: AnalysisRouteContext) => {
   const { trialId, analysisId } = await analysisRouteIds(ctx);
-  const { trial } = await requireTrialAccess(trialId, "viewClosed");
-  const record = await loadReproducibilityRecord(trial, analysisId);
+  const access = await requireTrialAccess(trialId, "viewClosed");
+  const { trial } = access;
+  const record = await loadReproducibilityRecord(trial, analysisId, closedConnection(access));
   const name = `${trial.code}-look-${record.outputs.lookNumber}-closed-review.json`.replace(/[^A-Za-z0-9._-]/g, "_");
   return new Response(JSON.stringify(record, null, 2), {
     headers: {

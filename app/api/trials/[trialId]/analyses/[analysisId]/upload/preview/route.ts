@@ -1,5 +1,5 @@
 import { NextResponse } from "next/server";
-import { requireTrialAccess } from "@/lib/auth";
+import { closedConnection, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
 import { previewPatientUpload } from "@/app/trials/[trialId]/analyses/_lib/service";
@@ -13,7 +13,7 @@ export const dynamic = "force-dynamic";
  */
 export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  await requireTrialAccess(trialId, "enterData");
+  const access = await requireTrialAccess(trialId, "enterData");
   const bytes = await readCsvUpload(req);
-  return NextResponse.json(await previewPatientUpload(trialId, analysisId, bytes));
+  return NextResponse.json(await previewPatientUpload(trialId, analysisId, bytes, closedConnection(access)));
 });
