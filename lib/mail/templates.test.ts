@@ -40,7 +40,8 @@ describe("closedNoticeMail", () => {
     const closedData = { posteriorProbability: 0.9137, responders: 173, evaluable: 419, predictiveProbability: 0.0271 };
     const plain = closedNoticeMail({ ...ctx, packetVersion: 2, link: "L" });
     // @ts-expect-error the template's type has no field for closed data
-    const careless = closedNoticeMail({ ...ctx, ...closedData, packetVersion: 2, link: "L" });
+    const careless = closedNoticeMail({ ...ctx, packetVersion: 2, link: "L", posteriorProbability: closedData.posteriorProbability, responders: closedData.responders });
+    expect(closedNoticeMail({ ...ctx, ...closedData, packetVersion: 2, link: "L" })).toEqual(plain);
     expect(careless).toEqual(plain);
     for (const v of ["9137", "91.4", "173", "419", "0271", "2.7%"]) expect(careless.text).not.toContain(v);
     expect(m.text).not.toMatch(/posterior|responders|predictive probability/i);
