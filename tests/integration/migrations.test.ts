@@ -76,8 +76,8 @@ const FIXTURES: Record<string, Record<string, unknown>[]> = {
   sign_in_failures: [{ id: 1, scope: "account", subject: SIGNER.email, failed_at: "2026-12-01 08:00:00.000" }],
 };
 
-async function rows<T>(sql: string, bindings: unknown[] = []): Promise<T[]> {
-  const [r] = await owner.raw(sql, bindings);
+async function rows<T>(sql: string): Promise<T[]> {
+  const [r] = await owner.raw(sql);
   return r as T[];
 }
 
