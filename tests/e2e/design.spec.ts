@@ -40,11 +40,11 @@ async function createTrial(page: Page, opts: { code: string; designType: "single
 }
 
 async function waitForPreview(page: Page) {
-  await expect(page.getByTestId("preview-status")).toHaveText("up to date", { timeout: 30_000 });
+  await expect(page.getByTestId("preview-status")).toHaveText("up to date", { timeout: 60_000 });
 }
 
 test("a statistician designs a single-arm trial, calibrates it and locks it with a signature", async ({ page }) => {
-  test.setTimeout(180_000);
+  test.setTimeout(300_000);
   await signIn(page, "statistician");
   await createTrial(page, { code: `E2E-S-${suffix}`, designType: "single" });
 
@@ -136,7 +136,6 @@ test("a statistician designs a single-arm trial, calibrates it and locks it with
 });
 
 test("a statistician designs a two-arm trial and the operating characteristics match the engine", async ({ page }) => {
-  test.setTimeout(120_000);
   await signIn(page, "statistician");
   await createTrial(page, { code: `E2E-T-${suffix}`, designType: "two" });
   await page.getByLabel(/Prior on the control arm/).selectOption("informative");

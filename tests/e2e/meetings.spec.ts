@@ -29,8 +29,8 @@ async function openTrial(page: Page, code: string): Promise<string> {
 }
 
 test("the coordinator schedules a meeting, generates and sends the packet, and sees delivery", async ({ page }) => {
-  // PDF generation and background delivery on a busy 2-core machine: allow more than the default minute.
-  test.setTimeout(150_000);
+  // PDF generation and background delivery on a busy 2-core machine: more than the default bound.
+  test.setTimeout(300_000);
   await signIn(page, "coordinator");
   const base = await openTrial(page, "CRN-201");
   await page.getByRole("link", { name: "Meetings" }).click();

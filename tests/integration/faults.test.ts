@@ -13,11 +13,12 @@ import { existsSync, mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { signInCookie } from "../support/http-session";
+import { freePort } from "./support/free-port";
 
 const root = path.resolve(__dirname, "../..");
 const scratch = mkdtempSync(path.join(tmpdir(), "cairn-fault-"));
-const DB_PORT = "3419";
-const APP_PORT = 3111;
+const DB_PORT = String(await freePort());
+const APP_PORT = await freePort([Number(DB_PORT)]);
 const base = `http://localhost:${APP_PORT}`;
 const env = {
   ...process.env,

@@ -21,8 +21,10 @@ import { queueDueReminders, queuePacketMail } from "@/lib/mail/outbox";
 import { attemptDelivery, deliverWithRetries, retryDueMessages, type RetryPolicy } from "@/lib/mail/delivery";
 import { CAUTION_TEXT } from "@/components/caution";
 import type { PublicUser, TrialRow } from "@/db/types";
+import { freePort } from "./support/free-port";
 
-const PORT = 2614;
+// A free port, not a fixed one: another test run on the machine may hold any fixed number.
+const PORT = await freePort();
 process.env.SMTP_HOST = "127.0.0.1";
 process.env.SMTP_PORT = String(PORT);
 process.env.NEXTAUTH_URL = "http://localhost:3999";

@@ -9,9 +9,10 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { execFileSync, spawn, type ChildProcess } from "node:child_process";
 import { existsSync } from "node:fs";
 import path from "node:path";
+import { freePort } from "./support/free-port";
 
 const root = path.resolve(__dirname, "../..");
-const APP_PORT = 3112;
+const APP_PORT = await freePort();
 const base = `http://localhost:${APP_PORT}`;
 const distDir = process.env.NEXT_DIST_DIR || ".next";
 const built = existsSync(path.join(root, distDir, "BUILD_ID"));
