@@ -17,6 +17,9 @@ export const PREVIEW_DEBOUNCE_MS = 400;
 
 export function usePreview(trialId: number, design: Design | null) {
   const [result, setResult] = useState<{ design: Design; preview: DesignPreview } | null>(null);
+  // The inputs the last answer (result or error) was for: until it matches the current inputs, the
+  // shown result is the previous design's, and the status must not call it up to date.
+  const [answeredKey, setAnsweredKey] = useState<string | null>(null);
   const [computing, setComputing] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const key = design ? JSON.stringify(design) : null;
@@ -34,16 +37,18 @@ export function usePreview(trialId: number, design: Design | null) {
         if (!res.ok) throw new Error(body.error ?? `The server answered ${res.status}.`);
         setResult({ design: JSON.parse(key) as Design, preview: body.preview as DesignPreview });
         setError(null);
+        setAnsweredKey(key);
       } catch (e) {
         if ((e as Error).name === "AbortError") return;
         setError((e as Error).message || "The preview could not be computed.");
+        setAnsweredKey(key);
       } finally {
         if (controller.current === c) setComputing(false);
       }
     }, PREVIEW_DEBOUNCE_MS);
     return () => clearTimeout(timer);
   }, [trialId, key]);
-  return { result, computing, error };
+  return { result, computing, error, pending: key !== null && answeredKey !== key };
 }
 
 function Stat({ label, value, testId, note }: { label: string; value: string; testId: string; note?: string }) {
@@ -274,7 +279,7 @@ function PriorDensities({ p }: { p: DesignPreview }) {
 
 /** Shows the last result with the design it was computed for (labels and numbers always agree). */
 export function PreviewPanel({ preview, invalid }: { preview: ReturnType<typeof usePreview>; invalid: boolean }) {
-  const { result, computing, error } = preview;
+  const { result, computing, error, pending } = preview;
   const shown = result?.preview ?? null;
   const design = result?.design ?? null;
   return (
@@ -282,7 +287,7 @@ export function PreviewPanel({ preview, invalid }: { preview: ReturnType<typeof 
       <div className="flex items-center justify-between">
         <h2 className="text-lg font-semibold">Boundaries and operating characteristics</h2>
         <span role="status" aria-live="polite" className="text-xs text-stone-500" data-testid="preview-status">
-          {computing ? "computing…" : invalid ? "waiting for valid inputs" : shown ? "up to date" : ""}
+          {computing ? "computing…" : invalid ? "waiting for valid inputs" : pending ? "updating…" : shown ? "up to date" : ""}
         </span>
       </div>
       <p className="text-xs text-stone-500">Exact: forward recursion over the binomial outcomes between looks (no simulation). Rounded on screen; the CSV and API carry full precision.</p>

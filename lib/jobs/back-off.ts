@@ -20,13 +20,21 @@ export function pauseBeforeNextSlice(utilization: number, sliceMs: number): numb
   return Math.min(MAX_PAUSE_MS, Math.round(busy * MAX_PAUSE_PER_SLICE * sliceMs));
 }
 
-/** Event-loop utilisation since the previous call of this watcher (node:perf_hooks). */
-export function eventLoopWatcher(): () => number {
-  let last: EventLoopUtilization = performance.eventLoopUtilization();
+/** A reading of the event loop's cumulative idle and active time (node:perf_hooks' shape). */
+export type LoopTimes = Pick<EventLoopUtilization, "idle" | "active">;
+
+/**
+ * Event-loop utilisation since the previous call of this watcher: active / (idle + active) over
+ * the interval, from two cumulative readings. `read` is the clock (node:perf_hooks by default); a
+ * test passes its own readings, so the arithmetic is checked exactly, independent of machine load.
+ */
+export function eventLoopWatcher(read: () => LoopTimes = () => performance.eventLoopUtilization()): () => number {
+  let last = read();
   return () => {
-    const now = performance.eventLoopUtilization();
-    const since = performance.eventLoopUtilization(now, last);
+    const now = read();
+    const idle = now.idle - last.idle;
+    const active = now.active - last.active;
     last = now;
-    return since.utilization;
+    return idle + active > 0 ? active / (idle + active) : 0;
   };
 }

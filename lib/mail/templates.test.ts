@@ -36,8 +36,27 @@ describe("closedNoticeMail", () => {
     expect(m.text).toContain(CAUTION_TEXT);
   });
   it("has no slot for results: the body is the same whatever the closed data", () => {
-    expect(closedNoticeMail({ ...ctx, packetVersion: 2, link: "L" }).text).toBe(closedNoticeMail({ ...ctx, packetVersion: 2, link: "L" }).text);
+    // Closed values with digits found nowhere else in the context, passed along by a careless caller.
+    const closedData = { posteriorProbability: 0.9137, responders: 173, evaluable: 419, predictiveProbability: 0.0271 };
+    const plain = closedNoticeMail({ ...ctx, packetVersion: 2, link: "L" });
+    // @ts-expect-error the template's type has no field for closed data
+    const careless = closedNoticeMail({ ...ctx, packetVersion: 2, link: "L", posteriorProbability: closedData.posteriorProbability, responders: closedData.responders });
+    expect(closedNoticeMail({ ...ctx, ...closedData, packetVersion: 2, link: "L" })).toEqual(plain);
+    expect(careless).toEqual(plain);
+    for (const v of ["9137", "91.4", "173", "419", "0271", "2.7%"]) expect(careless.text).not.toContain(v);
     expect(m.text).not.toMatch(/posterior|responders|predictive probability/i);
+  });
+
+  it("reads no field but the meeting's open facts and the link", () => {
+    const read = new Set<string>();
+    const watched = new Proxy({ ...ctx, packetVersion: 2, link: "L", responders: 173 }, {
+      get(target, key, receiver) {
+        if (typeof key === "string") read.add(key);
+        return Reflect.get(target, key, receiver);
+      },
+    });
+    closedNoticeMail(watched);
+    expect([...read].sort()).toEqual(["link", "lookNumber", "meetingWhen", "packetVersion", "recipientName", "senderName", "trialCode", "trialTitle"]);
   });
 });
 

@@ -8,6 +8,8 @@ test("the administrator creates an account without ever choosing its password; t
   await page.goto("/admin");
   const form = page.getByRole("form", { name: "Create an account" });
   const accounts = page.getByRole("table", { name: "Accounts" });
+  // count() does not wait: read it once the table is on the page.
+  await expect(accounts.getByRole("row").first()).toBeVisible();
   const before = await accounts.getByRole("row").count();
 
   // No password field for the administrator to fill.

@@ -40,11 +40,11 @@ async function createTrial(page: Page, opts: { code: string; designType: "single
 }
 
 async function waitForPreview(page: Page) {
-  await expect(page.getByTestId("preview-status")).toHaveText("up to date", { timeout: 30_000 });
+  await expect(page.getByTestId("preview-status")).toHaveText("up to date", { timeout: 60_000 });
 }
 
 test("a statistician designs a single-arm trial, calibrates it and locks it with a signature", async ({ page }) => {
-  test.setTimeout(180_000);
+  test.setTimeout(300_000);
   await signIn(page, "statistician");
   await createTrial(page, { code: `E2E-S-${suffix}`, designType: "single" });
 
@@ -164,7 +164,8 @@ test("a statistician designs a single-arm trial, calibrates it and locks it with
 });
 
 test("a statistician designs a two-arm trial and the operating characteristics match the engine", async ({ page }) => {
-  test.setTimeout(120_000);
+  // Two-arm previews are the heaviest computation in the browser tests; on a loaded machine more than the default bound.
+  test.setTimeout(300_000);
   await signIn(page, "statistician");
   await createTrial(page, { code: `E2E-T-${suffix}`, designType: "two" });
   await page.getByLabel(/Prior on the control arm/).selectOption("informative");
@@ -197,5 +198,4 @@ test("a statistician designs a two-arm trial and the operating characteristics m
   await expect(page.getByTestId("prior-ess").nth(1)).toHaveText("10.0");
   await page.getByRole("button", { name: "Save draft" }).click();
   await expect(page.getByText(/Draft version 1 saved/)).toBeVisible();
-  await page.screenshot({ path: "/tmp/design-a-two-arm.png", fullPage: true });
 });

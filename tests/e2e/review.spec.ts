@@ -11,7 +11,7 @@ import { findOutcomeData } from "./support/authorization-matrix";
 import { betaCdf } from "@/lib/stats/distributions";
 
 // The review page computes on the server and Plotly loads lazily: allow for a loaded shared machine.
-test.describe.configure({ mode: "serial", timeout: 180_000 });
+test.describe.configure({ mode: "serial", timeout: 300_000 });
 
 /** The demo single-arm design's prior, Beta(0.6, 0.4) (db/seeds/demo.ts). */
 const PRIOR = { a: 0.6, b: 0.4 };

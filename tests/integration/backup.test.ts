@@ -11,9 +11,10 @@ import knexFactory, { type Knex } from "knex";
 import { db, resetDatabase } from "./support/db";
 import { seedDemo } from "@/db/seeds/demo";
 import { verifyAuditChain } from "@/db/audit";
+import { freePort } from "./support/free-port";
 
 const dir = mkdtempSync(path.join(tmpdir(), "cairn-restore-"));
-const port = 3418;
+const port = await freePort();
 const sock = path.join(dir, "mariadb.sock");
 const dump = path.join(dir, "backup.sql.gz");
 let restored: Knex;

@@ -21,8 +21,10 @@ import { queueDueReminders, queuePacketMail } from "@/lib/mail/outbox";
 import { attemptDelivery, deliverWithRetries, retryDueMessages, type RetryPolicy } from "@/lib/mail/delivery";
 import { CAUTION_TEXT } from "@/components/caution";
 import type { PublicUser, TrialRow } from "@/db/types";
+import { freePort } from "./support/free-port";
 
-const PORT = 2614;
+// A free port, not a fixed one: another test run on the machine may hold any fixed number.
+const PORT = await freePort();
 process.env.SMTP_HOST = "127.0.0.1";
 process.env.SMTP_PORT = String(PORT);
 process.env.NEXTAUTH_URL = "http://localhost:3999";
@@ -149,16 +151,18 @@ describe("when the mail server is down", () => {
     const q = await queuePacketMail(trial, meetingId, coordinator);
     const first = await Promise.all(q.ids.map((id) => attemptDelivery(id, FAST)));
     expect(first.every((o) => o === "retry")).toBe(true);
+    let due = 0;
     for (const id of q.ids) {
       const row = (await fetchEmail(id))!;
       expect(row.status).toBe("queued");
       expect(row.attempts).toBe(1);
       expect(row.last_error).toMatch(/ECONNREFUSED/);
       expect(row.next_attempt_at).not.toBeNull();
+      due = Math.max(due, new Date(row.next_attempt_at!).getTime());
     }
     await startCatcher();
-    await new Promise((r) => setTimeout(r, 250));
-    const swept = await retryDueMessages(FAST);
+    // The sweep runs at the moment the last retry falls due (its clock is a parameter), not after a sleep.
+    const swept = await retryDueMessages(FAST, new Date(due));
     expect(q.ids.map((id) => swept[id])).toEqual(q.ids.map(() => "sent"));
     for (const id of q.ids) expect((await fetchEmail(id))!).toMatchObject({ status: "sent", attempts: 2 });
     expect((await caught()).length).toBe(before + q.ids.length);

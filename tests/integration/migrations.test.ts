@@ -1,4 +1,11 @@
+/**
+ * Every migration, one at a time, with data in the tables that exist before it: up changes exactly
+ * what its line in EXPECTED says and keeps every existing row, down restores the schema and the rows
+ * exactly, and up again gives the same schema. A new migration needs its line here (and a fixture
+ * row if it creates a table), or the first test fails and says so.
+ */
 import { afterAll, describe, expect, it } from "vitest";
+import type { Knex } from "knex";
 import { ownerKnex, resetDatabase } from "./support/db";
 import { migrationNames } from "@/db/migrations";
 
@@ -8,30 +15,197 @@ afterAll(async () => {
   await owner.destroy();
 });
 
-async function tables(): Promise<string[]> {
-  const [rows] = await owner.raw("SELECT table_name AS t FROM information_schema.tables WHERE table_schema = DATABASE() AND table_name NOT LIKE 'knex_%'");
-  return (rows as { t: string }[]).map((r) => r.t).sort();
+/** What each migration changes, written by hand from its file: "table t", "column t.c", "index t.i", "trigger g". */
+const EXPECTED: Record<string, string[]> = {
+  "20261202000100_create_users": ["table users"],
+  "20261202000200_create_trials": ["table trials"],
+  "20261202000300_create_arms": ["table arms"],
+  "20261202000400_create_trial_memberships": ["table trial_memberships"],
+  "20261202000500_create_signatures": ["table signatures"],
+  "20261202000600_create_designs": ["table designs"],
+  "20261202000700_create_analyses": ["table analyses"],
+  "20261202000800_create_analysis_arm_counts": ["table analysis_arm_counts"],
+  "20261202000900_create_patient_outcomes": ["table patient_outcomes"],
+  "20261202001000_create_recommendations": ["table recommendations"],
+  "20261202001100_create_audit_events": ["table audit_events"],
+  "20261202001200_create_audit_chain_head": ["table audit_chain_head"],
+  "20261202001300_audit_events_refuse_update": ["trigger audit_events_refuse_update"],
+  "20261202001400_audit_events_refuse_delete": ["trigger audit_events_refuse_delete"],
+  "20261202002000_create_meetings": ["table meetings"],
+  "20261202002100_create_meeting_attendees": ["table meeting_attendees"],
+  "20261202002200_create_packets": ["table packets"],
+  "20261202002300_create_email_messages": ["table email_messages"],
+  "20261202002400_create_calibration_jobs": ["table calibration_jobs"],
+  "20261202002500_create_sign_in_failures": ["table sign_in_failures"],
+};
+
+const ALL_TABLES = Object.values(EXPECTED)
+  .flat()
+  .filter((c) => c.startsWith("table "))
+  .map((c) => c.slice(6))
+  .sort();
+
+const SIGNER = { email: "ilse.marrow@cairn.example", name: "Ilse Marrow (invented)" };
+const H = (c: string) => c.repeat(64);
+
+/** Rows put into each table as soon as it exists, with explicit ids and times so they compare exactly. */
+const FIXTURES: Record<string, Record<string, unknown>[]> = {
+  users: [{ id: 1, email: SIGNER.email, name: SIGNER.name, password_hash: "x".repeat(60), is_admin: 0, created_at: "2026-11-01 09:00:00.000", updated_at: "2026-11-01 09:00:00.000" }],
+  trials: [{ id: 1, code: "MIG-1", title: "Invented migration study", sponsor_name: "Invented sponsor", design_type: "two", endpoint_name: "Response", target_enrolment: 40, created_by: 1, created_at: "2026-11-01 09:01:00.000", updated_at: "2026-11-01 09:01:00.000" }],
+  arms: [
+    { id: 1, trial_id: 1, label: "Arm E", arm_role: "experimental", sort_order: 0 },
+    { id: 2, trial_id: 1, label: "Arm C", arm_role: "control", sort_order: 1 },
+  ],
+  trial_memberships: [{ id: 1, trial_id: 1, user_id: 1, role: "dmc_member", created_at: "2026-11-01 09:02:00.000" }],
+  signatures: [{ id: 1, user_id: 1, signer_name: SIGNER.name, signer_email: SIGNER.email, meaning: "design approved", entity_type: "design", entity_id: 1, record_hash: H("a"), signed_at: "2026-11-01 09:03:00.000" }],
+  designs: [{ id: 1, trial_id: 1, version: 1, status: "locked", spec: '{"arms":"two"}', signature_id: 1, created_by: 1, created_at: "2026-11-01 09:03:00.000", locked_at: "2026-11-01 09:03:00.000" }],
+  analyses: [{ id: 1, trial_id: 1, design_id: 1, look_number: 1, planned_n: 20, cutoff_date: "2026-11-01", enrolled_total: 20, status: "locked", lock_signature_id: 1, created_at: "2026-11-01 09:04:00.000", updated_at: "2026-11-01 09:04:00.000" }],
+  analysis_arm_counts: [
+    { id: 1, analysis_id: 1, arm_id: 1, enrolled: 10, evaluable: 10, responders: 4, toxicities: null },
+    { id: 2, analysis_id: 1, arm_id: 2, enrolled: 10, evaluable: 9, responders: 2, toxicities: 1 },
+  ],
+  patient_outcomes: [{ id: 1, analysis_id: 1, subject_id: "M-001", arm_id: 1, enrolled_on: "2026-10-01", evaluable: 1, responder: 1, toxicity: null, source_line: 2 }],
+  recommendations: [{ id: 1, trial_id: 1, analysis_id: 1, decision: "continue", rationale: "Invented rationale", signature_id: 1, created_by: 1, created_at: "2026-11-02 10:00:00.000" }],
+  audit_events: [{ id: 1, occurred_at: "2026-11-02 10:00:00.000", actor_user_id: 1, actor_email: SIGNER.email, trial_id: 1, action: "migration_test_row", entity_type: "trial", entity_id: "1", visibility: "open", new_values: '{"code":"MIG-1"}', prev_hash: H("0"), hash: H("b") }],
+  audit_chain_head: [{ id: 1, last_event_id: 1, last_hash: H("b") }],
+  meetings: [{ id: 1, trial_id: 1, analysis_id: 1, scheduled_at: "2027-01-10 09:00:00.000", time_zone: "Europe/Oslo", open_agenda: "1. Accrual", closed_agenda: "2. Closed review", created_by: 1, created_at: "2026-11-03 10:00:00.000", updated_at: "2026-11-03 10:00:00.000" }],
+  meeting_attendees: [{ id: 1, meeting_id: 1, user_id: 1, attended: null }],
+  packets: [{ id: 1, meeting_id: 1, version: 1, audience: "open", content_hash: H("c"), engine_version: "test", page_count: 1, byte_size: 5, pdf: Buffer.from("%PDF-"), created_at: "2026-11-03 11:00:00.000", created_by: 1 }],
+  email_messages: [{ id: 1, trial_id: 1, meeting_id: 1, packet_id: 1, to_user_id: 1, to_address: SIGNER.email, subject: "Invented subject", kind: "packet_open", body_text: "Invented body", created_by: 1, created_at: "2026-11-03 11:01:00.000" }],
+  calibration_jobs: [{ id: "00000000-0000-4000-8000-000000000001", trial_id: 1, user_id: 1, total: 9, best_json: "[]", started_at: "2026-11-03 12:00:00.000", heartbeat_at: "2026-11-03 12:00:05.000" }],
+  sign_in_failures: [{ id: 1, scope: "account", subject: SIGNER.email, failed_at: "2026-12-01 08:00:00.000" }],
+};
+
+async function rows<T>(sql: string): Promise<T[]> {
+  const [r] = await owner.raw(sql);
+  return r as T[];
 }
 
+async function tables(): Promise<string[]> {
+  return (await rows<{ t: string }>("SELECT table_name AS t FROM information_schema.tables WHERE table_schema = DATABASE() AND table_name NOT LIKE 'knex_%'")).map((r) => r.t).sort();
+}
+
+type Schema = { tables: string[]; columns: Record<string, string>; indexes: Record<string, string>; triggers: Record<string, string> };
+
+/** The schema as comparable text: columns with type, nullability, default, extra; indexes with their columns; triggers with their statement. */
+async function schema(): Promise<Schema> {
+  const columns: Record<string, string> = {};
+  for (const c of await rows<Record<string, string>>(
+    "SELECT table_name AS t, column_name AS c, column_type AS ty, is_nullable AS n, column_default AS d, extra AS e FROM information_schema.columns WHERE table_schema = DATABASE() AND table_name NOT LIKE 'knex_%'",
+  ))
+    columns[`${c.t}.${c.c}`] = `${c.ty} null=${c.n} default=${c.d} ${c.e}`;
+  const indexes: Record<string, string> = {};
+  for (const i of await rows<Record<string, string | number>>(
+    "SELECT table_name AS t, index_name AS i, non_unique AS u, GROUP_CONCAT(column_name ORDER BY seq_in_index) AS cs FROM information_schema.statistics WHERE table_schema = DATABASE() AND table_name NOT LIKE 'knex_%' GROUP BY table_name, index_name, non_unique",
+  ))
+    indexes[`${i.t}.${i.i}`] = `unique=${i.u === 0} (${i.cs})`;
+  for (const f of await rows<Record<string, string>>(
+    "SELECT table_name AS t, constraint_name AS k, referenced_table_name AS rt, delete_rule AS dr FROM information_schema.referential_constraints WHERE constraint_schema = DATABASE()",
+  ))
+    indexes[`${f.t}.${f.k}`] = `foreign key to ${f.rt} on delete ${f.dr}`;
+  const triggers: Record<string, string> = {};
+  for (const g of await rows<Record<string, string>>("SELECT trigger_name AS g, event_manipulation AS ev, event_object_table AS t, action_timing AS w, action_statement AS s FROM information_schema.triggers WHERE trigger_schema = DATABASE()"))
+    triggers[g.g] = `${g.w} ${g.ev} on ${g.t}: ${g.s}`;
+  return { tables: await tables(), columns, indexes, triggers };
+}
+
+/** Every row of every table, ordered by the first column (each table's primary key). */
+async function data(): Promise<Record<string, unknown[]>> {
+  const out: Record<string, unknown[]> = {};
+  for (const t of await tables()) out[t] = await rows(`SELECT * FROM \`${t}\` ORDER BY 1`);
+  return out;
+}
+
+/** The changes from one schema to another, in EXPECTED's words; a removal is prefixed with "-". */
+function changes(from: Schema, to: Schema): string[] {
+  const out: string[] = [];
+  for (const t of to.tables) if (!from.tables.includes(t)) out.push(`table ${t}`);
+  for (const t of from.tables) if (!to.tables.includes(t)) out.push(`-table ${t}`);
+  const inTableOfBoth = (key: string) => from.tables.includes(key.split(".")[0]) && to.tables.includes(key.split(".")[0]);
+  for (const [kind, a, b] of [
+    ["column", from.columns, to.columns],
+    ["index", from.indexes, to.indexes],
+  ] as const) {
+    for (const k of Object.keys(b)) if (inTableOfBoth(k) && !(k in a)) out.push(`${kind} ${k}`);
+    for (const k of Object.keys(a)) if (inTableOfBoth(k) && !(k in b)) out.push(`-${kind} ${k}`);
+    for (const k of Object.keys(b)) if (k in a && a[k] !== b[k]) out.push(`changed ${kind} ${k}`);
+  }
+  for (const g of Object.keys(to.triggers)) if (!(g in from.triggers)) out.push(`trigger ${g}`);
+  for (const g of Object.keys(from.triggers)) if (!(g in to.triggers)) out.push(`-trigger ${g}`);
+  return out.sort();
+}
+
+/** Does the audit trail refuse this statement (the append-only triggers)? Tried in a transaction that is rolled back. */
+async function refused(statement: (tx: Knex.Transaction) => Promise<unknown>): Promise<string | null> {
+  const tx = await owner.transaction();
+  try {
+    await statement(tx);
+    return null;
+  } catch (e) {
+    return (e as Error).message;
+  } finally {
+    await tx.rollback();
+  }
+}
+const updateAudit = (tx: Knex.Transaction) => tx("audit_events").where({ id: 1 }).update({ reason: "rewritten" });
+const deleteAudit = (tx: Knex.Transaction) => tx("audit_events").where({ id: 1 }).del();
+
 describe("migrations", () => {
-  it("run all the way down and back up again", async () => {
+  it("each has a line in this test's expectations, in order", () => {
+    expect(migrationNames).toEqual(Object.keys(EXPECTED));
+  });
+
+  it("run all the way down to an empty schema and back up to exactly the expected tables", async () => {
     await owner.migrate.rollback(undefined, true);
     expect(await tables()).toEqual([]);
     const [, applied] = await owner.migrate.latest();
     expect(applied).toEqual(migrationNames);
-    expect(await tables()).toEqual(
-      expect.arrayContaining(["users", "trials", "arms", "trial_memberships", "designs", "analyses", "analysis_arm_counts", "patient_outcomes", "audit_events", "signatures", "recommendations"]),
-    );
+    expect(await tables()).toEqual(ALL_TABLES);
   });
 
-  it("step down one at a time and each down undoes its up", async () => {
-    await owner.migrate.latest();
-    const before = await tables();
-    await owner.migrate.down();
-    const after = await tables();
-    // The last migration either drops a table or a trigger; in both cases nothing else changes.
-    expect(after.length === before.length || after.length === before.length - 1).toBe(true);
-    await owner.migrate.up();
-    expect(await tables()).toEqual(before);
-  });
+  it("one at a time with rows in place: up changes what it should and keeps the rows, down restores schema and rows", async () => {
+    await owner.migrate.rollback(undefined, true);
+    expect(await tables()).toEqual([]);
+    for (const name of migrationNames) {
+      const schemaBefore = await schema();
+      const dataBefore = await data();
+
+      const [, up] = await owner.migrate.up();
+      expect(up, "migrations are applied in the listed order").toEqual([name]);
+      const schemaAfter = await schema();
+      expect(changes(schemaBefore, schemaAfter), name).toEqual([...EXPECTED[name]].sort());
+      const dataAfter = await data();
+      for (const t of schemaBefore.tables) expect(dataAfter[t], `${name} keeps the rows of ${t}`).toEqual(dataBefore[t]);
+      for (const t of schemaAfter.tables.filter((t) => !schemaBefore.tables.includes(t))) expect(dataAfter[t], `${name} creates ${t} empty`).toEqual([]);
+
+      const [, down] = await owner.migrate.down();
+      expect(down).toEqual([name]);
+      expect(changes(schemaBefore, await schema()), `${name} down leaves no trace`).toEqual([]);
+      expect(await schema(), `${name} down restores the schema exactly`).toEqual(schemaBefore);
+      expect(await data(), `${name} down keeps every row`).toEqual(dataBefore);
+
+      await owner.migrate.up();
+      expect(await schema(), `${name} up again gives the same schema`).toEqual(schemaAfter);
+
+      // The append-only triggers: in force after their up, gone after their down (checked above by schema; here by behaviour).
+      if (name.endsWith("_audit_events_refuse_update") || name.endsWith("_audit_events_refuse_delete")) {
+        const statement = name.endsWith("_update") ? updateAudit : deleteAudit;
+        expect(await refused(statement)).toMatch(/audit_events is append-only/);
+        await owner.migrate.down();
+        expect(await refused(statement)).toBeNull();
+        await owner.migrate.up();
+        expect(await refused(statement)).toMatch(/audit_events is append-only/);
+      }
+
+      // Rows for the next migrations to carry: each table this migration created gets its fixture.
+      for (const t of schemaAfter.tables.filter((t) => !schemaBefore.tables.includes(t))) {
+        expect(FIXTURES[t], `a fixture row for ${t}`).toBeDefined();
+        await owner(t).insert(FIXTURES[t]);
+        expect((await data())[t]).toHaveLength(FIXTURES[t].length);
+      }
+    }
+    expect(await tables()).toEqual(ALL_TABLES);
+    // Every fixture was used, so every table carried rows through the later migrations.
+    for (const t of ALL_TABLES) expect((await data())[t], t).toHaveLength(FIXTURES[t].length);
+  }, 600_000);
 });
