@@ -48,6 +48,8 @@ export const FREE_TEXT: Record<string, TextClass> = {
   "packets.content_hash": "closed",
   "packets.engine_version": "open",
   "packets.pdf": "open",
+  // Only the SHA-256 of a 256-bit random token: nobody reads it back but the set-password check.
+  "password_links.token_sha256": "secret",
   "patient_outcomes.subject_id": "closed",
   "recommendations.rationale": "closed",
   // The reason a locked look was reopened may describe the data that needed correcting.
@@ -80,7 +82,7 @@ export const isClosedText = (table: string, column: string): boolean => FREE_TEX
  * appear here.
  */
 export const BLINDED_READS: Record<string, "all" | "none" | readonly string[]> = {
-  analyses: ["id", "trial_id", "design_id", "look_number", "planned_n", "cutoff_date", "enrolled_total", "status", "amendment_count", "row_version", "lock_signature_id", "locked_at", "reviewed_at", "created_at", "updated_at"],
+  analyses: ["id", "trial_id", "design_id", "look_number", "planned_n", "cutoff_date", "enrolled_total", "status", "amendment_count", "review_version", "row_version", "lock_signature_id", "locked_at", "reviewed_at", "created_at", "updated_at"],
   analysis_arm_counts: "none",
   arms: "all",
   audit_chain_head: "none",
@@ -94,9 +96,10 @@ export const BLINDED_READS: Record<string, "all" | "none" | readonly string[]> =
   meeting_attendees: "all",
   meetings: ["id", "trial_id", "analysis_id", "scheduled_at", "time_zone", "open_agenda", "reminder_days_before", "reminder_sent_at", "status", "row_version", "created_by", "created_at", "updated_at"],
   packets: "none",
+  password_links: "none",
   packets_open: "all",
   patient_outcomes: "none",
-  recommendations: ["id", "trial_id", "analysis_id", "decision", "corrects_id", "signature_id", "created_by", "created_at"],
+  recommendations: ["id", "trial_id", "analysis_id", "review_version", "decision", "corrects_id", "signature_id", "created_by", "created_at"],
   signatures: ["id", "user_id", "signer_name", "signer_email", "meaning", "entity_type", "entity_id", "signed_at", "hash_scheme"],
   sign_in_failures: "none",
   trial_memberships: "all",

@@ -103,11 +103,8 @@ export async function deletePatientOutcomes(tx: Tx, analysisId: number): Promise
  * The counts of the nearest locked (or reviewed) look before and after a look, for the rule that
  * cumulative counts never fall from one look to the next.
  */
-export async function fetchNeighbourLockedCounts(
-  trialId: number,
-  lookNumber: number,
-  tx: ClosedReader,
-): Promise<{ before: { lookNumber: number; counts: ArmCountRow[] } | null; after: { lookNumber: number; counts: ArmCountRow[] } | null }> {
+type LockedNeighbour = { lookNumber: number; counts: ArmCountRow[] } | null;
+export async function fetchNeighbourLockedCounts(trialId: number, lookNumber: number, tx: ClosedReader): Promise<{ before: LockedNeighbour; after: LockedNeighbour }> {
   const locked = ["locked", "reviewed"];
   const [prev, next] = await Promise.all([
     tx("analyses").where({ trial_id: trialId }).whereIn("status", locked).where("look_number", "<", lookNumber).orderBy("look_number", "desc").first("id", "look_number"),

@@ -17,11 +17,11 @@ import { insertMeeting } from "@/db/queries/meetings";
 import { checkTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { StatsDomainError } from "@/lib/stats/validate";
-import { actAs, currentSession, routeContext } from "./support/as-user";
+import { actAs, currentClaims, currentSession, routeContext } from "./support/as-user";
 import { db, giveRole, makeTrial, makeUser, resetDatabase } from "./support/db";
 import type { PublicUser } from "@/db/types";
 
-vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null) }));
+vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null), sessionClaims: vi.fn(() => currentClaims()) }));
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }));
 
 type Member = PublicUser & { password: string };
@@ -32,7 +32,7 @@ let trialId: number;
 let analysisId: number;
 let armId: number;
 // The closed truth the attacker is after (invented numbers).
-const SECRET = { enrolled: 14, evaluable: 13, responders: 5, toxicities: 2 as number | null };
+const SECRET = { enrolled: 14, treated: 14 as number | null, evaluable: 13, responders: 5, toxicities: 2 as number | null };
 
 const plainSha256 = (s: string) => createHash("sha256").update(s).digest("hex");
 const HEX64 = /\b[0-9a-f]{64}\b/g;
@@ -46,10 +46,11 @@ function bruteForceCounts(visible: { trialId: number; analysisId: number; lookNu
   const e = visible.enrolled;
   for (let ev = 0; ev <= e; ev++)
     for (let r = 0; r <= ev; r++)
-      for (const tox of [null, ...Array.from({ length: ev + 1 }, (_, i) => i)]) {
-        const record = { trialId: visible.trialId, analysisId: visible.analysisId, lookNumber: visible.lookNumber, amendment: visible.amendment, cutoffDate: visible.cutoffDate, counts: [{ armId: visible.armId, enrolled: e, evaluable: ev, responders: r, toxicities: tox }] };
-        if (hashes.has(plainSha256(stableStringify(record)))) return { enrolled: e, evaluable: ev, responders: r, toxicities: tox };
-      }
+      for (const tr of [null, ...Array.from({ length: e + 1 }, (_, i) => i)])
+        for (const tox of tr === null ? [null] : Array.from({ length: tr + 1 }, (_, i) => i)) {
+          const record = { trialId: visible.trialId, analysisId: visible.analysisId, lookNumber: visible.lookNumber, amendment: visible.amendment, cutoffDate: visible.cutoffDate, counts: [{ armId: visible.armId, enrolled: e, treated: tr, evaluable: ev, responders: r, toxicities: tox }] };
+          if (hashes.has(plainSha256(stableStringify(record)))) return { enrolled: e, treated: tr, evaluable: ev, responders: r, toxicities: tox };
+        }
   return null;
 }
 
