@@ -91,7 +91,7 @@ const NO_JOB = "2147480000";
 export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   // Pages
   page("/", on({}, 307, 307, 307)),
-  page("/signin", on({}, 200, 200, 200)),
+  page("/signin", on({}, 307, 200, 307)),
   page("/trials", on({}, 200, 307, 200)),
   page("/trials/new", on({ admin: 200, statistician: 200 }, 403, 307, 403)),
   page("/trials/{trial}", everyone(307)),
