@@ -142,9 +142,10 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   write("POST", `${LOOK}/lock`, writers(ENTER_DATA)),
   write("POST", `${LOOK}/open`, writers(ENTER_DATA)),
   write("POST", `${LOOK}/reopen`, writers(ENTER_DATA)),
-  // A JSON body is not a CSV upload: the statistician gets 415 and nothing is checked or stored.
+  // A JSON body is not a CSV upload: the statistician gets 415 and nothing is checked or stored;
+  // the confirmation without its ?rowVersion= is refused (422) before the body is read.
   write("POST", `${LOOK}/upload/preview`, writers(ENTER_DATA, 415)),
-  write("POST", `${LOOK}/upload/confirm`, writers(ENTER_DATA, 415)),
+  write("POST", `${LOOK}/upload/confirm`, writers(ENTER_DATA)),
   write("POST", `${LOOK}/recommendations`, writers(["dmc"])),
 
   // Server actions, posted with the Next-Action header (empty forms: invalid for the roles allowed)
