@@ -81,6 +81,8 @@ test("an API answer opened in a tab can load or run nothing (strict CSP on route
 });
 
 test("a chart sent to a hosted service: no chart toolbar or hosted-editor link; a keyboard-reachable Download PNG saves a PNG", async ({ page }) => {
+  // A review page with its charts on a shared two-core machine: rendering and loading the chart library take a while.
+  test.setTimeout(180_000);
   const cspViolations: string[] = [];
   page.on("console", (m) => {
     if (/Content Security Policy|Refused to (execute|load)/i.test(m.text())) cspViolations.push(m.text());
@@ -89,7 +91,8 @@ test("a chart sent to a hosted service: no chart toolbar or hosted-editor link; 
   const { trial, analysis } = await demoLook(page.request);
   await page.goto(`/trials/${trial}/review/${analysis}`);
   const button = page.getByRole("button", { name: /^Download PNG/ }).first();
-  await expect(button).toBeEnabled({ timeout: 30_000 });
+  await expect(page.getByRole("figure").first()).toBeVisible({ timeout: 60_000 });
+  await expect(button).toBeEnabled({ timeout: 90_000 });
   await expect(page.locator(".js-plotly-plot").first()).toBeVisible();
   expect(await page.locator(".modebar, .modebar-container, .modebar-btn").count()).toBe(0);
   await expect(page.getByText(/Chart Studio|Edit in|Produced with Plotly|plot\.ly/i)).toHaveCount(0);
