@@ -6,7 +6,7 @@
  */
 import { expect, test, type APIRequestContext } from "@playwright/test";
 import { readFileSync } from "node:fs";
-import { ACCOUNTS, signIn } from "./support/accounts";
+import { ACCOUNTS } from "./support/accounts";
 import { API_CONTENT_SECURITY_POLICY } from "../../lib/security-headers";
 
 async function signInApi(request: APIRequestContext, who: keyof typeof ACCOUNTS) {
@@ -87,7 +87,8 @@ test("a chart sent to a hosted service: no chart toolbar or hosted-editor link; 
   page.on("console", (m) => {
     if (/Content Security Policy|Refused to (execute|load)/i.test(m.text())) cspViolations.push(m.text());
   });
-  await signIn(page, "dmc");
+  // Signed in through the credentials endpoint (page.request shares the page's cookies): the sign-in form is sign-in.spec.ts's.
+  await signInApi(page.request, "dmc");
   const { trial, analysis } = await demoLook(page.request);
   await page.goto(`/trials/${trial}/review/${analysis}`);
   const button = page.getByRole("button", { name: /^Download PNG/ }).first();
