@@ -1,19 +1,9 @@
 /** @type {import('next').NextConfig} */
-const isProd = process.env.NODE_ENV === "production";
 
-// CSP without unsafe-eval in production. Plotly draws with inline styles, hence style-src 'unsafe-inline'.
-const csp = [
-  "default-src 'self'",
-  `script-src 'self' 'unsafe-inline'${isProd ? "" : " 'unsafe-eval'"}`,
-  "style-src 'self' 'unsafe-inline'",
-  "img-src 'self' data: blob:",
-  "font-src 'self' data:",
-  "connect-src 'self'",
-  "frame-ancestors 'none'",
-  "base-uri 'self'",
-  "form-action 'self'",
-  "object-src 'none'",
-].join("; ");
+// Pages get a per-request nonce CSP and no-store from proxy.ts (lib/security-headers.ts). Route
+// handlers skip the proxy, so they get theirs here: nothing may load or run from an API answer
+// (kept equal to API_CONTENT_SECURITY_POLICY in lib/security-headers.ts), and no copy may be kept.
+const apiCsp = "default-src 'none'; frame-ancestors 'none'; base-uri 'none'; form-action 'none'; sandbox";
 
 const nextConfig = {
   // Parallel builds (several developers or test runs on one machine) each get their own output folder.
@@ -29,9 +19,15 @@ const nextConfig = {
   async headers() {
     return [
       {
+        source: "/api/:path*",
+        headers: [
+          { key: "Content-Security-Policy", value: apiCsp },
+          { key: "Cache-Control", value: "no-store" },
+        ],
+      },
+      {
         source: "/:path*",
         headers: [
-          { key: "Content-Security-Policy", value: csp },
           { key: "X-Content-Type-Options", value: "nosniff" },
           { key: "Referrer-Policy", value: "same-origin" },
           { key: "X-Frame-Options", value: "DENY" },

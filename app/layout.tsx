@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { connection } from "next/server";
 import localFont from "next/font/local";
 import "./globals.css";
 import { SiteHeader } from "@/components/site-header";
@@ -24,7 +25,10 @@ export const metadata: Metadata = {
   description: "Bayesian interim monitoring for trials with a binary endpoint",
 };
 
-export default function RootLayout({ children }: { children: React.ReactNode }) {
+export default async function RootLayout({ children }: { children: React.ReactNode }) {
+  // Every page is rendered per request: the CSP nonce proxy.ts sets is new each time, and a page
+  // prerendered at build time would carry scripts without it (blocked by the policy).
+  await connection();
   return (
     <html lang="en" className={`${plexSans.variable} ${plexMono.variable}`}>
       <body className="min-h-screen">

@@ -121,16 +121,31 @@ export function isCrossSiteWrite(req: Request): boolean {
 export function handle<A extends unknown[]>(fn: (...args: A) => Promise<Response>) {
   return async (...args: A): Promise<Response> => {
     if (args[0] instanceof Request && isCrossSiteWrite(args[0])) {
-      return NextResponse.json({ error: "Cross-site requests may not change data." }, { status: 403 });
+      return noStore(NextResponse.json({ error: "Cross-site requests may not change data." }, { status: 403 }));
     }
     return withCallerClearance(async () => {
       try {
-        return await fn(...args);
+        return noStore(await fn(...args));
       } catch (e) {
-        return errorResponse(e);
+        return noStore(errorResponse(e));
       }
     });
   };
+}
+
+/**
+ * An API answer may hold closed data: no cache may keep it. next.config.mjs sets the same header
+ * for /api; this also covers route handlers outside /api (the caught-mail download) and keeps a
+ * handler's own stricter value ("private, no-store") when it sets one.
+ */
+function noStore(res: Response): Response {
+  if (/no-store/.test(res.headers.get("Cache-Control") ?? "")) return res;
+  try {
+    res.headers.set("Cache-Control", "no-store");
+  } catch {
+    // Immutable headers (Response.redirect): such an answer carries no data.
+  }
+  return res;
 }
 
 /** Reads a JSON body with a size ceiling, so an oversized body is refused before parsing. */

@@ -1,12 +1,14 @@
 "use client";
 /**
  * The one AG Grid entry point: community modules registered once, Cairn's theme colours, sorting
- * and filtering on, CSV export. No Google-font parameters (no outside requests).
+ * and filtering on, CSV export (cells neutralised against formula injection, lib/csv/formula-injection.ts).
+ * No Google-font parameters (no outside requests).
  */
 import { useMemo, useRef } from "react";
 import { AgGridReact } from "ag-grid-react";
 import { AllCommunityModule, ModuleRegistry, themeQuartz, type ColDef } from "ag-grid-community";
 import { Button } from "@/components/ui/button";
+import { safeCsvExportParams } from "@/lib/csv/formula-injection";
 
 ModuleRegistry.registerModules([AllCommunityModule]);
 
@@ -39,7 +41,7 @@ export function DataGrid<T extends object>({
     <div className="flex flex-col gap-2">
       {csvFileName ? (
         <div className="flex justify-end">
-          <Button variant="secondary" type="button" onClick={() => ref.current?.api.exportDataAsCsv({ fileName: csvFileName })}>
+          <Button variant="secondary" type="button" onClick={() => ref.current?.api.exportDataAsCsv(safeCsvExportParams(csvFileName))}>
             Export CSV
           </Button>
         </div>
