@@ -217,7 +217,11 @@ describe("correction after review (finding 6): reopening a reviewed look starts 
     expect(await statusOf(reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason }))).toBe(422);
     expect(await statusOf(reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason, password: "wrong-password" }))).toBe(422);
     expect(await statusOf(reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason: "short", password: stat.password }))).toBe("zod");
-    expect({ ...(await counts()), look: await lookRow() }).toEqual(before);
+    // Nothing is signed or changed; only the wrong password is on record (an open audit row, no secret in it).
+    expect({ ...(await counts()), look: await lookRow() }).toEqual({ ...before, audit: before.audit + 1 });
+    const failed = await db("audit_events").orderBy("id", "desc").first();
+    expect(failed).toMatchObject({ action: "signature_password_failed", visibility: "open", actor_user_id: stat.id });
+    expect(`${failed.new_values}${failed.old_values}${failed.reason}`).not.toContain("wrong-password");
   });
 
   it("with a reason and the password: review version 2, a signature bound to the reopening, an open audit row without the reason and a closed one with it", async () => {

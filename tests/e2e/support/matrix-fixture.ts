@@ -97,7 +97,7 @@ async function main() {
 
     const arm = await tx("arms").where({ trial_id: trialId }).first();
     const analysis = await tx("analyses").where({ trial_id: trialId, look_number: 1 }).first();
-    const counts = [{ armId: arm.id, enrolled: FIXTURE_CLOSED.enrolled, evaluable: FIXTURE_CLOSED.evaluable, responders: FIXTURE_CLOSED.responders, toxicities: FIXTURE_CLOSED.toxicities }];
+    const counts = [{ armId: arm.id, enrolled: FIXTURE_CLOSED.enrolled, treated: FIXTURE_CLOSED.enrolled, evaluable: FIXTURE_CLOSED.evaluable, responders: FIXTURE_CLOSED.responders, toxicities: FIXTURE_CLOSED.toxicities }];
     await replaceArmCounts(tx, analysis.id, counts);
     const lockSig = await insertSignature(tx, { userId: stat.id, signerName: stat.name, signerEmail: stat.email, meaning: "analysis locked", entityType: "analysis", entityId: analysis.id, record: { analysisId: analysis.id, cutoff: "2026-10-15", counts } });
     await tx("analyses").where({ id: analysis.id }).update({ cutoff_date: "2026-10-15", enrolled_total: FIXTURE_CLOSED.enrolled, status: "locked", locked_at: new Date("2026-10-20T09:00:00Z"), lock_signature_id: lockSig.id });
