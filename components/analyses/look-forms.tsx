@@ -10,6 +10,7 @@ import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { Field, TextArea, TextInput } from "@/components/ui/field";
 import { callApi, jsonInit, type ApiFailure } from "./api-client";
+import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
 
 type FormState = { ok?: string; failure?: ApiFailure };
 const initial: FormState = {};
@@ -173,7 +174,7 @@ export function CountsForm({
         {safetyRule ? "; with toxicity ≤ treated ≤ enrolled (the safety rule counts toxicities among the treated patients)" : ""}. No count may fall below the previous locked look&apos;s.
       </p>
       {amendment > 0 ? (
-        <Field label="Reason for this change (amendment)" name="reason" error={fe.reason} hint="Recorded in the audit trail with the old and new counts.">
+        <Field label="Reason for this change (amendment)" name="reason" error={fe.reason} hint={`Recorded in the audit trail with the old and new counts. ${CLOSED_FIELD_NOTE}`}>
           <TextArea id="reason" name="reason" rows={2} maxLength={1000} invalid={!!fe.reason} />
         </Field>
       ) : null}
@@ -223,7 +224,7 @@ export function ReopenForm({ trialId, analysisId, rowVersion, lookNumber }: { tr
     <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Correct this look">
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
-      <Field label="Reason for the correction" name="reason" error={fe.reason} hint="Reopening records an amendment; the old values stay in the audit trail.">
+      <Field label="Reason for the correction" name="reason" error={fe.reason} hint={`Reopening records an amendment; the old values stay in the audit trail. ${CLOSED_FIELD_NOTE}`}>
         <TextArea id="reason" name="reason" rows={2} maxLength={1000} invalid={!!fe.reason} />
       </Field>
       <div>
@@ -255,7 +256,7 @@ export function SwitchToCountLevelForm({ trialId, analysisId, rowVersion, patien
         with your reason in the audit trail.
       </p>
       <input type="hidden" name="rowVersion" value={rowVersion} />
-      <Field label="Reason for switching to count-level entry" name="reason" error={fe.reason}>
+      <Field label="Reason for switching to count-level entry" name="reason" error={fe.reason} hint={CLOSED_FIELD_NOTE}>
         <TextArea id="switch-reason" name="reason" rows={2} maxLength={1000} invalid={!!fe.reason} />
       </Field>
       <div>

@@ -18,6 +18,7 @@ import { CalibrationPanel } from "./calibration-panel";
 import { defaultDesign, designToForm, formToCandidate, issuesToFieldErrors, validateDesignCandidate, type DesignForm, type FieldErrors } from "@/lib/design/form-model";
 import type { DesignVersionJson } from "@/lib/design/serialize";
 import type { CalibratedDesign } from "@/lib/stats/calibration";
+import { OPEN_FIELD_NOTE } from "@/lib/field-visibility";
 
 type Props = {
   trialId: number;
@@ -266,7 +267,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
                   void amend();
                 }}
               >
-                <Field label="Reason for the amendment" name="amend-reason" error={reasonError} hint="Recorded with the new version and in the audit trail.">
+                <Field label="Reason for the amendment" name="amend-reason" error={reasonError} hint={`Recorded with the new version and in the audit trail. ${OPEN_FIELD_NOTE}`}>
                   <TextArea id="amend-reason" name="amend-reason" rows={3} maxLength={2000} value={reason} invalid={!!reasonError} onChange={(e) => setReason(e.target.value)} />
                 </Field>
                 <div>

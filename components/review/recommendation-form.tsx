@@ -6,6 +6,7 @@ import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { Field, SelectInput, TextArea, TextInput } from "@/components/ui/field";
 import { DECISION_LABELS } from "@/lib/format";
+import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
 
 const initial: RecommendationFormState = {};
 
@@ -51,7 +52,7 @@ export function RecommendationForm({ trialId, analysisId, correctsId, signerName
           ))}
         </SelectInput>
       </Field>
-      <Field label="Rationale (closed: seen only by the DMC and the unblinded statistician)" name="rationale" error={fe.rationale}>
+      <Field label="Rationale" name="rationale" error={fe.rationale} hint={CLOSED_FIELD_NOTE}>
         <TextArea id="rationale" name="rationale" rows={4} maxLength={4000} value={rationale} onChange={(e) => setRationale(e.target.value)} invalid={!!fe.rationale} />
       </Field>
       <Field label="Password (electronic signature)" name="password" error={fe.password} hint={`Signing as ${signerName}, meaning "recommendation recorded".`}>
