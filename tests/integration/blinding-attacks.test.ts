@@ -187,6 +187,22 @@ describe("error messages to blinded roles carry no closed values", () => {
     expect(r.error).toMatch(/does not allow/);
   });
 
+  it("the closed-packet form refuses bad input with a message and writes nothing", async () => {
+    actAs(stat.id);
+    const before = await closedPackets();
+    const garbage = closedForm();
+    garbage.set("meetingId", "12abc");
+    expect(await prepareClosedPacketAction({}, garbage)).toEqual({ error: "That meeting is not valid." });
+    // The meeting exists but reviews this look, not another one: posted with a wrong look it is refused.
+    const otherLook = closedForm();
+    otherLook.set("analysisId", String(analysisId + 100000));
+    expect((await prepareClosedPacketAction({}, otherLook)).error).toMatch(/not found for this look/);
+    const noMeeting = closedForm();
+    noMeeting.set("meetingId", "2147483000");
+    expect((await prepareClosedPacketAction({}, noMeeting)).error).toMatch(/not found/);
+    expect(await closedPackets()).toBe(before);
+  });
+
   it("a route answering a blinded caller maps an engine error to generic text; an unblinded caller gets the detail", async () => {
     const route = (user: PublicUser) =>
       handle(async () => {
