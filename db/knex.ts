@@ -33,7 +33,7 @@ export type ClosedConnection = Knex & { readonly [closedBrand]: "closed" };
 /** What closed reads accept: the branded connection, or a write transaction opened by a service that checked the role. */
 export type ClosedReader = ClosedConnection | Knex.Transaction;
 
-/** Only lib/auth (for an unblinded access) and the packet builder may call this; see tests/integration/blinding-database.test.ts. */
+/** Only lib/auth (for an unblinded access) may call this (tests and the seed fixtures aside); see tests/integration/blinding-database.test.ts. */
 export function asClosedConnection(k: Knex = db): ClosedConnection {
   return k as ClosedConnection;
 }

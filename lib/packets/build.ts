@@ -6,19 +6,10 @@
 import { CAUTION_TEXT } from "@/components/caution";
 import type { PacketDocument } from "./document";
 import { buildOpenSections, meetingLabel, type OpenPacketInput } from "./open-content";
+import { buildOpenPacket } from "./build-open";
 import { buildClosedSections, type ClosedPacketInput } from "./closed-content";
 
-export function buildOpenPacket(open: OpenPacketInput): PacketDocument {
-  return {
-    audience: "open",
-    title: "Open report",
-    trialCode: open.trial.code,
-    trialTitle: open.trial.title,
-    meetingLabel: meetingLabel(open),
-    caution: CAUTION_TEXT,
-    sections: buildOpenSections(open),
-  };
-}
+export { buildOpenPacket };
 
 /** The closed packet: the open report followed by the closed report, for the committee's full reading. */
 export function buildClosedPacket(open: OpenPacketInput, closed: ClosedPacketInput): PacketDocument {

@@ -25,6 +25,12 @@ const BLINDED_ENTRY_POINTS = [
   "app/trials/[trialId]/audit/page.tsx",
   "app/api/trials/[trialId]/audit/route.ts",
   "lib/packets/open-content.ts",
+  // The meetings pages and their actions (a blinded coordinator organises meetings and makes the
+  // open packet); the closed packet is prepared from the closed review instead.
+  "app/trials/[trialId]/meetings/page.tsx",
+  "app/trials/[trialId]/meetings/[meetingId]/page.tsx",
+  "app/trials/[trialId]/meetings/actions.ts",
+  "lib/packets/open-packet.ts",
 ];
 
 function stripComments(src: string): string {
@@ -77,6 +83,11 @@ describe("blinded code cannot reach closed data", () => {
   it("the checker itself finds a closed module and the forbidden names (positive control)", () => {
     expect(offences(importClosure("db/queries/closed.ts"))).toEqual(expect.arrayContaining(["db/queries/closed.ts is a closed module", "db/queries/closed.ts mentions analysis_arm_counts", "db/queries/closed.ts mentions patient_outcomes"]));
     expect(importClosure("lib/review/load-review.ts")).toContain("db/queries/closed.ts");
+  });
+
+  it("the closed packet module does reach the closed queries (positive control for the meetings entries)", () => {
+    expect(offences(importClosure("lib/packets/closed-packet.ts"))).toContain("db/queries/closed.ts is a closed module");
+    expect(importClosure("app/trials/[trialId]/review/[analysisId]/packet-actions.ts")).toContain("db/queries/closed.ts");
   });
 
   for (const entry of BLINDED_ENTRY_POINTS) {

@@ -1,7 +1,8 @@
 /**
  * DMC meetings as the trial coordinator runs them on the demo trial CRN-201 (its look 2 is locked
- * in the seed): schedule a meeting, generate the packet, send it, watch delivery; then the
- * administrator finds the caught messages. The meeting is created here, so no other spec's state
+ * in the seed): schedule a meeting and generate the open report; the unblinded statistician
+ * prepares the closed report from the closed review of the look; the coordinator sends the packet
+ * and watches delivery; then the administrator finds the caught messages. The meeting is created here, so no other spec's state
  * is relied on.
  */
 import { expect, test, type Page } from "@playwright/test";
@@ -20,6 +21,7 @@ const MEETING_YEAR = new Date().getUTCFullYear() + 1;
 const MEETING_WEEKDAY = ["Sunday", "Monday", "Tuesday", "Wednesday", "Thursday", "Friday", "Saturday"][new Date(Date.UTC(MEETING_YEAR, 2, 15)).getUTCDay()];
 let meetingPath = "";
 let openPacketUrl = "";
+let closedPacketUrl = "";
 
 async function openTrial(page: Page, code: string): Promise<string> {
   await page.goto("/trials");
@@ -28,7 +30,7 @@ async function openTrial(page: Page, code: string): Promise<string> {
   return new URL(page.url()).pathname;
 }
 
-test("the coordinator schedules a meeting, generates and sends the packet, and sees delivery", async ({ page }) => {
+test("the coordinator schedules a meeting and generates the open report", async ({ page }) => {
   // PDF generation and background delivery on a busy 2-core machine: more than the default bound.
   test.setTimeout(300_000);
   await signIn(page, "coordinator");
@@ -57,22 +59,54 @@ test("the coordinator schedules a meeting, generates and sends the packet, and s
   await expect(page.getByTestId("meeting-when")).toHaveText(`${MEETING_WEEKDAY} 15 March ${MEETING_YEAR}, 14:30 Europe/Oslo (UTC+01:00)`);
   await expect(page.getByText("2. <b>Questions</b> from the sponsor")).toBeVisible();
 
-  await page.getByRole("button", { name: "Generate packet" }).click();
-  await expect(page.getByText("Open report: version 1 (new). Closed report: version 1 (new).")).toBeVisible({ timeout: 60_000 });
+  await page.getByRole("button", { name: "Generate open report" }).click();
+  await expect(page.getByText("Open report: version 1 (new).")).toBeVisible({ timeout: 60_000 });
   const openLink = page.getByRole("link", { name: "Open report v1" });
   await expect(openLink).toBeVisible();
-  // The coordinator is blinded: the closed report is listed without a link.
-  await expect(page.getByRole("list", { name: "Closed report versions" })).toContainText("only unblinded roles can open it");
-  await expect(page.getByRole("link", { name: /Closed report v/ })).toHaveCount(0);
+  // The coordinator is blinded: no closed report is built by this click, and none is offered.
+  const closedList = page.getByRole("list", { name: "Closed report versions" });
+  await expect(closedList.locator("li")).toHaveCount(0);
+  await expect(page.getByText("The unblinded statistician prepares the closed report from the closed review.")).toBeVisible();
+  await expect(page.getByTestId("prepare-closed-link")).toHaveCount(0);
 
   openPacketUrl = (await openLink.getAttribute("href"))!;
   const pdf = await page.request.get(openPacketUrl);
   expect(pdf.status()).toBe(200);
   expect(pdf.headers()["content-type"]).toBe("application/pdf");
   expect((await pdf.body()).subarray(0, 5).toString()).toBe("%PDF-");
-  // The closed packet was generated right after the open one; a blinded role asking for it is refused.
-  const closedUrl = openPacketUrl.replace(/\/(\d+)$/, (_m, id) => `/${Number(id) + 1}`);
-  expect((await page.request.get(closedUrl)).status()).toBe(403);
+});
+
+test("the unblinded statistician prepares the closed report from the closed review of the look", async ({ page }) => {
+  test.setTimeout(300_000);
+  await signIn(page, "statistician");
+  await page.goto(meetingPath);
+  await page.getByTestId("prepare-closed-link").click();
+  await expect(page).toHaveURL(/\/review\/\d+#closed-packet$/);
+  const section = page.getByTestId("closed-packet-meeting").filter({ has: page.locator(`a[href="${meetingPath}"]`) });
+  await expect(section).toContainText("3. Closed review of look 2");
+  await expect(section).toContainText("Not prepared yet.");
+  await section.getByRole("button", { name: "Prepare the closed packet" }).click();
+  await expect(section.getByText(/Closed report: version 1 \(new\)/)).toBeVisible({ timeout: 60_000 });
+  // Preparing again on unchanged data keeps the version.
+  await section.getByRole("button", { name: "Prepare the closed packet" }).click();
+  await expect(section.getByText(/Closed report: version 1 \(unchanged\)/)).toBeVisible({ timeout: 60_000 });
+  await page.reload();
+  const link = section.getByRole("link", { name: "Closed report v1" });
+  await expect(link).toBeVisible();
+  closedPacketUrl = (await link.getAttribute("href"))!;
+  const res = await page.request.get(closedPacketUrl);
+  expect(res.status()).toBe(200);
+  expect(res.headers()["content-type"]).toBe("application/pdf");
+});
+
+test("the coordinator sends the packet: the open report attached, the closed one by link only", async ({ page }) => {
+  test.setTimeout(300_000);
+  await signIn(page, "coordinator");
+  await page.goto(meetingPath);
+  // The closed report is listed without a link, and asking for it is refused.
+  await expect(page.getByRole("list", { name: "Closed report versions" })).toContainText("only unblinded roles can open it");
+  await expect(page.getByRole("link", { name: /Closed report v/ })).toHaveCount(0);
+  expect((await page.request.get(closedPacketUrl)).status()).toBe(403);
 
   await page.getByRole("button", { name: "Send packet by e-mail" }).click();
   await expect(page.getByText(/Sending 5 messages to 5 people \(open report v1, closed report v1 by link\)/)).toBeVisible();
@@ -96,8 +130,7 @@ test("a DMC member opens the closed report from the meeting page", async ({ page
 test("the sponsor may download the open report but not the closed one", async ({ page }) => {
   await signIn(page, "sponsor");
   expect((await page.request.get(openPacketUrl)).status()).toBe(200);
-  const closedUrl = openPacketUrl.replace(/\/(\d+)$/, (_m, id) => `/${Number(id) + 1}`);
-  const res = await page.request.get(closedUrl);
+  const res = await page.request.get(closedPacketUrl);
   expect(res.status()).toBe(403);
   expect(res.headers()["content-type"]).toContain("application/json");
 });

@@ -12,7 +12,9 @@ import { SINGLE_ARM_DEMO_DESIGN } from "@/db/seeds/demo";
 import { expandLooks } from "@/lib/stats/looks";
 import { lockAnalysis, openLookForEntry, saveArmCounts } from "@/app/trials/[trialId]/analyses/_lib/service";
 import { GET as auditGet } from "@/app/api/trials/[trialId]/audit/route";
-import { generatePackets, scheduleMeeting } from "@/app/trials/[trialId]/meetings/actions";
+import { generateOpenPacketAction, scheduleMeeting } from "@/app/trials/[trialId]/meetings/actions";
+import { prepareClosedPacketAction } from "@/app/trials/[trialId]/review/[analysisId]/packet-actions";
+import * as closedQueries from "@/db/queries/closed";
 import { insertMeeting } from "@/db/queries/meetings";
 import { checkTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
@@ -23,6 +25,11 @@ import type { PublicUser } from "@/db/types";
 
 vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null), sessionClaims: vi.fn(() => currentClaims()) }));
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }));
+// The closed reads the packet code uses, wrapped (unchanged) so a test can tell whether they ran.
+vi.mock("@/db/queries/closed", async (importOriginal) => {
+  const m = await importOriginal<typeof import("@/db/queries/closed")>();
+  return { ...m, fetchArmCountsForTrial: vi.fn(m.fetchArmCountsForTrial), fetchClosedAgenda: vi.fn(m.fetchClosedAgenda) };
+});
 
 type Member = PublicUser & { password: string };
 let stat: Member;
@@ -139,18 +146,61 @@ describe("error messages to blinded roles carry no closed values", () => {
     return f;
   };
 
-  it("the engine message does quote the closed value to the unblinded statistician (positive control)", async () => {
+  const closedForm = () => {
+    const f = form();
+    f.set("analysisId", String(analysisId));
+    return f;
+  };
+  const closedReads = () => vi.mocked(closedQueries.fetchArmCountsForTrial).mock.calls.length + vi.mocked(closedQueries.fetchClosedAgenda).mock.calls.length;
+  const closedPackets = async () => Number((await db("packets").where({ meeting_id: meetingId, audience: "closed" }).count({ n: "*" }))[0].n);
+
+  it("the engine message does quote the closed value to the unblinded statistician preparing the closed packet (positive control)", async () => {
     actAs(stat.id);
-    const r = await generatePackets({}, form());
+    vi.mocked(closedQueries.fetchArmCountsForTrial).mockClear();
+    vi.mocked(closedQueries.fetchClosedAgenda).mockClear();
+    const r = await prepareClosedPacketAction({}, closedForm());
     expect(JSON.stringify(r)).toContain(String(TELL));
+    expect(closedReads()).toBeGreaterThan(0);
   });
 
-  it("a coordinator generating a packet on data that makes the engine throw learns no closed count", async () => {
+  it("a coordinator generates the open packet without any closed read, and cannot trigger the closed build at all", async () => {
     actAs(coordinator.id);
-    const r = await generatePackets({}, form());
-    expect(r.ok ?? r.error).toBeTruthy();
-    expect(JSON.stringify(r)).not.toContain(String(TELL));
-    expect(JSON.stringify(r)).toMatch(/cannot be computed/);
+    vi.mocked(closedQueries.fetchArmCountsForTrial).mockClear();
+    vi.mocked(closedQueries.fetchClosedAgenda).mockClear();
+    const before = await closedPackets();
+    const open = await generateOpenPacketAction({}, form());
+    expect(open.ok).toMatch(/Open report: version \d+/);
+    expect(JSON.stringify(open)).not.toContain(String(TELL));
+    const closed = await prepareClosedPacketAction({}, closedForm());
+    expect(closed.ok).toBeUndefined();
+    expect(closed.error).toMatch(/does not allow/);
+    expect(JSON.stringify(closed)).not.toContain(String(TELL));
+    expect(closedReads()).toBe(0);
+    expect(await closedPackets()).toBe(before);
+  });
+
+  it("a DMC member (closed reader, not an organiser) cannot prepare the closed packet either", async () => {
+    const dmc = await makeUser({ name: "Test DMC member" });
+    await giveRole(dmc.id, trialId, "dmc_member");
+    actAs(dmc.id);
+    const r = await prepareClosedPacketAction({}, closedForm());
+    expect(r.error).toMatch(/does not allow/);
+  });
+
+  it("the closed-packet form refuses bad input with a message and writes nothing", async () => {
+    actAs(stat.id);
+    const before = await closedPackets();
+    const garbage = closedForm();
+    garbage.set("meetingId", "12abc");
+    expect(await prepareClosedPacketAction({}, garbage)).toEqual({ error: "That meeting is not valid." });
+    // The meeting exists but reviews this look, not another one: posted with a wrong look it is refused.
+    const otherLook = closedForm();
+    otherLook.set("analysisId", String(analysisId + 100000));
+    expect((await prepareClosedPacketAction({}, otherLook)).error).toMatch(/not found for this look/);
+    const noMeeting = closedForm();
+    noMeeting.set("meetingId", "2147483000");
+    expect((await prepareClosedPacketAction({}, noMeeting)).error).toMatch(/not found/);
+    expect(await closedPackets()).toBe(before);
   });
 
   it("a route answering a blinded caller maps an engine error to generic text; an unblinded caller gets the detail", async () => {

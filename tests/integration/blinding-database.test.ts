@@ -101,11 +101,11 @@ function sourceFiles(dir: string): string[] {
 }
 
 describe("who can get a closed connection", () => {
-  it("asClosedConnection is called only by lib/auth (for an unblinded access) and the packet builder", () => {
+  it("asClosedConnection is called only by lib/auth (for an unblinded access); the packet code takes the caller's connection", () => {
     const callers = ["app", "lib", "db", "components", "scripts"]
       .flatMap((d) => sourceFiles(path.join(ROOT, d)))
       .filter((f) => !f.endsWith(".test.ts") && /asClosedConnection\(/.test(readFileSync(path.join(ROOT, f), "utf8")));
-    expect(callers.sort()).toEqual(["db/knex.ts", "lib/auth/index.ts", "lib/packets/generate.ts"]);
+    expect(callers.sort()).toEqual(["db/knex.ts", "lib/auth/index.ts"]);
   });
 
   it("no closed query in db/queries/closed.ts has a default connection (a caller must pass one)", () => {

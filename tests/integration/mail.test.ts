@@ -16,7 +16,9 @@ import { insertMeeting } from "@/db/queries/meetings";
 import { fetchEmail, requeueFailedEmail } from "@/db/queries/emails";
 import { fetchTrialByCode } from "@/db/queries/trials";
 import { fetchUserByEmail, toPublicUser } from "@/db/queries/users";
-import { generateMeetingPackets } from "@/lib/packets/generate";
+import { generateOpenPacket } from "@/lib/packets/open-packet";
+import { prepareClosedPacket } from "@/lib/packets/closed-packet";
+import { asClosedConnection } from "@/db/knex";
 import { queueDueReminders, queuePacketMail } from "@/lib/mail/outbox";
 import { attemptDelivery, deliverWithRetries, retryDueMessages, type RetryPolicy } from "@/lib/mail/delivery";
 import { CAUTION_TEXT } from "@/components/caution";
@@ -87,7 +89,10 @@ beforeAll(async () => {
   meetingId = await db.transaction((tx) =>
     insertMeeting(tx, { trialId: trial.id, analysisId: look2.id, scheduledAt: new Date("2026-10-20T13:00:00Z"), timeZone: "Europe/Oslo", openAgenda: "1. Accrual", closedAgenda: "2. Closed review", reminderDaysBefore: 3, createdBy: coordinator.id, attendeeUserIds: invitees }),
   );
-  await generateMeetingPackets(trial, meetingId, coordinator);
+  await generateOpenPacket(trial, meetingId, coordinator);
+  // The closed packet is prepared by the unblinded statistician (from the closed review in the app).
+  const statistician = toPublicUser((await fetchUserByEmail("statistician@cairn.example"))!);
+  await prepareClosedPacket(trial, meetingId, statistician, asClosedConnection(db));
   await startCatcher();
 }, 120_000);
 

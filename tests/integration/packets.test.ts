@@ -10,7 +10,9 @@ import { insertMeeting } from "@/db/queries/meetings";
 import { fetchPacketPdf, fetchPackets } from "@/db/queries/packets";
 import { fetchTrialByCode } from "@/db/queries/trials";
 import { fetchUserByEmail, toPublicUser } from "@/db/queries/users";
-import { generateMeetingPackets } from "@/lib/packets/generate";
+import { generateOpenPacket } from "@/lib/packets/open-packet";
+import { prepareClosedPacket } from "@/lib/packets/closed-packet";
+import { asClosedConnection } from "@/db/knex";
 import { mayDownloadPacket } from "@/lib/packets/access";
 import { CAUTION_TEXT } from "@/components/caution";
 import type { PublicUser, TrialRow } from "@/db/types";
@@ -27,6 +29,18 @@ const flat = (s: string) => s.replace(/\s+/g, " ");
 
 let trial: TrialRow;
 let coordinator: PublicUser;
+let statistician: PublicUser;
+
+/**
+ * As the app does it: the coordinator generates the open packet from the meetings page, the
+ * unblinded statistician prepares the closed one from the closed review (with the closed
+ * connection lib/auth gives an unblinded access; taken directly here).
+ */
+async function generateBoth(t: TrialRow, m: number) {
+  const open = await generateOpenPacket(t, m, coordinator);
+  const closed = await prepareClosedPacket(t, m, statistician, asClosedConnection(db));
+  return { open, closed };
+}
 let meetingId: number;
 let look2Id: number;
 
@@ -35,6 +49,7 @@ beforeAll(async () => {
   await seedDemo();
   trial = (await fetchTrialByCode("CRN-201"))!;
   coordinator = toPublicUser((await fetchUserByEmail("coordinator@cairn.example"))!);
+  statistician = toPublicUser((await fetchUserByEmail("statistician@cairn.example"))!);
   const look2 = await db("analyses").where({ trial_id: trial.id, look_number: 2 }).first();
   look2Id = look2.id;
   const invitees = await db("users").whereIn("email", ["dmc@cairn.example", "statistician@cairn.example"]).pluck("id");
@@ -54,8 +69,18 @@ beforeAll(async () => {
 }, 120_000);
 
 describe("packet generation", () => {
+  it("the open packet alone: generating it writes no closed packet", async () => {
+    const look1 = await db("analyses").where({ trial_id: trial.id, look_number: 1 }).first();
+    const m = await db.transaction((tx) =>
+      insertMeeting(tx, { trialId: trial.id, analysisId: look1.id, scheduledAt: new Date("2026-08-20T13:00:00Z"), timeZone: "UTC", openAgenda: "", closedAgenda: "", reminderDaysBefore: 2, createdBy: coordinator.id, attendeeUserIds: [] }),
+    );
+    const r = await generateOpenPacket(trial, m, coordinator);
+    expect(r).toMatchObject({ audience: "open", version: 1, created: true });
+    expect((await fetchPackets(m, ["open", "closed"])).map((p) => p.audience)).toEqual(["open"]);
+  });
+
   it("makes an open and a closed packet, version 1 each, with hash and engine version", async () => {
-    const r = await generateMeetingPackets(trial, meetingId, coordinator);
+    const r = await generateBoth(trial, meetingId);
     expect(r.open).toMatchObject({ audience: "open", version: 1, created: true });
     expect(r.closed).toMatchObject({ audience: "closed", version: 1, created: true });
     const rows = await fetchPackets(meetingId, ["open", "closed"]);
@@ -94,11 +119,11 @@ describe("packet generation", () => {
   });
 
   it("regenerating unchanged data keeps the versions; changed counts make a new closed version and the old one stays", async () => {
-    const again = await generateMeetingPackets(trial, meetingId, coordinator);
+    const again = await generateBoth(trial, meetingId);
     expect(again.open).toMatchObject({ version: 1, created: false });
     expect(again.closed).toMatchObject({ version: 1, created: false });
     await db("analysis_arm_counts").where({ analysis_id: look2Id }).update({ responders: 7 });
-    const changed = await generateMeetingPackets(trial, meetingId, coordinator);
+    const changed = await generateBoth(trial, meetingId);
     expect(changed.open).toMatchObject({ version: 1, created: false });
     expect(changed.closed).toMatchObject({ version: 2, created: true });
     const closed = await fetchPackets(meetingId, ["closed"]);
@@ -107,7 +132,8 @@ describe("packet generation", () => {
     const old = await fetchPacketPdf(closed[1].id);
     expect(old?.pdf.length).toBeGreaterThan(1000);
     const audit = await db("audit_events").where({ action: "packet_generated" }).select("visibility", "new_values");
-    expect(audit.map((a: { visibility: string }) => a.visibility).sort()).toEqual(["closed", "closed", "open"]);
+    // Two open versions: this meeting's and the look-1 meeting's of the first test.
+    expect(audit.map((a: { visibility: string }) => a.visibility).sort()).toEqual(["closed", "closed", "open", "open"]);
   });
 
   it("skips the closed packet (with the reason) while the reviewed analysis is not locked", async () => {
@@ -115,7 +141,7 @@ describe("packet generation", () => {
     const m = await db.transaction((tx) =>
       insertMeeting(tx, { trialId: trial.id, analysisId: look3.id, scheduledAt: new Date("2027-01-20T13:00:00Z"), timeZone: "UTC", openAgenda: "", closedAgenda: "", reminderDaysBefore: 2, createdBy: coordinator.id, attendeeUserIds: [] }),
     );
-    const r = await generateMeetingPackets(trial, m, coordinator);
+    const r = await generateBoth(trial, m);
     expect(r.open.version).toBe(1);
     expect(r.closed).toEqual({ audience: "closed", skipped: expect.stringContaining("not locked") });
   });
@@ -128,7 +154,7 @@ describe("two-arm trial", () => {
     const m = await db.transaction((tx) =>
       insertMeeting(tx, { trialId: t305.id, analysisId: look1.id, scheduledAt: new Date("2026-09-20T09:00:00Z"), timeZone: "America/New_York", openAgenda: "", closedAgenda: "", reminderDaysBefore: 1, createdBy: coordinator.id, attendeeUserIds: [] }),
     );
-    const r = await generateMeetingPackets(t305, m, coordinator);
+    const r = await generateBoth(t305, m);
     expect(r.closed).toMatchObject({ version: 1, created: true });
     const meta = (await fetchPackets(m, ["closed"]))[0];
     const text = flat(pdfText((await fetchPacketPdf(meta.id))!.pdf));

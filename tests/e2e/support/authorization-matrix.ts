@@ -166,7 +166,9 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   action("app/trials/new/actions.ts", "createTrialAction", "/trials/new", on({ admin: "invalid", statistician: "invalid" }, "refused", 307, "refused")),
   action("app/trials/[trialId]/review/[analysisId]/actions.ts", "recordRecommendationAction", "/trials/{trial}/review/{analysis}", actionFor(["dmc"]), { trialId: "{trial}", analysisId: "{analysis}" }),
   action(MEETINGS, "scheduleMeeting", "/trials/{trial}/meetings", actionFor(MANAGE_MEETINGS), { trialId: "{trial}" }),
-  action(MEETINGS, "generatePackets", "/trials/{trial}/meetings", actionFor(MANAGE_MEETINGS), { trialId: "{trial}" }),
+  action(MEETINGS, "generateOpenPacketAction", "/trials/{trial}/meetings", actionFor(MANAGE_MEETINGS), { trialId: "{trial}" }),
+  // The closed packet: viewClosed and manageMeetings together, i.e. the unblinded statistician only.
+  action("app/trials/[trialId]/review/[analysisId]/packet-actions.ts", "prepareClosedPacketAction", "/trials/{trial}/review/{analysis}", actionFor(["statistician"]), { trialId: "{trial}", analysisId: "{analysis}" }),
   action(MEETINGS, "sendPacket", "/trials/{trial}/meetings", actionFor(MANAGE_MEETINGS), { trialId: "{trial}" }),
   // Takes no other field: for the allowed roles it would queue reminders, so they are not requested.
   action(MEETINGS, "sendDueReminders", "/trials/{trial}/meetings", actionFor(MANAGE_MEETINGS, null), { trialId: "{trial}" }),

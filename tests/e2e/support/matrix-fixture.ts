@@ -22,7 +22,9 @@ import { insertSignature } from "@/db/queries/signatures";
 import { createPlannedLooks } from "@/db/queries/analyses";
 import { replaceArmCounts } from "@/db/queries/closed";
 import { insertMeeting } from "@/db/queries/meetings";
-import { generateMeetingPackets } from "@/lib/packets/generate";
+import { generateOpenPacket } from "@/lib/packets/open-packet";
+import { prepareClosedPacket } from "@/lib/packets/closed-packet";
+import { asClosedConnection } from "@/db/knex";
 import { expandLooks } from "@/lib/stats/looks";
 import type { SingleArmDesign } from "@/lib/stats/types";
 import type { TrialRole } from "@/db/types";
@@ -127,7 +129,9 @@ async function main() {
   });
   const trial = await fetchTrial(trialId);
   const statUser = await fetchUserById(stat.id);
-  await generateMeetingPackets(trial!, meetingId, toPublicUser(statUser!));
+  // The fixture acts as the unblinded statistician would from the closed review.
+  await generateOpenPacket(trial!, meetingId, toPublicUser(statUser!));
+  await prepareClosedPacket(trial!, meetingId, toPublicUser(statUser!), asClosedConnection(db));
   const packets = await db("packets").where({ meeting_id: meetingId }).select("id", "audience");
   const fixture: TrialIds = {
     trial: trialId,

@@ -10,13 +10,12 @@ import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { requireTrialAccess, type TrialAccess } from "@/lib/auth";
 import { HttpError, publicErrorMessage } from "@/lib/http";
-import { StatsDomainError } from "@/lib/stats/validate";
 import { fetchAnalysisOpen } from "@/db/queries/open-status";
 import { fetchMemberships } from "@/db/queries/memberships";
 import { fetchAttendees, fetchMeeting, insertMeeting, recordAttendance, updateMeetingStatus } from "@/db/queries/meetings";
 import { requeueFailedEmail, fetchEmail } from "@/db/queries/emails";
 import { zonedWallTimeToUtc } from "@/lib/packets/meeting-time";
-import { generateMeetingPackets } from "@/lib/packets/generate";
+import { generateOpenPacket } from "@/lib/packets/open-packet";
 import { queueDueReminders, queuePacketMail } from "@/lib/mail/outbox";
 import { deliverWithRetries, ensureMailWorker } from "@/lib/mail/delivery";
 import { attendanceSchema, emailRefSchema, meetingRefSchema, scheduleFormValues, scheduleMeetingSchema, type MeetingFormState } from "./schemas";
@@ -95,19 +94,22 @@ export async function scheduleMeeting(_prev: MeetingFormState, form: FormData): 
   return { ok: "Meeting scheduled.", meetingId };
 }
 
-export async function generatePackets(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
+/**
+ * The open packet only. The closed packet is prepared by the unblinded statistician from the closed
+ * review of the look (review/[analysisId]/packet-actions.ts): nothing this module imports reads
+ * closed data, so a blinded organiser's request cannot cause a closed read.
+ */
+export async function generateOpenPacketAction(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
   const a = await access(form.get("trialId"));
   if (isState(a)) return a;
   const ref = meetingRefSchema.safeParse({ trialId: form.get("trialId"), meetingId: form.get("meetingId") });
   if (!ref.success) return { error: "That meeting is not valid." };
   try {
-    const r = await generateMeetingPackets(a.trial, ref.data.meetingId, a.user, new Date(), { unblinded: a.unblinded });
-    const open = `Open report: version ${r.open.version}${r.open.created ? " (new)" : " (unchanged)"}.`;
-    const closed = "skipped" in r.closed ? `Closed report not made: ${r.closed.skipped}.` : `Closed report: version ${r.closed.version}${r.closed.created ? " (new)" : " (unchanged)"}.`;
+    const r = await generateOpenPacket(a.trial, ref.data.meetingId, a.user, new Date());
     revalidatePath(`/trials/${a.trial.id}/meetings/${ref.data.meetingId}`);
-    return { ok: `${open} ${closed}` };
+    return { ok: `Open report: version ${r.version}${r.created ? " (new)" : " (unchanged)"}.` };
   } catch (e) {
-    if (e instanceof HttpError || e instanceof StatsDomainError) return { error: publicErrorMessage(e, a.unblinded) };
+    if (e instanceof HttpError) return { error: publicErrorMessage(e, a.unblinded) };
     throw e;
   }
 }

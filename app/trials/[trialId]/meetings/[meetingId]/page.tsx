@@ -8,14 +8,13 @@ import { fetchAttendees, fetchMeeting } from "@/db/queries/meetings";
 import { fetchPackets } from "@/db/queries/packets";
 import { fetchEmailsForMeeting } from "@/db/queries/emails";
 import { fetchRecommendationsOpen } from "@/db/queries/open-status";
-import { fetchClosedAgenda } from "@/db/queries/closed";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { DECISION_LABELS } from "@/lib/format";
 import { formatMeetingTime } from "@/lib/packets/meeting-time";
 import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
 import { ActionButton, AttendanceForm, DeliveryAutoRefresh } from "@/components/meetings/forms";
-import { cancelMeeting, generatePackets, retryFailedEmail, saveAttendance, sendPacket } from "../actions";
+import { cancelMeeting, generateOpenPacketAction, retryFailedEmail, saveAttendance, sendPacket } from "../actions";
 
 export const metadata: Metadata = { title: "DMC meeting" };
 
@@ -42,8 +41,10 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
     manage ? fetchEmailsForMeeting(meeting.id) : Promise.resolve([]),
     fetchRecommendationsOpen(trial.id),
   ]);
-  // Closed text: read only with an unblinded access's closed connection (the organiser who typed it may be blinded and not read it back).
-  const closedAgenda = access.unblinded ? await fetchClosedAgenda(meeting.id, access.closed) : null;
+  // The closed agenda and the closed packet are handled on the closed review of the look, which only
+  // unblinded roles reach: this page (open to blinded organisers) imports no closed query at all.
+  const closedReview = `/trials/${trial.id}/review/${meeting.analysis_id}#closed-packet`;
+  const prepareClosed = unblinded && manage;
   const when = new Date(meeting.scheduled_at);
   const started = when.getTime() <= Date.now();
   const recommendation = recommendations.find((r) => r.analysisId === meeting.analysis_id);
@@ -72,11 +73,8 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
           </dl>
           <h3 className="mt-4 text-sm font-semibold">Open session agenda</h3>
           <p className="whitespace-pre-wrap text-sm text-stone-700">{meeting.open_agenda || "None entered."}</p>
-          {unblinded && closedAgenda !== null ? (
-            <>
-              <h3 className="mt-3 text-sm font-semibold">Closed session agenda</h3>
-              <p className="whitespace-pre-wrap text-sm text-stone-700">{closedAgenda || "None entered."}</p>
-            </>
+          {unblinded ? (
+            <p className="mt-3 text-sm"><Link href={closedReview}>Closed session agenda (on the closed review of look {meeting.lookNumber})</Link></p>
           ) : manage ? (
             <p className="mt-3 text-xs text-stone-500">The closed session agenda is shown only to the DMC and the unblinded statistician.</p>
           ) : null}
@@ -103,7 +101,7 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
         </Card>
       </div>
 
-      <Card title="Meeting packet" actions={manage && meeting.status !== "cancelled" ? <ActionButton action={generatePackets} fields={hidden} label="Generate packet" pendingLabel="Generating PDF…" variant="secondary" /> : null}>
+      <Card title="Meeting packet" actions={manage && meeting.status !== "cancelled" ? <ActionButton action={generateOpenPacketAction} fields={hidden} label="Generate open report" pendingLabel="Generating PDF…" variant="secondary" /> : null}>
         <div id="packets" className="grid gap-4 md:grid-cols-2">
           <div>
             <h3 className="text-sm font-semibold">Open report <span className="font-normal text-stone-500">(everyone on the trial)</span></h3>
@@ -119,7 +117,7 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
           </div>
           <div>
             <h3 className="text-sm font-semibold">Closed report <span className="font-normal text-stone-500">(DMC members and the unblinded statistician)</span></h3>
-            {closedPackets.length === 0 ? <p className="text-sm text-stone-600">Not generated yet.</p> : null}
+            {closedPackets.length === 0 ? <p className="text-sm text-stone-600">Not prepared yet.</p> : null}
             <ul className="mt-1 flex flex-col gap-1 text-sm" aria-label="Closed report versions">
               {closedPackets.map((pk) =>
                 unblinded ? (
@@ -132,6 +130,13 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
                 ),
               )}
             </ul>
+            {prepareClosed && meeting.status !== "cancelled" ? (
+              <p className="mt-2 text-sm">
+                <Link href={closedReview} data-testid="prepare-closed-link">Prepare the closed report from the closed review of look {meeting.lookNumber}</Link>
+              </p>
+            ) : !unblinded && manage ? (
+              <p className="mt-2 text-xs text-stone-500">The unblinded statistician prepares the closed report from the closed review.</p>
+            ) : null}
           </div>
         </div>
         {manage && openPackets.length > 0 && meeting.status !== "cancelled" ? (

@@ -7,6 +7,12 @@ import { HttpError } from "@/lib/http";
 import { StatsDomainError } from "@/lib/stats/validate";
 import { loadReview } from "@/lib/review/load-review";
 import { fetchRecommendationsClosed } from "@/db/queries/recommendations";
+import { fetchMeetings } from "@/db/queries/meetings";
+import { fetchPackets } from "@/db/queries/packets";
+import { fetchClosedAgenda } from "@/db/queries/closed";
+import { formatMeetingTime } from "@/lib/packets/meeting-time";
+import { ActionButton } from "@/components/meetings/forms";
+import { prepareClosedPacketAction } from "./packet-actions";
 import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
 import { Banner } from "@/components/ui/banner";
@@ -62,6 +68,15 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
   }
   const { review, analysis, input, designVersion } = loaded;
   const recommendations = await fetchRecommendationsClosed(trial.id, analysisId);
+  // The meetings that review this look, with their closed agenda and closed packet versions: this
+  // page is the one place the closed packet is prepared (only unblinded roles reach it).
+  const closed = closedConnection(access);
+  const meetings = await Promise.all(
+    (await fetchMeetings(trial.id))
+      .filter((m) => m.analysis_id === analysisId)
+      .map(async (m) => ({ meeting: m, closedAgenda: await fetchClosedAgenda(m.id, closed), packets: await fetchPackets(m.id, ["closed"]) })),
+  );
+  const prepare = allows(principal, "manageMeetings");
   // Recommendations of an earlier review version are superseded, never corrected.
   const current = recommendations.find((r) => r.correctedById === null && !r.superseded) ?? null;
   const nText = (o: { n: number; nControl: number | null }) => (o.nControl === null ? String(o.n) : `${o.n} / ${o.nControl}`);
@@ -346,6 +361,37 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
           ) : (
             <p className="text-sm text-stone-600">Only a DMC member records the committee&apos;s recommendation.</p>
           )}
+        </Card>
+
+        <Card title="Closed report for the DMC meeting" className="lg:col-span-2">
+          <div id="closed-packet" className="flex flex-col gap-4">
+            {meetings.length === 0 ? <p className="text-sm text-stone-600">No meeting reviews this look yet. Schedule one on the <Link href={`/trials/${trial.id}/meetings`}>meetings page</Link>.</p> : null}
+            {meetings.map(({ meeting: m, closedAgenda, packets }) => (
+              <section key={m.id} className="rounded-md border border-stone-200 p-3" data-testid="closed-packet-meeting">
+                <h3 className="font-semibold">
+                  <Link href={`/trials/${trial.id}/meetings/${m.id}`}>Meeting of {formatMeetingTime(new Date(m.scheduled_at), m.time_zone)}</Link> <Badge tone={m.status === "cancelled" ? "neutral" : "teal"}>{m.status}</Badge>
+                </h3>
+                <h4 className="mt-2 text-sm font-semibold">Closed session agenda</h4>
+                <p className="whitespace-pre-wrap text-sm text-stone-700">{closedAgenda || "None entered."}</p>
+                <h4 className="mt-2 text-sm font-semibold">Closed report versions</h4>
+                {packets.length === 0 ? <p className="text-sm text-stone-600">Not prepared yet.</p> : null}
+                <ul className="flex flex-col gap-1 text-sm" aria-label="Closed report versions">
+                  {packets.map((pk) => (
+                    <li key={pk.id}>
+                      <a href={`/api/trials/${trial.id}/meetings/${m.id}/packets/${pk.id}`} download>Closed report v{pk.version}</a>{" "}
+                      <span className="text-stone-500">· {pk.page_count} pages · {new Date(pk.created_at).toISOString().slice(0, 16).replace("T", " ")} UTC · engine {pk.engine_version}</span>
+                    </li>
+                  ))}
+                </ul>
+                {prepare && m.status !== "cancelled" ? (
+                  <div className="mt-3 max-w-xl">
+                    <p className="mb-2 text-xs text-stone-500">Builds the open report followed by the closed results of the locked looks as a PDF, stored as a new version when the content changed. DMC members get a link to it when the packet is sent from the meeting page; it never travels by e-mail. Cairn is decision support: the DMC charter, the protocol and the regulator decide.</p>
+                    <ActionButton action={prepareClosedPacketAction} fields={{ trialId: trial.id, analysisId, meetingId: m.id }} label="Prepare the closed packet" pendingLabel="Preparing PDF…" variant="secondary" />
+                  </div>
+                ) : null}
+              </section>
+            ))}
+          </div>
         </Card>
       </div>
     </div>
