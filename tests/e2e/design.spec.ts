@@ -171,7 +171,7 @@ test("a statistician designs a two-arm trial and the operating characteristics m
   await page.getByLabel(/Prior on the control arm/).selectOption("informative");
   await page.getByLabel("Prior mean").fill("0.3");
   await page.getByLabel("Effective sample size").fill("10");
-  await page.getByLabel("Control rate").fill("0.3");
+  await page.getByLabel("Control rate", { exact: true }).fill("0.3");
   await page.getByLabel("Experimental rate").fill("0.5");
   await page.getByLabel("Maximum sample size per arm").fill("40");
   await page.getByLabel("Stop early for efficacy").check();
