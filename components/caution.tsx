@@ -1,6 +1,6 @@
-/** The caution every trial page and packet carries (product brief, "Cautions"). */
-export const CAUTION_TEXT =
-  "Decision support only. Stopping, continuing or changing a trial is decided by the DMC under its charter, the protocol, and the applicable regulations and ethics approvals, not by Cairn.";
+import { CAUTION_TEXT } from "@/lib/caution";
+
+export { CAUTION_TEXT };
 
 export function Caution() {
   return (

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { CAUTION_TEXT } from "@/components/caution";
+import { CAUTION_TEXT } from "@/lib/caution";
 import { closedNoticeMail, oneLine, openPacketMail, reminderMail } from "./templates";
 
 const ctx = {

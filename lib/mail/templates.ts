@@ -4,7 +4,7 @@
  * message says what it is, who it is for, and carries the caution. No template takes closed data:
  * DMC members get a link to the closed report in Cairn, never its content.
  */
-import { CAUTION_TEXT } from "@/components/caution";
+import { CAUTION_TEXT } from "@/lib/caution";
 
 export type MailContent = { subject: string; text: string };
 

@@ -1,5 +1,5 @@
 /** The open packet document: open input alone (kept apart from the closed part, which build.ts adds). */
-import { CAUTION_TEXT } from "@/components/caution";
+import { CAUTION_TEXT } from "@/lib/caution";
 import type { PacketDocument } from "./document";
 import { buildOpenSections, meetingLabel, type OpenPacketInput } from "./open-content";
 

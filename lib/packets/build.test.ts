@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import betaCdf from "@stdlib/stats-base-dists-beta-cdf";
 import { computeReview, reproducibilityRecord, type ReviewInput } from "@/lib/review/compute-review";
 import type { SingleArmDesign } from "@/lib/stats/types";
-import { CAUTION_TEXT } from "@/components/caution";
+import { CAUTION_TEXT } from "@/lib/caution";
 import { buildClosedPacket, buildOpenPacket } from "./build";
 import { documentText, packetContentHash, pdfSafeText, type PacketChart } from "./document";
 import type { OpenPacketInput } from "./open-content";

@@ -3,7 +3,7 @@
  * closed packet adds the closed part (and only a caller that passed the viewClosed check can hold
  * a ClosedPacketInput, because computing one needs the arm-level counts).
  */
-import { CAUTION_TEXT } from "@/components/caution";
+import { CAUTION_TEXT } from "@/lib/caution";
 import type { PacketDocument } from "./document";
 import { buildOpenSections, meetingLabel, type OpenPacketInput } from "./open-content";
 import { buildOpenPacket } from "./build-open";

@@ -7,7 +7,7 @@ import "server-only";
 import type { PublicUser, TrialRow } from "@/db/types";
 import { fetchAttendees, fetchMeeting } from "@/db/queries/meetings";
 import { fetchLookSchedule, fetchRecommendationsOpen } from "@/db/queries/open-status";
-import { CAUTION_TEXT } from "@/components/caution";
+import { CAUTION_TEXT } from "@/lib/caution";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { HttpError } from "@/lib/http";
 import { buildOpenPacket } from "./build-open";
