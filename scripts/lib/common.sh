@@ -147,7 +147,7 @@ grant_app_privileges() {
         users)
           echo "GRANT SELECT, INSERT, UPDATE ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';"
           echo "REVOKE DELETE ON \`$db\`.\`$t\` FROM '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
-        knex_migrations|knex_migrations_lock) echo "GRANT SELECT ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
+        knex_migrations|knex_migrations_lock|knex_migrations_checksums) echo "GRANT SELECT ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
         *) echo "GRANT SELECT, INSERT, UPDATE, DELETE ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
       esac
     done
