@@ -11,9 +11,9 @@ const nextConfig = {
   // knex pulls in drivers it never uses (pg, sqlite3, ...) when bundled; keep it and mysql2 external.
   serverExternalPackages: ["knex", "mysql2", "pdfkit", "nodemailer", "piscina", "smtp-server", "mailparser"],
   poweredByHeader: false,
-  // scripts/test runs `tsc --noEmit` over the whole project (app, lib, db, tests) as its own step;
-  // checking again inside the build would only repeat it.
-  typescript: { ignoreBuildErrors: true },
+  // The build type-checks (tsconfig.json covers app, components, lib, db, tests and scripts), so a type
+  // error can never reach a served build.
+  typescript: { ignoreBuildErrors: false },
   // The proxy (pages and their server actions) buffers request bodies; nothing Cairn accepts there is near 6 MB.
   experimental: { authInterrupts: true, proxyClientMaxBodySize: "6mb" },
   async headers() {
