@@ -1,21 +1,29 @@
 "use client";
-import { useActionState, useEffect, useState } from "react";
+import { useActionState, useEffect, useSyncExternalStore } from "react";
 import { setPassword, type SetPasswordState } from "./actions";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { NewPasswordFields, PasswordSetNotice } from "@/components/account/password-fields";
 
+/**
+ * The link's token, read from the URL fragment once per page load and kept: the fragment is removed
+ * from the address bar right after, and a failed attempt must still post the token.
+ */
+let linkToken: string | null = null;
+function readLinkToken(): string {
+  if (linkToken === null) linkToken = window.location.hash.replace(/^#/, "");
+  return linkToken;
+}
+const noSubscription = () => () => {};
+
 /** The token arrives in the URL fragment, which the browser never sends to the server; the form posts it. */
 export function SetPasswordForm() {
   const [state, action, pending] = useActionState(setPassword, {} as SetPasswordState);
-  const [token, setToken] = useState("");
+  const token = useSyncExternalStore(noSubscription, readLinkToken, () => "");
   useEffect(() => {
-    const fromLink = window.location.hash.replace(/^#/, "");
-    if (!fromLink) return;
-    setToken(fromLink);
     // The token should not stay in the address bar or the history once read.
-    window.history.replaceState(null, "", window.location.pathname);
-  }, []);
+    if (token && window.location.hash) window.history.replaceState(null, "", window.location.pathname);
+  }, [token]);
   const fe = state.fieldErrors ?? {};
   if (state.ok) return <PasswordSetNotice message={state.ok} />;
   return (
