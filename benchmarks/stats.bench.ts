@@ -5,6 +5,7 @@
  */
 import {
   calibrateSingleArm,
+  calibrateTwoArm,
   posteriorSummary,
   clearTwoArmFinalRuleCache,
   exactOperatingCharacteristics,
@@ -98,6 +99,26 @@ const thetaLGrid = grid(0, 0.3);
 bench("calibration 40 x 40 grid, 1 arm, Nmax 100, every patient", 2000, 7, () => {
   const r = calibrateSingleArm(calib, { thetaTGrid, thetaLGrid, typeIErrorLimit: 0.05, powerTarget: 0.8 });
   check(r.evaluated === 1600 && r.best.length > 0 && r.best[0].typeIError <= 0.05 && r.best[0].power >= 0.8, "calibration finds a feasible design");
+});
+
+// ---- two-arm threshold search: 40 x 40 grid, 100 per arm, a look every 10 per arm ---------------
+// Type I error is the maximum over the 19 default control rates on the null boundary, power at (0.5, 0.3).
+const calibTwo: TwoArmDesign = {
+  arms: "two",
+  priorT: { family: "uniform" },
+  priorC: { family: "uniform" },
+  controlRate: 0.3,
+  experimentalRate: 0.5,
+  delta: 0,
+  nMaxPerArm: 100,
+  looks: { kind: "every", first: 10, every: 10 },
+  rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
+  safety: null,
+};
+const twoGrid = (from: number, step: number) => Array.from({ length: 40 }, (_, i) => Math.round((from + i * step) * 1e9) / 1e9);
+bench("two-arm threshold search 40 x 40 grid, 100 per arm, look every 10 per arm", 60_000, 1, () => {
+  const r = calibrateTwoArm(calibTwo, { thetaTGrid: twoGrid(0.8, 0.005), thetaLGrid: twoGrid(0, 0.005), typeIErrorLimit: 0.1, powerTarget: 0.8 });
+  check(r.evaluated === 1600 && r.best.length > 0 && r.best[0].typeIError <= 0.1 && r.best[0].power >= 0.8, "two-arm search finds a feasible design");
 });
 
 // ---- uncertain-standard rule and safety: boundaries + joint OC over 13 toxicity rates -----------

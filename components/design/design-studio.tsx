@@ -15,6 +15,7 @@ import { Field, TextArea, TextInput } from "@/components/ui/field";
 import { DesignFormFields } from "./design-form";
 import { PreviewPanel, usePreview } from "./preview-panel";
 import { CalibrationPanel } from "./calibration-panel";
+import { SEARCH_WORDS, thresholdWord } from "@/lib/design/threshold-labels";
 import { defaultDesign, designToForm, formToCandidate, issuesToFieldErrors, validateDesignCandidate, type DesignForm, type FieldErrors } from "@/lib/design/form-model";
 import type { DesignVersionJson } from "@/lib/design/serialize";
 import type { CalibratedDesign } from "@/lib/stats/calibration";
@@ -174,7 +175,11 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
 
   function applyCalibrated(d: CalibratedDesign) {
     change({ ...form, thetaT: String(d.thetaT), futilityThreshold: String(d.thetaL), ...(d.thetaU !== null ? { efficacyThreshold: String(d.thetaU), efficacyStopping: true } : {}) });
-    setOutcome({ tone: "warning", text: `Thresholds copied into the form (θT ${d.thetaT}, futility ${d.thetaL}${d.thetaU !== null ? `, efficacy ${d.thetaU}` : ""}). Save the draft to keep them.` });
+    const rule = form.ruleKind === "predictive" ? "predictive" : "posterior";
+    setOutcome({
+      tone: "warning",
+      text: `Thresholds copied into the form (${thresholdWord("thetaT").word.toLowerCase()} ${d.thetaT}, ${thresholdWord("futilityThreshold", rule).word.toLowerCase()} ${d.thetaL}${d.thetaU !== null ? `, ${thresholdWord("efficacyThreshold", rule).word.toLowerCase()} ${d.thetaU}` : ""}). Save the draft to keep them.`,
+    });
   }
 
   return (
@@ -280,7 +285,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
           ) : null}
 
           {editable ? (
-            <Card title="Calibration">
+            <Card title={SEARCH_WORDS.search}>
               <CalibrationPanel trialId={trialId} design={design} onUse={applyCalibrated} />
             </Card>
           ) : null}

@@ -5,7 +5,8 @@
  */
 import { z } from "zod";
 import { singleArmDesignSchema, twoArmDesignSchema } from "@/lib/stats/design-schema";
-import type { Design } from "@/lib/stats/types";
+import type { Design, TwoArmDesign } from "@/lib/stats/types";
+import { expandLooks } from "@/lib/stats/looks";
 
 const rowVersion = z.number({ message: "rowVersion must be a number." }).int("rowVersion must be a whole number.").positive("rowVersion must be positive.");
 
@@ -67,3 +68,17 @@ export const calibrationBodySchema = z
   });
 
 export type CalibrationBody = z.infer<typeof calibrationBodySchema>;
+
+/**
+ * Work allowed in one two-arm search, in (grid points) x (sum over looks of the per-arm look size
+ * squared): a two-arm point costs a joint recursion over the (xT, xC) square per control rate. A 40 x 40
+ * grid at 100 per arm with a look every 10 is 6.2e7 and runs in about half a minute on the two-core demo
+ * machine; the limit keeps a search to about a minute.
+ */
+export const TWO_ARM_SEARCH_BUDGET = 1e8;
+
+/** The largest number of grid points a two-arm search of this design may have. */
+export function maxTwoArmSearchPoints(design: TwoArmDesign): number {
+  const work = expandLooks(design.looks, design.nMaxPerArm).reduce((s, n) => s + n * n, 0);
+  return Math.max(1, Math.floor(TWO_ARM_SEARCH_BUDGET / work));
+}

@@ -67,4 +67,10 @@ export const SEARCH_WORDS = {
   power: "Power",
   averagePatients: "Average patients",
   stopEarly: "Chance of stopping early",
+  typeIErrorLimit: "Type I error limit",
+  powerTarget: "Power target",
+  run: "Search thresholds",
+  bestDesigns: "Best designs found",
+  useDesign: "Use this design",
+  cloudTitle: "Type I error against power, one point per threshold set searched",
 } as const;

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import type { CalibrationJobRow } from "@/db/queries/calibration-jobs";
-import { ABANDONED_MESSAGE, calibrationJobFromRow, calibrationJobJson, STALE_AFTER_MS } from "./calibration-job-json";
+import { ABANDONED_MESSAGE, calibrationJobFromRow, calibrationJobJson, STALE_AFTER_MS, storedResultsJson } from "./calibration-job-json";
 
 const t0 = new Date("2026-12-02T10:00:00.000Z");
 const row = (over: Partial<CalibrationJobRow> = {}): CalibrationJobRow => ({
@@ -45,5 +45,22 @@ describe("calibrationJobFromRow", () => {
     const j = calibrationJobFromRow(row({ cancel_requested: 1 }), t0);
     expect(calibrationJobJson(j).status).toBe("cancelling");
     expect(calibrationJobJson({ ...j, status: "cancelled" }).status).toBe("cancelled");
+  });
+});
+
+describe("stored results", () => {
+  it("reads a row written before the two-arm search (a bare array) as one-arm results without chart points", () => {
+    const j = calibrationJobFromRow(row(), t0);
+    expect(j.arms).toBe("single");
+    expect(j.points).toEqual([]);
+    expect(j.best[0].thetaT).toBe(0.9);
+  });
+
+  it("round-trips the arms, best designs and chart points of a two-arm search", () => {
+    const best = JSON.parse(row().best_json);
+    const j = calibrationJobFromRow(row({ best_json: storedResultsJson({ arms: "two", best, points: [[0.05, 0.81], [0.1, 0.9]] }) }), t0);
+    expect(j.arms).toBe("two");
+    expect(j.best).toEqual(best);
+    expect(calibrationJobJson(j).points).toEqual([[0.05, 0.81], [0.1, 0.9]]);
   });
 });

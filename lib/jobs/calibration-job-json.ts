@@ -1,6 +1,23 @@
 /** Calibration jobs as the app sees them (from their calibration_jobs row) and as the API sends them. */
 import type { CalibratedDesign } from "@/lib/stats/calibration";
 import type { CalibrationJobRow } from "@/db/queries/calibration-jobs";
+import type { SearchedPoint } from "./chunked-calibration";
+
+/**
+ * What best_json holds: the best designs, the searched (type I error, power) points for the chart and
+ * the number of arms. Rows written before the two-arm search hold a bare array of best designs (one arm).
+ */
+export type StoredResults = { arms: "single" | "two"; best: CalibratedDesign[]; points: SearchedPoint[] };
+
+export function storedResultsJson(r: StoredResults): string {
+  return JSON.stringify(r);
+}
+
+export function parseStoredResults(json: string): StoredResults {
+  const v = JSON.parse(json) as CalibratedDesign[] | StoredResults;
+  if (Array.isArray(v)) return { arms: "single", best: v, points: [] };
+  return { arms: v.arms === "two" ? "two" : "single", best: Array.isArray(v.best) ? v.best : [], points: Array.isArray(v.points) ? v.points : [] };
+}
 
 export type CalibrationJobStatus = "running" | "done" | "cancelled" | "failed";
 
@@ -17,6 +34,9 @@ export type CalibrationJob = {
   evaluated: number;
   feasible: number;
   best: CalibratedDesign[];
+  /** Distinct (type I error, power) pairs of the grid points searched so far, for the results chart. */
+  points: SearchedPoint[];
+  arms: "single" | "two";
   error: string | null;
   cancelRequested: boolean;
 };
@@ -27,6 +47,7 @@ export const ABANDONED_MESSAGE = "The server process running this search stopped
 
 /** The job as callers see it; pure, so the staleness rule is unit-tested. */
 export function calibrationJobFromRow(r: CalibrationJobRow, now: Date): CalibrationJob {
+  const stored = parseStoredResults(r.best_json);
   const abandoned = r.status === "running" && now.getTime() - new Date(r.heartbeat_at).getTime() > STALE_AFTER_MS;
   return {
     id: r.id,
@@ -39,7 +60,9 @@ export function calibrationJobFromRow(r: CalibrationJobRow, now: Date): Calibrat
     total: r.total,
     evaluated: r.evaluated,
     feasible: r.feasible,
-    best: JSON.parse(r.best_json) as CalibratedDesign[],
+    best: stored.best,
+    points: stored.points,
+    arms: stored.arms,
     error: abandoned ? ABANDONED_MESSAGE : r.error,
     cancelRequested: !!r.cancel_requested,
   };
@@ -57,6 +80,8 @@ export function calibrationJobJson(j: CalibrationJob) {
     evaluated: j.evaluated,
     feasible: j.feasible,
     best: j.best,
+    points: j.points,
+    arms: j.arms,
     error: j.error,
   };
 }

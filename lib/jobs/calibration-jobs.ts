@@ -10,7 +10,7 @@ import "server-only";
  * reported as failed, and the caller starts again.
  */
 import { randomUUID } from "node:crypto";
-import type { SingleArmDesign } from "@/lib/stats/types";
+import type { Design } from "@/lib/stats/types";
 import {
   fetchCalibrationJob,
   finishCalibrationJob,
@@ -21,7 +21,7 @@ import {
   type CalibrationProgressUpdate,
 } from "@/db/queries/calibration-jobs";
 import { HttpError } from "@/lib/http";
-import { calibrationJobFromRow, STALE_AFTER_MS, type CalibrationJob } from "./calibration-job-json";
+import { calibrationJobFromRow, STALE_AFTER_MS, storedResultsJson, type CalibrationJob } from "./calibration-job-json";
 import { runChunkedCalibration, type ChunkedCalibrationInput, type ChunkedProgress } from "./chunked-calibration";
 import { runCalibrationSlice } from "./pool";
 import { eventLoopWatcher, pauseBeforeNextSlice } from "./back-off";
@@ -33,13 +33,18 @@ export const HEARTBEAT_MS = 5_000;
 /** Finished jobs are kept this long for the page to fetch the results. */
 const KEEP_MS = 24 * 60 * 60 * 1000;
 
-const progressUpdate = (s: ChunkedProgress): CalibrationProgressUpdate => ({ progress: s.progress, evaluated: s.evaluated, feasible: s.feasible, bestJson: JSON.stringify(s.best) });
+const progressUpdate = (arms: Design["arms"]) => (s: ChunkedProgress): CalibrationProgressUpdate => ({
+  progress: s.progress,
+  evaluated: s.evaluated,
+  feasible: s.feasible,
+  bestJson: storedResultsJson({ arms, best: s.best, points: s.points }),
+});
 
 /**
  * Starts a search and returns the new job at once (429 when MAX_RUNNING_JOBS already run); the
  * search goes on in this process after the response.
  */
-export async function startCalibrationJob(args: { trialId: number; userId: number; design: SingleArmDesign } & Omit<ChunkedCalibrationInput, "design">): Promise<CalibrationJob> {
+export async function startCalibrationJob(args: { trialId: number; userId: number; design: Design } & Omit<ChunkedCalibrationInput, "design">): Promise<CalibrationJob> {
   const now = new Date();
   await pruneCalibrationJobs(new Date(now.getTime() - KEEP_MS));
   const id = randomUUID();
@@ -47,6 +52,7 @@ export async function startCalibrationJob(args: { trialId: number; userId: numbe
   const admitted = await insertCalibrationJobIfRoom({ id, trialId: args.trialId, userId: args.userId, total, now }, MAX_RUNNING_JOBS, new Date(now.getTime() - STALE_AFTER_MS));
   if (!admitted) throw new HttpError(429, "Other calibrations are running on the server just now; try again in a minute.");
 
+  const progressOf = progressUpdate(args.design.arms);
   let cancelRequested = false;
   // Progress writes go one after another, so a slow write never lands after a later one.
   let writes: Promise<void> = Promise.resolve();
@@ -72,10 +78,10 @@ export async function startCalibrationJob(args: { trialId: number; userId: numbe
       calibrate: (design, options) => runCalibrationSlice({ design, options }),
       shouldCancel: () => cancelRequested,
       pauseAfter: (chunkMs) => pauseBeforeNextSlice(requestThreadUtilization(), chunkMs),
-      onChunk: (s) => touch(progressUpdate(s)),
+      onChunk: (s) => touch(progressOf(s)),
     },
   ).then(
-    (s) => finish({ status: s.cancelled ? "cancelled" : "done", error: null, progress: progressUpdate(s) }),
+    (s) => finish({ status: s.cancelled ? "cancelled" : "done", error: null, progress: progressOf(s) }),
     (e: unknown) => {
       console.error("[cairn] calibration job failed", id, e);
       return finish({ status: "failed", error: e instanceof Error ? e.message.slice(0, 500) : "The search failed." });

@@ -13,9 +13,9 @@ import "server-only";
 import { existsSync } from "node:fs";
 import path from "node:path";
 import { Piscina } from "piscina";
-import { calibrateSingleArm, type CalibrationResult } from "@/lib/stats/calibration";
+import type { CalibrationResult } from "@/lib/stats/calibration";
 import { designPreview, type DesignPreview } from "@/lib/design/preview";
-import type { CalibrationSliceTask } from "./workers/calibration.worker";
+import { calibrateSlice, type CalibrationSliceTask } from "./workers/calibration.worker";
 import type { PreviewTask } from "./workers/preview.worker";
 import { captureOutcome, unwrapOutcome, type WorkerOutcome } from "./workers/worker-errors";
 
@@ -61,9 +61,9 @@ async function runTask<T, A>(kind: WorkerKind, task: A, inProcess: (task: A) => 
   return unwrapOutcome(outcome);
 }
 
-/** One slice of the calibration grid search (see lib/jobs/chunked-calibration.ts). */
+/** One slice of the calibration grid search, one arm or two (see lib/jobs/chunked-calibration.ts). */
 export function runCalibrationSlice(task: CalibrationSliceTask): Promise<CalibrationResult> {
-  return runTask("calibration", task, (t) => calibrateSingleArm(t.design, t.options));
+  return runTask("calibration", task, calibrateSlice);
 }
 
 export function runDesignPreview(task: PreviewTask): Promise<DesignPreview> {

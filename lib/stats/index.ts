@@ -20,3 +20,4 @@ export * from "./hpd";
 export * from "./frequentist";
 export * from "./compare";
 export * from "./labels";
+export * from "./calibration-two-arm";

@@ -13,7 +13,8 @@ import { cancelCalibrationJob, getCalibrationJob, MAX_RUNNING_JOBS, startCalibra
 import { ABANDONED_MESSAGE, STALE_AFTER_MS } from "@/lib/jobs/calibration-job-json";
 import { HttpError } from "@/lib/http";
 import { makeTrial, makeUser, resetDatabase } from "./support/db";
-import { smallDesign, smallGrid } from "@/lib/jobs/test-design";
+import { smallDesign, smallGrid, smallTwoArmDesign, smallTwoArmGrid } from "@/lib/jobs/test-design";
+import { calibrateTwoArm } from "@/lib/stats/calibration-two-arm";
 
 const design = smallDesign;
 const grid = smallGrid;
@@ -58,6 +59,17 @@ describe("calibration jobs in MariaDB", () => {
     expect(done).toMatchObject({ status: "done", progress: 1, evaluated: whole.evaluated, feasible: whole.feasible, error: null });
     expect(done!.best).toEqual(whole.best);
     expect(done!.finishedAt).not.toBeNull();
+  });
+
+  it("runs a two-arm search to the same best designs as one search over the whole grid, with its chart points", async () => {
+    const started = await startCalibrationJob({ trialId, userId, design: smallTwoArmDesign, ...smallTwoArmGrid });
+    expect(started.total).toBe(3 * 3 * 2);
+    const done = await until(() => getCalibrationJob(trialId, started.id), (j) => j?.status !== "running");
+    const whole = calibrateTwoArm(smallTwoArmDesign, smallTwoArmGrid);
+    expect(done).toMatchObject({ status: "done", arms: "two", progress: 1, evaluated: whole.evaluated, feasible: whole.feasible, error: null });
+    expect(done!.best).toEqual(JSON.parse(JSON.stringify(whole.best)));
+    expect(done!.points.length).toBeGreaterThan(0);
+    expect(done!.points.length).toBeLessThanOrEqual(whole.evaluated);
   });
 
   it("does not reveal a job to another trial", async () => {
