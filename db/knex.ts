@@ -2,7 +2,7 @@ import "server-only";
 import knexFactory, { type Knex } from "knex";
 import knexConfig from "../knexfile";
 import { blindedDatabaseConnection } from "../lib/config-shared";
-import { isDatabaseDown, writeNotSaved } from "@/lib/http";
+import { isDatabaseDown, WriteNotSavedError } from "./errors";
 
 // One pool per account per process; cached on globalThis so dev-mode hot reload does not leak pools.
 const globalForKnex = globalThis as unknown as { cairnKnex?: Knex; cairnBlindKnex?: Knex };
@@ -49,6 +49,6 @@ export async function writeTransaction<T>(fn: (tx: Knex.Transaction) => Promise<
   } catch (e) {
     if (!isDatabaseDown(e)) throw e;
     console.error("[cairn] database connection lost during a write", e);
-    throw writeNotSaved();
+    throw new WriteNotSavedError();
   }
 }

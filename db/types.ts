@@ -1,6 +1,7 @@
 /** Row types, declared once for the whole app. Arm-level (closed) rows are marked as such. */
-export type TrialRole = "unblinded_statistician" | "dmc_member" | "sponsor" | "coordinator";
-export const TRIAL_ROLES: readonly TrialRole[] = ["unblinded_statistician", "dmc_member", "sponsor", "coordinator"];
+import type { AnalysisStatus, MeetingStatus, RecommendationDecision, TrialRole } from "@/lib/domain";
+export { TRIAL_ROLES } from "@/lib/domain";
+export type { AnalysisStatus, MeetingStatus, RecommendationDecision, TrialRole };
 
 export type UserRow = {
   id: number;
@@ -51,7 +52,6 @@ export type DesignRow = {
   locked_at: Date | null;
 };
 
-export type AnalysisStatus = "planned" | "open" | "locked" | "reviewed";
 /** Open information about a look: safe for every role on the trial. */
 export type AnalysisOpenRow = {
   id: number;
@@ -113,7 +113,6 @@ export type SignatureRow = {
   hash_scheme?: "sha256" | "hmac-sha256";
 };
 
-export type RecommendationDecision = "continue" | "continue_modified" | "stop_futility" | "stop_efficacy" | "stop_safety";
 
 export type AuditVisibility = "open" | "closed";
 export type AuditEventRow = {
@@ -138,7 +137,6 @@ export type AuditEventRow = {
 /** An audit row without its hashes: what a blinded viewer's query selects (see fetchAuditEvents). */
 export type AuditEventOpenRow = Omit<AuditEventRow, "hash" | "prev_hash" | "hash_scheme">;
 
-export type MeetingStatus = "scheduled" | "held" | "cancelled";
 /** A DMC meeting. Open information: time, open agenda, the look it reviews. The closed agenda is closed (db/queries/closed.ts fetchClosedAgenda). */
 export type MeetingRow = {
   id: number;

@@ -4,6 +4,7 @@ import { unstable_rethrow } from "next/navigation";
 import { ZodError } from "zod";
 import { callerIsUnblinded, HttpError, isDatabaseDown, publicErrorMessage } from "./http";
 import { StatsDomainError } from "./stats/validate";
+import { WriteNotSavedError } from "@/db/errors";
 
 /** What every server action answers a form with: a message, or an error with the fields it concerns. */
 export type FormState = { ok?: string; error?: string; fieldErrors?: Record<string, string[] | undefined> };
@@ -23,6 +24,7 @@ export function formError(e: unknown): FormState {
     return { error: "Check the highlighted fields.", fieldErrors };
   }
   if (e instanceof StatsDomainError) return { error: publicErrorMessage(e, callerIsUnblinded()) };
+  if (e instanceof WriteNotSavedError) return { error: e.message };
   if (isDatabaseDown(e)) return { error: "The database is not reachable just now; nothing was saved. Try again shortly." };
   const id = randomUUID();
   console.error(`[cairn] error ${id}`, e);

@@ -4,6 +4,9 @@ import { AsyncLocalStorage } from "node:async_hooks";
 import { NextResponse } from "next/server";
 import { ZodError } from "zod";
 import { StatsDomainError } from "./stats/validate";
+import { isDatabaseDown, WriteNotSavedError } from "@/db/errors";
+
+export { isDatabaseDown };
 
 /** An error with an HTTP meaning; thrown anywhere on the server, mapped once by `errorResponse`. */
 export class HttpError extends Error {
@@ -21,19 +24,6 @@ export const unauthorized = () => new HttpError(401, "Sign in to continue.");
 export const forbiddenError = (what = "this") => new HttpError(403, `Your role on this trial does not allow ${what}.`);
 export const notFoundError = (what = "That record") => new HttpError(404, `${what} was not found.`);
 export const conflict = (message: string) => new HttpError(409, message);
-
-/** The database could not be reached, or the connection broke under a statement (mysql2 marks that fatal). */
-export function isDatabaseDown(e: unknown): boolean {
-  if (e instanceof HttpError) return false;
-  const code = (e as { code?: string })?.code ?? "";
-  return ["ECONNREFUSED", "PROTOCOL_CONNECTION_LOST", "ETIMEDOUT", "ECONNRESET", "ER_CON_COUNT_ERROR"].includes(code) ||
-    (e as { fatal?: boolean })?.fatal === true ||
-    (e instanceof Error && /Knex: Timeout acquiring a connection/.test(e.message));
-}
-
-/** What a write answers when the connection was lost before its transaction committed. */
-export const writeNotSaved = () =>
-  new HttpError(503, "The database connection was lost before the change was committed, so nothing was saved. Try again in a moment.");
 
 /**
  * Whether this request's caller is unblinded on the trial it touched, recorded by lib/auth when it
@@ -88,6 +78,7 @@ export function errorResponse(e: unknown): NextResponse {
   if (e instanceof SyntaxError) {
     return NextResponse.json({ error: "The request body is not valid JSON." }, { status: 400 });
   }
+  if (e instanceof WriteNotSavedError) return NextResponse.json({ error: e.message }, { status: 503 });
   if (isDatabaseDown(e)) {
     return NextResponse.json({ error: "The database is not reachable just now; nothing was saved. Try again shortly." }, { status: 503 });
   }

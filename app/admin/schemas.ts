@@ -11,7 +11,7 @@ export const createAccountSchema = z.object({
 export const assignRoleSchema = z.object({
   userId: z.coerce.number().int("Choose a person.").positive("Choose a person."),
   trialId: z.coerce.number().int("Choose a trial.").positive("Choose a trial."),
-  role: z.enum(TRIAL_ROLES as [string, ...string[]], { message: "Choose a role." }),
+  role: z.enum(TRIAL_ROLES, { message: "Choose a role." }),
 });
 
 export const removeRoleSchema = z.object({ membershipId: z.coerce.number().int().positive() });

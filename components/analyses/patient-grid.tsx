@@ -1,7 +1,7 @@
 "use client";
 import type { ColDef } from "ag-grid-community";
 import { DataGrid } from "@/components/grid/data-grid";
-import type { PatientJson } from "@/app/trials/[trialId]/analyses/_lib/json";
+import type { PatientJson } from "@/lib/analyses/json";
 
 const yesNo = (v: boolean | null | undefined) => (v === null || v === undefined ? "" : v ? "yes" : "no");
 

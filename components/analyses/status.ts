@@ -1,4 +1,4 @@
-import type { AnalysisStatus } from "@/db/types";
+import type { AnalysisStatus } from "@/lib/domain";
 
 export const STATUS_TONES: Record<AnalysisStatus, "neutral" | "amber" | "teal" | "lichen"> = {
   planned: "neutral",

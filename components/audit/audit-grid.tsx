@@ -8,7 +8,7 @@ import type { ColDef } from "ag-grid-community";
 import { format } from "date-fns";
 import { DataGrid } from "@/components/grid/data-grid";
 import { SelectInput, TextInput } from "@/components/ui/field";
-import type { AuditEntryJson } from "./audit-json";
+import type { AuditEntryJson } from "@/lib/audit/audit-json";
 
 type Row = AuditEntryJson & { when: string; oldText: string; newText: string };
 

@@ -4,7 +4,7 @@ import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { Field, SelectInput, TextArea, TextInput } from "@/components/ui/field";
-import type { MeetingFormState } from "@/app/trials/[trialId]/meetings/schemas";
+import type { MeetingFormState } from "@/lib/meetings/schemas";
 
 type Action = (prev: MeetingFormState, form: FormData) => Promise<MeetingFormState>;
 const initial: MeetingFormState = {};

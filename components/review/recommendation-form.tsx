@@ -1,6 +1,5 @@
 "use client";
-import { startTransition, useActionState, useEffect, useState } from "react";
-import { recordRecommendationAction } from "@/app/trials/[trialId]/review/[analysisId]/actions";
+import { startTransition, useActionState, useState } from "react";
 import type { RecommendationFormState } from "@/lib/review/recommendation-schema";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
@@ -11,8 +10,15 @@ import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
 const initial: RecommendationFormState = {};
 
 /** The committee's recommendation, signed with the member's password (e-signature). */
-export function RecommendationForm({ trialId, analysisId, correctsId, signerName }: { trialId: number; analysisId: number; correctsId: number | null; signerName: string }) {
-  const [state, action, pending] = useActionState(recordRecommendationAction, initial);
+export function RecommendationForm({ trialId, analysisId, correctsId, signerName, recordAction }: {
+  trialId: number;
+  analysisId: number;
+  correctsId: number | null;
+  signerName: string;
+  /** The page's server action; passed in so components never import from app/. */
+  recordAction: (prev: RecommendationFormState, form: FormData) => Promise<RecommendationFormState>;
+}) {
+  const [state, action, pending] = useActionState(recordAction, initial);
   const fe = state.fieldErrors ?? {};
   // Submitted by hand, not through the form's action prop: React resets a form after an action,
   // and a reset select would fall back to its first option while the screen still showed the
@@ -21,13 +27,17 @@ export function RecommendationForm({ trialId, analysisId, correctsId, signerName
   const [decision, setDecision] = useState("");
   const [rationale, setRationale] = useState("");
   const [password, setPassword] = useState("");
-  useEffect(() => {
+  // Each answer of the action is a new object: react to it once, during render (React's pattern
+  // for state that follows other state), not in an effect that would render twice.
+  const [answered, setAnswered] = useState(state);
+  if (answered !== state) {
+    setAnswered(state);
     setPassword("");
     if (state.ok) {
       setDecision("");
       setRationale("");
     }
-  }, [state]);
+  }
   const submit = (e: React.FormEvent<HTMLFormElement>) => {
     e.preventDefault();
     const data = new FormData(e.currentTarget);

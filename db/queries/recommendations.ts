@@ -10,7 +10,7 @@ import { db, type Tx } from "../knex";
 import type { AnalysisOpenRow, RecommendationDecision } from "../types";
 import { ANALYSIS_OPEN_COLUMNS } from "./open-status";
 
-export const RECOMMENDATION_DECISIONS: readonly RecommendationDecision[] = ["continue", "continue_modified", "stop_futility", "stop_efficacy", "stop_safety"];
+export { RECOMMENDATION_DECISIONS } from "@/lib/domain";
 
 /** CLOSED: a recommendation with its rationale and signature. */
 export type RecommendationClosed = {

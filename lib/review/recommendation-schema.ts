@@ -1,7 +1,9 @@
 /** The one schema for recording a recommendation, shared by the server action and the route handler. */
 import { z } from "zod";
 
-export const RECOMMENDATION_DECISION_VALUES = ["continue", "continue_modified", "stop_futility", "stop_efficacy", "stop_safety"] as const;
+import { RECOMMENDATION_DECISIONS } from "@/lib/domain";
+
+export const RECOMMENDATION_DECISION_VALUES = RECOMMENDATION_DECISIONS;
 
 export const recommendationSchema = z.object({
   decision: z.enum(RECOMMENDATION_DECISION_VALUES, { message: "Choose the committee's recommendation." }),

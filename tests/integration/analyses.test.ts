@@ -23,11 +23,11 @@ import {
   previewPatientUpload,
   reopenAnalysis,
   saveArmCounts,
-} from "@/app/trials/[trialId]/analyses/_lib/service";
+} from "@/lib/analyses/service";
 import { db, giveRole, killMidTransaction, makeTrial, makeUser, ownerKnex, resetDatabase } from "./support/db";
 import jstat from "jstat";
 import type { TrialRow } from "@/db/types";
-import { switchToCountLevel } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { switchToCountLevel } from "@/lib/analyses/service";
 
 type Statistician = PublicUser & { password: string };
 let stat: Statistician;

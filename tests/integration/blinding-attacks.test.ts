@@ -10,7 +10,7 @@ import { insertSignature, stableStringify } from "@/db/queries/signatures";
 import { createPlannedLooks } from "@/db/queries/analyses";
 import { SINGLE_ARM_DEMO_DESIGN } from "@/db/seeds/demo";
 import { expandLooks } from "@/lib/stats/looks";
-import { lockAnalysis, openLookForEntry, saveArmCounts } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { lockAnalysis, openLookForEntry, saveArmCounts } from "@/lib/analyses/service";
 import { GET as auditGet } from "@/app/api/trials/[trialId]/audit/route";
 import { generateOpenPacketAction, scheduleMeeting } from "@/app/trials/[trialId]/meetings/actions";
 import { prepareClosedPacketAction } from "@/app/trials/[trialId]/review/[analysisId]/packet-actions";

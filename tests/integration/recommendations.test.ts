@@ -19,7 +19,7 @@ import { replaceArmCounts } from "@/db/queries/closed";
 import type { SingleArmDesign } from "@/lib/stats/types";
 import type { PublicUser } from "@/db/types";
 import { db, giveRole, killMidTransaction, makeTrial, makeUser, resetDatabase } from "./support/db";
-import { lockAnalysis, reopenAnalysis } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { lockAnalysis, reopenAnalysis } from "@/lib/analyses/service";
 import { fetchAuditEvents } from "@/db/audit";
 import { loadReproducibilityRecord } from "@/lib/review/load-review";
 import { fetchTrial } from "@/db/queries/trials";

@@ -4,7 +4,7 @@ import { parseId } from "@/lib/route-params";
 import { fetchAuditEvents } from "@/db/audit";
 import { Card } from "@/components/ui/card";
 import { AuditGrid } from "@/components/audit/audit-grid";
-import { auditEntryJson } from "@/components/audit/audit-json";
+import { auditEntryJson } from "@/lib/audit/audit-json";
 
 export const metadata: Metadata = { title: "Audit trail" };
 

@@ -4,6 +4,7 @@
  * action is a public POST endpoint. Mail is recorded in the request and delivered after the
  * response (next/server `after`), so a slow or dead mail server never holds up the page.
  */
+import { formId } from "@/lib/route-params";
 import { after } from "next/server";
 import { revalidatePath } from "next/cache";
 import { writeTransaction } from "@/db/knex";
@@ -18,11 +19,11 @@ import { zonedWallTimeToUtc } from "@/lib/packets/meeting-time";
 import { generateOpenPacket } from "@/lib/packets/open-packet";
 import { queueDueReminders, queuePacketMail } from "@/lib/mail/outbox";
 import { deliverWithRetries, ensureMailWorker } from "@/lib/mail/delivery";
-import { attendanceSchema, emailRefSchema, meetingRefSchema, scheduleFormValues, scheduleMeetingSchema, type MeetingFormState } from "./schemas";
+import { attendanceSchema, emailRefSchema, meetingRefSchema, scheduleFormValues, scheduleMeetingSchema, type MeetingFormState } from "@/lib/meetings/schemas";
 
 async function access(trialIdRaw: FormDataEntryValue | null): Promise<TrialAccess | MeetingFormState> {
   try {
-    return await requireTrialAccess(Number(trialIdRaw), "manageMeetings");
+    return await requireTrialAccess(formId(trialIdRaw), "manageMeetings");
   } catch (e) {
     if (e instanceof HttpError) return { error: e.message };
     throw e;

@@ -2,8 +2,8 @@ import { NextResponse } from "next/server";
 import { requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { fetchAnalysesOpen } from "@/db/queries/analyses";
-import { idFrom } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
-import { lookJson } from "@/app/trials/[trialId]/analyses/_lib/json";
+import { idFrom } from "@/lib/route-params";
+import { lookJson } from "@/lib/analyses/json";
 
 export const dynamic = "force-dynamic";
 

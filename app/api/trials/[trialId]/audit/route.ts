@@ -3,8 +3,8 @@ import { z } from "zod";
 import { allows, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { fetchAuditEvents } from "@/db/audit";
-import { auditEntryJson } from "@/components/audit/audit-json";
-import { idFrom } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
+import { auditEntryJson } from "@/lib/audit/audit-json";
+import { idFrom } from "@/lib/route-params";
 
 export const dynamic = "force-dynamic";
 

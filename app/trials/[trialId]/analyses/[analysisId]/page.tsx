@@ -14,8 +14,8 @@ import { STATUS_TONES } from "@/components/analyses/status";
 import { CountsForm, LockForm, OpenLookForm, ReopenForm, SwitchToCountLevelForm } from "@/components/analyses/look-forms";
 import { CsvUpload } from "@/components/analyses/csv-upload";
 import { PatientGrid } from "@/components/analyses/patient-grid";
-import { loadLookContext, type LookContext } from "../_lib/service";
-import { patientJson } from "../_lib/json";
+import { loadLookContext, type LookContext } from "@/lib/analyses/service";
+import { patientJson } from "@/lib/analyses/json";
 
 export const metadata: Metadata = { title: "Interim look" };
 

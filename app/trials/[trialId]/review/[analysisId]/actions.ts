@@ -1,4 +1,5 @@
 "use server";
+import { formId } from "@/lib/route-params";
 import { revalidatePath } from "next/cache";
 import { ZodError } from "zod";
 import { requireTrialAccess } from "@/lib/auth";
@@ -6,10 +7,6 @@ import { HttpError } from "@/lib/http";
 import { recordRecommendation } from "@/lib/review/record-recommendation";
 import type { RecommendationFormState } from "@/lib/review/recommendation-schema";
 
-function toId(v: FormDataEntryValue | null): number {
-  const s = typeof v === "string" ? v : "";
-  return /^[1-9][0-9]{0,9}$/.test(s) ? Number(s) : 0;
-}
 
 /**
  * Records the committee's recommendation with an e-signature. A server action is a public POST
@@ -17,8 +14,8 @@ function toId(v: FormDataEntryValue | null): number {
  * message (never outcome data; the rationale the member typed stays in their own form).
  */
 export async function recordRecommendationAction(_prev: RecommendationFormState, form: FormData): Promise<RecommendationFormState> {
-  const trialId = toId(form.get("trialId"));
-  const analysisId = toId(form.get("analysisId"));
+  const trialId = formId(form.get("trialId"));
+  const analysisId = formId(form.get("analysisId"));
   try {
     const access = await requireTrialAccess(trialId, "recordRecommendation");
     const recorded = await recordRecommendation(access, analysisId, {

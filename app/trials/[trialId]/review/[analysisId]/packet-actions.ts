@@ -5,24 +5,21 @@
  * closed review, which blinded roles cannot open. Closed data are read through the access's own
  * closed connection, so a blinded request has nothing to read them with.
  */
+import { formId } from "@/lib/route-params";
 import { revalidatePath } from "next/cache";
 import { closedConnection, requireTrialAccess } from "@/lib/auth";
 import { HttpError, publicErrorMessage } from "@/lib/http";
 import { StatsDomainError } from "@/lib/stats/validate";
 import { fetchMeeting } from "@/db/queries/meetings";
 import { prepareClosedPacket } from "@/lib/packets/closed-packet";
-import type { MeetingFormState } from "../../meetings/schemas";
+import type { MeetingFormState } from "@/lib/meetings/schemas";
 import { closedPacketRefSchema } from "./packet-schemas";
 
-function toId(v: FormDataEntryValue | null): number {
-  const s = typeof v === "string" ? v : "";
-  return /^[1-9][0-9]{0,9}$/.test(s) ? Number(s) : 0;
-}
 
 export async function prepareClosedPacketAction(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
   let access;
   try {
-    const trialId = toId(form.get("trialId"));
+    const trialId = formId(form.get("trialId"));
     access = await requireTrialAccess(trialId, "viewClosed");
     await requireTrialAccess(trialId, "manageMeetings");
   } catch (e) {

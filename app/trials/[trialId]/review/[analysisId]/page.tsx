@@ -21,6 +21,7 @@ import { DataGrid } from "@/components/grid/data-grid";
 import { BoundaryPlot, CumulativePlot, DifferencePlot, PredictiveOverLooksPlot, ToxicityPlot } from "@/components/review/review-charts";
 import { IntervalQuestion } from "@/components/review/interval-question";
 import { RecommendationForm } from "@/components/review/recommendation-form";
+import { recordRecommendationAction } from "./actions";
 import { ReopenReviewForm } from "@/components/review/reopen-review-form";
 import { ANALYSIS_STATUS_LABELS, DECISION_LABELS, formatBoundary, formatProbability, formatRate } from "@/lib/format";
 import type { Interval, HpdRegion } from "@/lib/review/posterior-summary";
@@ -357,7 +358,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             </div>
           ) : null}
           {allows(principal, "recordRecommendation") ? (
-            <RecommendationForm trialId={trial.id} analysisId={analysisId} correctsId={current?.id ?? null} signerName={user.name} />
+            <RecommendationForm trialId={trial.id} analysisId={analysisId} correctsId={current?.id ?? null} signerName={user.name} recordAction={recordRecommendationAction} />
           ) : (
             <p className="text-sm text-stone-600">Only a DMC member records the committee&apos;s recommendation.</p>
           )}

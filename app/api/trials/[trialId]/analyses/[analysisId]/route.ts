@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { allows, closedConnection, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
-import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
-import { loadLookContext } from "@/app/trials/[trialId]/analyses/_lib/service";
-import { lookJson } from "@/app/trials/[trialId]/analyses/_lib/json";
+import { lookIds, type LookRouteParams } from "@/lib/route-params";
+import { loadLookContext } from "@/lib/analyses/service";
+import { lookJson } from "@/lib/analyses/json";
 import { fetchArmCounts, countPatientOutcomes } from "@/db/queries/closed";
 
 export const dynamic = "force-dynamic";

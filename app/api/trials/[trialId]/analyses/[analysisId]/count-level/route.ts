@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { requireTrialAccess } from "@/lib/auth";
 import { handle, readJson } from "@/lib/http";
-import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
-import { switchToCountLevel } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { lookIds, type LookRouteParams } from "@/lib/route-params";
+import { switchToCountLevel } from "@/lib/analyses/service";
 
 export const dynamic = "force-dynamic";
 

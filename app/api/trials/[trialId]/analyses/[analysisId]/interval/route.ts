@@ -4,7 +4,7 @@ import { closedConnection, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { loadArmPosterior } from "@/lib/review/load-review";
 import { intervalProbabilityOf } from "@/lib/review/compute-review";
-import { analysisRouteIds, type AnalysisRouteContext } from "@/lib/review/route-ids";
+import { lookIds, type LookRouteParams } from "@/lib/route-params";
 
 export const dynamic = "force-dynamic";
 
@@ -23,8 +23,8 @@ const querySchema = z
   .refine((q) => q.lo < q.hi, { message: "lo must be below hi.", path: ["hi"] });
 
 /** CLOSED: the reviewer's interval question, P(lo < p <= hi | data) for one arm at this look. */
-export const GET = handle(async (req: Request, ctx: AnalysisRouteContext) => {
-  const { trialId, analysisId } = await analysisRouteIds(ctx);
+export const GET = handle(async (req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
   const access = await requireTrialAccess(trialId, "viewClosed");
   const { trial } = access;
   const sp = new URL(req.url).searchParams;

@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { allows, closedConnection, requireTrialAccess } from "@/lib/auth";
 import { forbiddenError, handle } from "@/lib/http";
-import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
-import { loadLookContext } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { lookIds, type LookRouteParams } from "@/lib/route-params";
+import { loadLookContext } from "@/lib/analyses/service";
 import { fetchPatientOutcomeGrid } from "@/db/queries/closed";
-import { patientJson } from "@/app/trials/[trialId]/analyses/_lib/json";
+import { patientJson } from "@/lib/analyses/json";
 
 export const dynamic = "force-dynamic";
 

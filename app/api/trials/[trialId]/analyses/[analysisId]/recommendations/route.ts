@@ -3,15 +3,15 @@ import { requireTrialAccess } from "@/lib/auth";
 import { handle, readJson } from "@/lib/http";
 import { fetchRecommendationsClosed } from "@/db/queries/recommendations";
 import { recordRecommendation } from "@/lib/review/record-recommendation";
-import { analysisRouteIds, type AnalysisRouteContext } from "@/lib/review/route-ids";
+import { lookIds, type LookRouteParams } from "@/lib/route-params";
 import { fetchAnalysisOpen } from "@/db/queries/open-status";
 import { notFoundError } from "@/lib/http";
 
 export const dynamic = "force-dynamic";
 
 /** CLOSED: the recommendations of one analysis with rationale and signature (viewClosed). */
-export const GET = handle(async (_req: Request, ctx: AnalysisRouteContext) => {
-  const { trialId, analysisId } = await analysisRouteIds(ctx);
+export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
   const { trial } = await requireTrialAccess(trialId, "viewClosed");
   const analysis = await fetchAnalysisOpen(analysisId);
   if (!analysis || analysis.trial_id !== trial.id) throw notFoundError("That analysis");
@@ -22,8 +22,8 @@ export const GET = handle(async (_req: Request, ctx: AnalysisRouteContext) => {
  * A DMC member records the committee's recommendation with an e-signature.
  * Body: { decision, rationale, password, correctsId? }. 201 with the new entry.
  */
-export const POST = handle(async (req: Request, ctx: AnalysisRouteContext) => {
-  const { trialId, analysisId } = await analysisRouteIds(ctx);
+export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
   const access = await requireTrialAccess(trialId, "recordRecommendation");
   const body = await readJson(req, 32 * 1024);
   const recorded = await recordRecommendation(access, analysisId, body);

@@ -1,13 +1,13 @@
 import { closedConnection, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { loadReproducibilityRecord } from "@/lib/review/load-review";
-import { analysisRouteIds, type AnalysisRouteContext } from "@/lib/review/route-ids";
+import { lookIds, type LookRouteParams } from "@/lib/route-params";
 
 export const dynamic = "force-dynamic";
 
 /** CLOSED: the reproducibility record (inputs, engine version, outputs, time) as a JSON download. */
-export const GET = handle(async (_req: Request, ctx: AnalysisRouteContext) => {
-  const { trialId, analysisId } = await analysisRouteIds(ctx);
+export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
   const access = await requireTrialAccess(trialId, "viewClosed");
   const { trial } = access;
   const record = await loadReproducibilityRecord(trial, analysisId, closedConnection(access));

@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
-import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
-import { confirmPatientUpload } from "@/app/trials/[trialId]/analyses/_lib/service";
-import { readCsvUpload } from "@/app/trials/[trialId]/analyses/_lib/read-upload";
-import { uploadConfirmQuerySchema } from "@/app/trials/[trialId]/analyses/_lib/schemas";
+import { lookIds, type LookRouteParams } from "@/lib/route-params";
+import { confirmPatientUpload } from "@/lib/analyses/service";
+import { readCsvUpload } from "@/lib/analyses/read-upload";
+import { uploadConfirmQuerySchema } from "@/lib/analyses/schemas";
 
 export const dynamic = "force-dynamic";
 

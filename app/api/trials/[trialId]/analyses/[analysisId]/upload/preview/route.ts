@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { closedConnection, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
-import { lookIds, type LookRouteParams } from "@/app/trials/[trialId]/analyses/_lib/route-ids";
-import { previewPatientUpload } from "@/app/trials/[trialId]/analyses/_lib/service";
-import { readCsvUpload } from "@/app/trials/[trialId]/analyses/_lib/read-upload";
+import { lookIds, type LookRouteParams } from "@/lib/route-params";
+import { previewPatientUpload } from "@/lib/analyses/service";
+import { readCsvUpload } from "@/lib/analyses/read-upload";
 
 export const dynamic = "force-dynamic";
 
