@@ -34,6 +34,7 @@ export function SignInForm() {
       return;
     }
     // A full navigation, so the header and every server component render with the new session.
+    // eslint-disable-next-line @next/next/no-location-assign-relative-destination -- deliberate: a client-side push would keep the signed-out header
     window.location.assign("/trials");
   }
 

@@ -1,9 +1,10 @@
 "use client";
+import { useBrowserTimeZone } from "@/components/ui/use-browser-time-zone";
 /**
  * The audit trail grid. Times arrive as UTC ISO strings and are shown in the viewer's own time
  * zone (date-fns in the browser), with the zone named above the grid.
  */
-import { useEffect, useMemo, useState } from "react";
+import { useMemo, useState } from "react";
 import type { ColDef } from "ag-grid-community";
 import { format } from "date-fns";
 import { DataGrid } from "@/components/grid/data-grid";
@@ -19,11 +20,10 @@ export function formatAuditTime(iso: string): string {
 }
 
 export function AuditGrid({ entries, openOnly, trialCode }: { entries: AuditEntryJson[]; openOnly: boolean; trialCode: string }) {
-  const [zone, setZone] = useState<string | null>(null);
+  const zone = useBrowserTimeZone();
   const [action, setAction] = useState("");
   const [visibility, setVisibility] = useState("");
   const [text, setText] = useState("");
-  useEffect(() => setZone(Intl.DateTimeFormat().resolvedOptions().timeZone), []);
 
   // Formatted only after mount (zone known), so the server's time zone never leaks into the page.
   const rows: Row[] = useMemo(

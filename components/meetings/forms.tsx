@@ -1,4 +1,5 @@
 "use client";
+import { useBrowserTimeZone } from "@/components/ui/use-browser-time-zone";
 import { startTransition, useActionState, useEffect, useState } from "react";
 import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
@@ -21,12 +22,10 @@ export type AnalysisChoice = { id: number; label: string };
 export function ScheduleMeetingForm({ action, trialId, analyses, members, zones, defaultAnalysisId }: { action: Action; trialId: number; analyses: AnalysisChoice[]; members: MemberChoice[]; zones: string[]; defaultAnalysisId: number | null }) {
   const [state, formAction, pending] = useActionState(action, initial);
   const router = useRouter();
-  const [zone, setZone] = useState("UTC");
-  useEffect(() => {
-    // Default to the organiser's own zone when the runtime offers it.
-    const mine = Intl.DateTimeFormat().resolvedOptions().timeZone;
-    if (mine && zones.includes(mine)) setZone(mine);
-  }, [zones]);
+  // Defaults to the organiser's own zone when the runtime offers it; a choice made in the form wins.
+  const browserZone = useBrowserTimeZone();
+  const [chosenZone, setZone] = useState<string | null>(null);
+  const zone = chosenZone ?? (browserZone && zones.includes(browserZone) ? browserZone : "UTC");
   useEffect(() => {
     if (state.meetingId) router.push(`/trials/${trialId}/meetings/${state.meetingId}`);
   }, [state.meetingId, trialId, router]);

@@ -5,7 +5,7 @@
  * version they were made on and are shown as superseded. The reason is closed (DMC and unblinded
  * statistician only).
  */
-import { startTransition, useActionState, useEffect, useState, type FormEvent } from "react";
+import { startTransition, useActionState, useState, type FormEvent } from "react";
 import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
@@ -25,7 +25,12 @@ export function ReopenReviewForm({ trialId, analysisId, rowVersion, lookNumber, 
     router.refresh();
     return { ok: `Look ${lookNumber} is open for correction; review version ${r.data.reviewVersion} starts when it is locked again.` };
   }, {});
-  useEffect(() => setPassword(""), [state]);
+  // Each answer clears the password (every signature re-enters it), once, during render.
+  const [answered, setAnswered] = useState(state);
+  if (answered !== state) {
+    setAnswered(state);
+    setPassword("");
+  }
   const fe = state.failure?.fieldErrors ?? {};
   const submit = (e: FormEvent<HTMLFormElement>) => {
     e.preventDefault();

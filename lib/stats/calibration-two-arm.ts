@@ -161,7 +161,7 @@ class JointRecursion {
           for (let xT = a; xT <= b; xT++) nxt[dst + xT] += rows[src + xT] * c;
         }
       }
-      let t = cur;
+      const t = cur;
       cur = nxt;
       nxt = t;
       let ti = lo;
