@@ -15,6 +15,7 @@ import { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN } from "@/db/seeds/demo";
 import { expandLooks } from "@/lib/stats/looks";
 import type { Design } from "@/lib/stats/types";
 import { HttpError, errorResponse } from "@/lib/http";
+import { WriteNotSavedError } from "@/db/errors";
 import type { AuditEventRow, PublicUser } from "@/db/types";
 import {
   confirmPatientUpload,
@@ -338,9 +339,9 @@ describe("patient-level upload", () => {
       },
     );
     expect(peeked).toBe(1000);
-    expect(err, "the failure must reach the caller").toBeInstanceOf(HttpError);
-    expect((err as HttpError).status).toBe(503);
-    expect((err as HttpError).message).toMatch(/nothing was saved/);
+    expect(err, "the failure must reach the caller").toBeInstanceOf(WriteNotSavedError);
+    expect((err as Error).message).toMatch(/nothing was saved/);
+    expect(errorResponse(err).status, "answered as 503").toBe(503);
     expect(await auditCount()).toBe(before.audits);
     expect(await patientRows(a1)).toBe(before.rows);
     expect(await db("patient_outcomes").where({ analysis_id: a1 }).where("subject_id", "like", "K-%").count({ n: "*" }).first()).toEqual({ n: 0 });

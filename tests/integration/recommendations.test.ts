@@ -8,7 +8,8 @@ import { asClosedConnection } from "@/db/knex";
 import { ZodError } from "zod";
 import { checkTrialAccess } from "@/lib/auth";
 import { verifyAuditChain } from "@/db/audit";
-import { HttpError } from "@/lib/http";
+import { HttpError, errorResponse } from "@/lib/http";
+import { WriteNotSavedError } from "@/db/errors";
 import { recordRecommendation } from "@/lib/review/record-recommendation";
 import { fetchRecommendationsClosed } from "@/db/queries/recommendations";
 import { fetchRecommendationsOpen } from "@/db/queries/open-status";
@@ -139,9 +140,9 @@ describe("recording a recommendation", () => {
     );
     // It had written its recommendation row when the connection went: the kill was mid-transaction.
     expect(uncommitted).toBe(1);
-    expect(err).toBeInstanceOf(HttpError);
-    expect((err as HttpError).status).toBe(503);
-    expect((err as HttpError).message).toMatch(/nothing was saved/);
+    expect(err, "the failure must reach the caller").toBeInstanceOf(WriteNotSavedError);
+    expect((err as Error).message).toMatch(/nothing was saved/);
+    expect(errorResponse(err).status, "answered as 503").toBe(503);
     expect({ ...(await counts()), look: await db("analyses").where({ id: lockedLook }).first() }).toEqual(before);
     expect((await verifyAuditChain(db)).ok).toBe(true);
   });
