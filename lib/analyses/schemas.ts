@@ -2,16 +2,14 @@
  * Request schemas for interim data entry, shared by the route handlers (authoritative) and the
  * browser forms (instant feedback). Pure: no server imports.
  */
+import { reasonSchema, rowVersionSchema, signingPasswordSchema } from "@/lib/schema-pieces";
 import { z } from "zod";
 import { isIsoDate } from "@/lib/csv/patient-outcomes";
 
 /** The largest count accepted for one arm at one look; far above any phase II trial. */
 export const MAX_ARM_COUNT = 100_000;
 
-export const rowVersionSchema = z.coerce
-  .number({ message: "The version of the look you edited is missing; reload the page." })
-  .int("The version of the look you edited is missing; reload the page.")
-  .min(1, "The version of the look you edited is missing; reload the page.");
+export { rowVersionSchema };
 
 export const cutoffDateSchema = z
   .string({ message: "Enter the data cut-off date." })
@@ -104,27 +102,19 @@ export const openLookSchema = z.object({ rowVersion: rowVersionSchema, cutoffDat
 
 export const lockAnalysisSchema = z.object({
   rowVersion: rowVersionSchema,
-  password: z.string({ message: "Enter your password to sign." }).min(1, "Enter your password to sign.").max(200, "That password is too long."),
+  password: signingPasswordSchema,
 });
 
 export const reopenAnalysisSchema = z.object({
   rowVersion: rowVersionSchema,
-  reason: z
-    .string({ message: "Give the reason for the correction." })
-    .trim()
-    .min(10, "Give the reason for the correction (at least 10 characters).")
-    .max(1000, "The reason can be at most 1000 characters."),
+  reason: reasonSchema("the correction"),
   /** Needed only to reopen a reviewed look: that correction is signed (the password is asked again). */
-  password: z.string().min(1, "Enter your password to sign.").max(200, "That password is too long.").optional(),
+  password: signingPasswordSchema.optional(),
 });
 
 export const switchToCountLevelSchema = z.object({
   rowVersion: rowVersionSchema,
-  reason: z
-    .string({ message: "Give the reason for switching to count-level entry." })
-    .trim()
-    .min(10, "Give the reason for switching to count-level entry (at least 10 characters).")
-    .max(1000, "The reason can be at most 1000 characters."),
+  reason: reasonSchema("switching to count-level entry"),
 });
 
 export const uploadConfirmQuerySchema = z.object({

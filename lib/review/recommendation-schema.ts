@@ -1,4 +1,5 @@
 /** The one schema for recording a recommendation, shared by the server action and the route handler. */
+import { signingPasswordSchema } from "@/lib/schema-pieces";
 import { z } from "zod";
 
 import { RECOMMENDATION_DECISIONS } from "@/lib/domain";
@@ -17,7 +18,7 @@ export const recommendationSchema = z.object({
     .union([z.literal("").transform(() => null), z.null(), z.coerce.number().int("Not a valid entry.").positive("Not a valid entry.").max(2_147_483_647)])
     .optional()
     .transform((v) => v ?? null),
-  password: z.string({ message: "Enter your password to sign." }).min(1, "Enter your password to sign.").max(200, "That password is too long."),
+  password: signingPasswordSchema,
 });
 
 export type RecommendationInput = z.infer<typeof recommendationSchema>;
