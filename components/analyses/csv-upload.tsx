@@ -9,7 +9,7 @@ import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { MAX_UPLOAD_BYTES, PATIENT_CSV_COLUMNS, tooLargeMessage, type ExcludedRows } from "@/lib/csv/patient-outcomes";
-import { callApi, type CsvIssueJson } from "./api-client";
+import { callApi, type CsvIssueJson } from "@/lib/api-client";
 
 type PreviewCounts = { armId: number; armLabel: string; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
 type Preview =
