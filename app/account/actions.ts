@@ -1,4 +1,5 @@
 "use server";
+import { formError } from "@/lib/form-action";
 import { after } from "next/server";
 import { requireUser } from "@/lib/auth";
 import { changeOwnPassword } from "@/lib/auth/accounts";
@@ -12,8 +13,7 @@ export async function changePassword(_prev: PasswordFormState, form: FormData): 
   try {
     user = await requireUser();
   } catch (e) {
-    if (e instanceof HttpError) return { error: e.message };
-    throw e;
+    return formError(e);
   }
   const parsed = changePasswordSchema.safeParse(Object.fromEntries(form));
   if (!parsed.success) return { error: "Check the highlighted fields.", fieldErrors: parsed.error.flatten().fieldErrors };
@@ -26,7 +26,7 @@ export async function changePassword(_prev: PasswordFormState, form: FormData): 
       // Outside a request (tests): the mail worker's sweep sends it.
     }
   } catch (e) {
-    if (!(e instanceof HttpError)) throw e;
+    if (!(e instanceof HttpError)) return formError(e);
     const field = (e.details as { field?: string } | undefined)?.field;
     return field ? { error: e.message, fieldErrors: { [field]: [e.message] } } : { error: e.message };
   }
