@@ -126,6 +126,7 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   get(`${LOOK}/patients`, unblindedOnly(401)),
   get(`${LOOK}/review`, unblindedOnly(401)),
   get(`${LOOK}/review/export`, unblindedOnly(401)),
+  get(`${LOOK}/review/r-script`, unblindedOnly(401)),
   get(`${LOOK}/interval?arm={arm}&lo=0.2&hi=0.4`, unblindedOnly(401)),
   get(`${LOOK}/recommendations`, unblindedOnly(401)),
   get(`${A}/audit`, everyone(401)),
