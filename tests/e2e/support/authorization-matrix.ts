@@ -162,6 +162,8 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   action("app/admin/actions.ts", "deactivateAccount", "/admin", on({ admin: "invalid" }, "refused", 307, "refused")),
   action("app/admin/actions.ts", "reactivateAccount", "/admin", on({ admin: "invalid" }, "refused", 307, "refused")),
   action("app/account/actions.ts", "changePassword", "/account", on({}, "invalid", 307, "invalid")),
+  action("app/account/actions.ts", "createApiTokenAction", "/account", on({}, "invalid", 307, "invalid")),
+  action("app/account/actions.ts", "revokeApiTokenAction", "/account", on({}, "invalid", 307, "invalid")),
   // Public: an empty form has no token, so it is refused as invalid for everyone and changes nothing.
   action("app/set-password/actions.ts", "setPassword", "/set-password", on({}, "invalid", "invalid", "invalid")),
   action("app/trials/new/actions.ts", "createTrialAction", "/trials/new", on({ admin: "invalid", statistician: "invalid" }, "refused", 307, "refused")),
