@@ -12,7 +12,9 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { seedDemo } from "@/db/seeds/demo";
 import { GET as rScriptGet } from "@/app/api/trials/[trialId]/analyses/[analysisId]/review/r-script/route";
-import { REPRODUCTION_SCRIPT_HEADER, REPRODUCTION_TOLERANCE } from "@/lib/review/reproduction-script";
+import { REPRODUCTION_SCRIPT_HEADER, REPRODUCTION_TOLERANCE, reproductionScript } from "@/lib/review/reproduction-script";
+import { computeReview, type ReviewArm, type ReviewLook } from "@/lib/review/compute-review";
+import type { Design, SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { actAs, currentClaims, currentSession, routeContext } from "./support/as-user";
 import { db, resetDatabase } from "./support/db";
 
@@ -121,4 +123,65 @@ describe("the closed review's R script", () => {
     actAs(null);
     expect((await download(l.trialId, l.analysisId)).status).toBe(401);
   });
+});
+
+// Invented designs beyond the demo's, so the script's other branches are run too: mixture and
+// Jeffreys priors, the uncertain-standard rule and safety form, the posterior rule with a negative
+// margin, efficacy stopping, and final looks.
+const SINGLE_MIX: SingleArmDesign = {
+  arms: "single",
+  prior: { family: "robustMixture", mean: 0.25, ess: 8, weight: 0.7 },
+  p0: 0.2,
+  p1: 0.4,
+  delta: 0,
+  nMax: 30,
+  looks: { kind: "list", sizes: [10, 20, 30] },
+  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.99 },
+  safety: { kind: "uncertainStandard", standard: { a: 3, b: 12 }, margin: 0.05, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
+};
+const SINGLE_STANDARD: SingleArmDesign = { ...SINGLE_MIX, prior: { family: "jeffreys" }, delta: 0.05, rule: { kind: "uncertainStandard", standard: { a: 4, b: 16 }, thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.95 }, safety: null };
+const TWO_POSTERIOR: TwoArmDesign = {
+  arms: "two",
+  priorT: { family: "robustMixture", mean: 0.4, ess: 10, weight: 0.5 },
+  priorC: { family: "informative", mean: 0.3, ess: 10 },
+  controlRate: 0.3,
+  experimentalRate: 0.5,
+  delta: -0.05,
+  nMaxPerArm: 30,
+  looks: { kind: "list", sizes: [15, 30] },
+  rule: { kind: "posterior", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
+  safety: null,
+};
+const TWO_PREDICTIVE: TwoArmDesign = { ...TWO_POSTERIOR, priorT: { family: "jeffreys" }, delta: 0.1, rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.95 } };
+const ONE_ARM: ReviewArm[] = [{ id: 7, label: "Arm A", role: "single" }];
+const ONE_ARM_LOOKS: ReviewLook[] = [
+  { analysisId: 1, lookNumber: 1, cutoffDate: "2026-01-31", plannedN: 10, counts: [{ armId: 7, enrolled: 11, treated: 11, evaluable: 10, responders: 3, toxicities: 1 }] },
+  { analysisId: 2, lookNumber: 2, cutoffDate: "2026-04-30", plannedN: 20, counts: [{ armId: 7, enrolled: 21, treated: 21, evaluable: 19, responders: 6, toxicities: 2 }] },
+  { analysisId: 3, lookNumber: 3, cutoffDate: "2026-07-31", plannedN: 30, counts: [{ armId: 7, enrolled: 30, treated: 30, evaluable: 30, responders: 11, toxicities: 4 }] },
+];
+const TWO_ARMS: ReviewArm[] = [
+  { id: 1, label: "E", role: "experimental" },
+  { id: 2, label: "C", role: "control" },
+];
+const TWO_ARM_LOOKS: ReviewLook[] = [
+  { analysisId: 5, lookNumber: 1, cutoffDate: null, plannedN: 15, counts: [{ armId: 1, enrolled: 15, treated: null, evaluable: 15, responders: 8, toxicities: null }, { armId: 2, enrolled: 15, treated: null, evaluable: 14, responders: 4, toxicities: null }] },
+  { analysisId: 6, lookNumber: 2, cutoffDate: null, plannedN: 30, counts: [{ armId: 1, enrolled: 30, treated: null, evaluable: 30, responders: 14, toxicities: null }, { armId: 2, enrolled: 30, treated: null, evaluable: 30, responders: 9, toxicities: null }] },
+];
+
+describe("the R script beyond the demo designs", () => {
+  const cases: [string, Design, ReviewArm[], ReviewLook[]][] = [
+    ["single arm, robust mixture prior, uncertain-standard safety", SINGLE_MIX, ONE_ARM, ONE_ARM_LOOKS],
+    ["single arm, uncertain-standard rule", SINGLE_STANDARD, ONE_ARM, ONE_ARM_LOOKS],
+    ["two arms, posterior rule, negative margin", TWO_POSTERIOR, TWO_ARMS, TWO_ARM_LOOKS],
+    ["two arms, predictive rule, positive margin", TWO_PREDICTIVE, TWO_ARMS, TWO_ARM_LOOKS],
+  ];
+  for (const [name, design, arms, allLooks] of cases)
+    it(`reproduces every look within 1e-8: ${name}`, () => {
+      for (const look of allLooks) {
+        const input = { design, arms, looks: allLooks, analysisId: look.analysisId, generatedAt: "2026-08-01T00:00:00.000Z" };
+        const { rows, stdout } = runR(`extra-${look.analysisId}.R`, reproductionScript({ trialCode: "INVENTED-1", input, review: computeReview(input) }));
+        expect(rows.length).toBeGreaterThan(10);
+        for (const r of rows) expect(r.difference, `${name}, look ${look.lookNumber}: ${r.name} (R ${r.r}, Cairn ${r.cairn})\n${stdout}`).toBeLessThanOrEqual(REPRODUCTION_TOLERANCE);
+      }
+    });
 });
