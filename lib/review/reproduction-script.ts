@@ -96,14 +96,14 @@ function designLines(design: Design): string[] {
 type Check = { name: string; cairn: string; kind: "num" | "count" | "word" };
 
 /** Cairn's values at this look, as R expressions the script compares with its own. */
-function checks(review: Review): { setup: string[]; list: Check[] } {
+function checks(review: Review): Check[] {
   const out: Check[] = [];
   const n = (name: string, v: number | null | undefined) => {
     if (v !== null && v !== undefined) out.push({ name, cairn: num(v), kind: "num" });
   };
   const count = (name: string, v: number | null) => out.push({ name, cairn: v === null ? "NA" : String(v), kind: "count" });
   for (const arm of review.arms) {
-    const p = `${arm.role}`;
+    const p = arm.role;
     n(`${p}.posterior_mean`, arm.summary.mean);
     n(`${p}.posterior_sd`, arm.summary.sd);
     n(`${p}.posterior_median`, arm.summary.median);
@@ -137,7 +137,7 @@ function checks(review: Review): { setup: string[]; list: Check[] } {
       if (s.planned) count("safety.boundary.at_planned_n.toxicity_min", s.planned.toxicityMin);
     }
   }
-  return { setup: [], list: out };
+  return out;
 }
 
 /**
@@ -157,8 +157,8 @@ export function reproductionScript({ trialCode, input, review, reviewVersion }: 
       if (!role) continue;
       rows.push(`  ${l.lookNumber}, ${rString(role)}, ${optNum(l.plannedN ?? null)}, ${c.evaluable}, ${c.responders}, ${optNum(c.treated)}, ${optNum(c.toxicities)}`);
     }
-  const { list } = checks(review);
-  const checkRows = list.map((c) => `  list(${rString(c.name)}, ${c.kind === "word" ? c.cairn : c.cairn}, ${rString(c.kind)})`);
+  const list = checks(review);
+  const checkRows = list.map((c) => `  list(${rString(c.name)}, ${c.cairn}, ${rString(c.kind)})`);
   const header = [
     REPRODUCTION_SCRIPT_HEADER,
     `# Trial ${trialCode}, look ${review.lookNumber} (analysis ${review.analysisId}${reviewVersion ? `, review version ${reviewVersion}` : ""}), cut-off ${review.cutoffDate ?? "not recorded"}.`,
