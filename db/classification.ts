@@ -52,6 +52,10 @@ export const FREE_TEXT: Record<string, TextClass> = {
   "packets.pdf": "open",
   // Only the SHA-256 of a 256-bit random token: nobody reads it back but the set-password check.
   "password_links.token_sha256": "secret",
+  // Only the SHA-256 of a 256-bit random API token secret: nobody reads it back but the bearer check.
+  "api_tokens.token_sha256": "secret",
+  // The owner's name for a token; shown to the owner and in open audit rows (the form says so).
+  "api_tokens.label": "open",
   "patient_outcomes.subject_id": "closed",
   "recommendations.rationale": "closed",
   // The reason a locked look was reopened may describe the data that needed correcting.
@@ -100,6 +104,7 @@ export const BLINDED_READS: Record<string, "all" | "none" | readonly string[]> =
   meetings: ["id", "trial_id", "analysis_id", "scheduled_at", "time_zone", "open_agenda", "reminder_days_before", "reminder_sent_at", "status", "row_version", "created_by", "created_at", "updated_at"],
   packets: "none",
   password_links: "none",
+  api_tokens: "none",
   packets_open: "all",
   patient_outcomes: "none",
   recommendations: ["id", "trial_id", "analysis_id", "review_version", "decision", "corrects_id", "signature_id", "created_by", "created_at"],

@@ -209,3 +209,16 @@ export type PasswordLinkRow = {
   issued_by: number | null;
   created_at: Date;
 };
+
+/** A personal API token (lib/auth/api-tokens.ts): one account, one trial, the role held there. */
+export type ApiTokenRow = {
+  id: number;
+  user_id: number;
+  trial_id: number;
+  role: TrialRole;
+  label: string;
+  token_sha256: string;
+  expires_at: Date;
+  revoked_at: Date | null;
+  created_at: Date;
+};

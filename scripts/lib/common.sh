@@ -37,6 +37,11 @@ ensure_mariadb_installed() {
   export PATH="$PATH:/usr/sbin"
 }
 
+# Rscript (Debian's r-base-core) runs the closed review's reproduction scripts in the integration tests.
+ensure_rscript_installed() {
+  if ! command -v Rscript >/dev/null 2>&1; then apt_install r-base-core; fi
+}
+
 ensure_node_modules() {
   local stamp="$ROOT/node_modules/.cairn-lock-stamp"
   if [ ! -f "$stamp" ] || ! cmp -s "$ROOT/package-lock.json" "$stamp"; then

@@ -126,6 +126,7 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   get(`${LOOK}/patients`, unblindedOnly(401)),
   get(`${LOOK}/review`, unblindedOnly(401)),
   get(`${LOOK}/review/export`, unblindedOnly(401)),
+  get(`${LOOK}/review/r-script`, unblindedOnly(401)),
   get(`${LOOK}/interval?arm={arm}&lo=0.2&hi=0.4`, unblindedOnly(401)),
   get(`${LOOK}/recommendations`, unblindedOnly(401)),
   get(`${A}/audit`, everyone(401)),
@@ -161,6 +162,8 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   action("app/admin/actions.ts", "deactivateAccount", "/admin", on({ admin: "invalid" }, "refused", 307, "refused")),
   action("app/admin/actions.ts", "reactivateAccount", "/admin", on({ admin: "invalid" }, "refused", 307, "refused")),
   action("app/account/actions.ts", "changePassword", "/account", on({}, "invalid", 307, "invalid")),
+  action("app/account/actions.ts", "createApiTokenAction", "/account", on({}, "invalid", 307, "invalid")),
+  action("app/account/actions.ts", "revokeApiTokenAction", "/account", on({}, "invalid", 307, "invalid")),
   // Public: an empty form has no token, so it is refused as invalid for everyone and changes nothing.
   action("app/set-password/actions.ts", "setPassword", "/set-password", on({}, "invalid", "invalid", "invalid")),
   action("app/trials/new/actions.ts", "createTrialAction", "/trials/new", on({ admin: "invalid", statistician: "invalid" }, "refused", 307, "refused")),

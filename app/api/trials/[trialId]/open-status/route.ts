@@ -6,9 +6,9 @@ import { fetchLookSchedule, fetchRecommendationsOpen } from "@/db/queries/open-s
 export const dynamic = "force-dynamic";
 
 /** Open status for everyone on the trial: accrual, looks, timeliness, recommendations (no outcome data). */
-export const GET = handle(async (_req: Request, ctx: { params: Promise<{ trialId: string }> }) => {
+export const GET = handle(async (req: Request, ctx: { params: Promise<{ trialId: string }> }) => {
   const trialId = Number((await ctx.params).trialId);
-  const { trial } = await requireTrialAccess(trialId, "viewOpen");
+  const { trial } = await requireTrialAccess(trialId, "viewOpen", { bearer: req });
   const [looks, recommendations] = await Promise.all([fetchLookSchedule(trial.id), fetchRecommendationsOpen(trial.id)]);
   return NextResponse.json({
     trial: { id: trial.id, code: trial.code, title: trial.title, targetEnrolment: trial.target_enrolment, status: trial.status },

@@ -105,9 +105,14 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
           </p>
           <h2 className="mt-1 text-xl font-semibold">Interim analysis, look {review.lookNumber}</h2>
         </div>
-        <a className={buttonClass("secondary")} href={`/api/trials/${trial.id}/analyses/${analysisId}/review/export`} download>
-          Download reproducibility record (JSON)
-        </a>
+        <div className="flex flex-wrap gap-2">
+          <a className={buttonClass("secondary")} href={`/api/trials/${trial.id}/analyses/${analysisId}/review/export`} download>
+            Download reproducibility record (JSON)
+          </a>
+          <a className={buttonClass("secondary")} href={`/api/trials/${trial.id}/analyses/${analysisId}/review/r-script`} download data-testid="r-script-download" title="A base-R script that recomputes this look's numbers and prints each next to Cairn's value">
+            Download R script
+          </a>
+        </div>
       </div>
 
       <Banner tone={decisionTone(review.decision)} title={decisionTitle(review.decision)}>

@@ -12,9 +12,9 @@ export const dynamic = "force-dynamic";
  * One look. Everyone on the trial gets its open fields; arm-level counts are selected only for
  * roles that may see closed data (viewClosed) or enter it (enterData).
  */
-export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
+export const GET = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  const access = await requireTrialAccess(trialId, "viewOpen");
+  const access = await requireTrialAccess(trialId, "viewOpen", { bearer: req });
   const look = await loadLookContext(trialId, analysisId);
   const body: Record<string, unknown> = {
     analysis: lookJson(look.analysis),
