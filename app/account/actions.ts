@@ -1,5 +1,4 @@
 "use server";
-import { formError } from "@/lib/form-action";
 import { after } from "next/server";
 import { requireUser } from "@/lib/auth";
 import { changeOwnPassword } from "@/lib/auth/accounts";

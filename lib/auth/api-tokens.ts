@@ -42,7 +42,7 @@ export function newApiTokenSecret(): string {
 
 export const createApiTokenSchema = z.object({
   trialId: z.coerce.number({ message: "Choose a trial." }).int("Choose a trial.").positive("Choose a trial."),
-  role: z.enum(TRIAL_ROLES as [TrialRole, ...TrialRole[]], { message: "Choose one of your roles on that trial." }),
+  role: z.enum(TRIAL_ROLES, { message: "Choose one of your roles on that trial." }),
   label: z
     .string({ message: "Name the token (for example the job that uses it)." })
     .trim()

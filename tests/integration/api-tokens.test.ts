@@ -19,7 +19,7 @@ import { GET as reviewGet } from "@/app/api/trials/[trialId]/analyses/[analysisI
 import { GET as rScriptGet } from "@/app/api/trials/[trialId]/analyses/[analysisId]/review/r-script/route";
 import { GET as patientsGet } from "@/app/api/trials/[trialId]/analyses/[analysisId]/patients/route";
 import { POST as designLockPost } from "@/app/api/trials/[trialId]/designs/[designId]/lock/route";
-import { openLookForEntry } from "@/app/trials/[trialId]/analyses/_lib/service";
+import { openLookForEntry } from "@/lib/analyses/service";
 import { createApiToken, revokeApiToken, MAX_TOKEN_DAYS } from "@/lib/auth/api-tokens";
 import { actAs, currentClaims, currentSession, routeContext } from "./support/as-user";
 import { db, resetDatabase } from "./support/db";

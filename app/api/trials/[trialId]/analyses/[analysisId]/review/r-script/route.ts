@@ -2,13 +2,13 @@ import { closedConnection, requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { loadReview } from "@/lib/review/load-review";
 import { reproductionScript, reproductionScriptFileName } from "@/lib/review/reproduction-script";
-import { analysisRouteIds, type AnalysisRouteContext } from "@/lib/review/route-ids";
+import { lookIds, type LookRouteParams } from "@/lib/route-params";
 
 export const dynamic = "force-dynamic";
 
 /** CLOSED: the base-R script that recomputes this look's closed numbers and compares them with Cairn's. */
-export const GET = handle(async (_req: Request, ctx: AnalysisRouteContext) => {
-  const { trialId, analysisId } = await analysisRouteIds(ctx);
+export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
+  const { trialId, analysisId } = await lookIds(ctx);
   const access = await requireTrialAccess(trialId, "viewClosed");
   const { trial } = access;
   const { input, review, analysis } = await loadReview(trial, analysisId, closedConnection(access));
