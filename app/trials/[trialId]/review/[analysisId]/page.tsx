@@ -20,6 +20,9 @@ import { buttonClass } from "@/components/ui/button";
 import { DataGrid } from "@/components/grid/data-grid";
 import { BoundaryPlot, CumulativePlot, DifferencePlot, PredictiveOverLooksPlot, ToxicityPlot } from "@/components/review/review-charts";
 import { IntervalQuestion } from "@/components/review/interval-question";
+import { WhatItTakes } from "@/components/review/what-it-takes";
+import { WhatIf } from "@/components/review/what-if";
+import { whatItTakesPanel } from "@/lib/review/what-if";
 import { RecommendationForm } from "@/components/review/recommendation-form";
 import { ReopenReviewForm } from "@/components/review/reopen-review-form";
 import { ANALYSIS_STATUS_LABELS, DECISION_LABELS, formatBoundary, formatProbability, formatRate } from "@/lib/format";
@@ -241,6 +244,18 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             })}
           />
         </Card>
+
+        {(() => {
+          const panel = whatItTakesPanel(input);
+          return (
+            <Card title="What it takes, and what if" className="lg:col-span-2">
+              <div className="flex flex-col gap-6" id="what-it-takes">
+                <WhatItTakes takes={panel.takes} pending={panel.pending} />
+                {panel.nextAhead ? <WhatIf trialId={trial.id} analysisId={analysisId} now={panel.now} rates={panel.rates} maxN={panel.maxN} nextAhead={panel.nextAhead} boundaries={review.boundaries} observedPath={review.observedPath} /> : null}
+              </div>
+            </Card>
+          );
+        })()}
 
         {review.safety ? (
           <Card title="Safety" className="lg:col-span-2">
