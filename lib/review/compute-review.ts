@@ -77,6 +77,8 @@ export type ArmReview = {
   treated: number | null;
   /** Patients evaluable for response: the response posterior's denominator. */
   evaluable: number;
+  /** Enrolled, response not yet known at the cut-off: future patients for the predictive probability. */
+  pending: number;
   responders: number;
   toxicities: number | null;
   prior: MixtureBeta;
@@ -330,6 +332,7 @@ function armReview(arm: ReviewArm, c: ReviewArmCounts, priorSpec: PriorSpec, p0:
     enrolled: c.enrolled,
     treated: c.treated,
     evaluable: c.evaluable,
+    pending: c.pending ?? 0,
     responders: c.responders,
     toxicities: c.toxicities,
     prior,

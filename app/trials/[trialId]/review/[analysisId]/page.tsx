@@ -128,7 +128,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             <thead>
               <tr>
                 <th>Arm</th>
-                <th>Responders / evaluable</th>
+                <th>Responders / evaluable / pending</th>
                 <th>Mean</th>
                 <th>Median</th>
                 <th>SD</th>
@@ -143,7 +143,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
               {review.arms.map((a) => (
                 <tr key={a.armId}>
                   <td>{a.label}</td>
-                  <td className="tabular-nums">{`${a.responders} / ${a.evaluable}`}</td>
+                  <td className="tabular-nums" data-testid="arm-counts">{`${a.responders} / ${a.evaluable} / ${a.pending}`}</td>
                   <td>{formatRate(a.summary.mean)}</td>
                   <td>{formatRate(a.summary.median)}</td>
                   <td>{formatRate(a.summary.sd)}</td>
@@ -157,7 +157,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             </tbody>
           </table>
           <p className="mt-2 text-xs text-stone-500">
-            Clopper-Pearson (exact) and Wilson (score) are frequentist intervals, shown for comparison. {single && design.arms === "single" ? `p0 = ${formatRate(design.p0)}.` : ""}
+            Pending: enrolled by the cut-off, response not yet known; they count among the patients still to come in the predictive probability. Clopper-Pearson (exact) and Wilson (score) are frequentist intervals, shown for comparison. {single && design.arms === "single" ? `p0 = ${formatRate(design.p0)}.` : ""}
           </p>
         </Card>
 
