@@ -157,7 +157,11 @@ function TwoArmRegion({ look }: { look: TwoArmLookAhead }) {
   }
   const ax = Array.from({ length: look.aheadC + 1 }, (_, i) => i);
   const ay = Array.from({ length: look.aheadT + 1 }, (_, i) => i);
-  const edge = ax.map((yC) => look.efficacyAtLeastT[yC]);
+  // The edge between cells: half a count below the first successful (or efficacious) count.
+  const edge = ax.map((yC) => (look.efficacyAtLeastT[yC] ?? look.aheadT + 1) - 0.5);
+  const edgeX = [-0.5, ...ax, look.aheadC + 0.5];
+  const edgeY = [edge[0], ...edge, edge[edge.length - 1]];
+  const anyEdge = look.efficacyAtLeastT.some((v) => v !== null);
   return (
     <CairnPlot
       title={`Outcome region ${look.final ? "at the final analysis" : `at the look at ${look.n} per arm`} over the responders still to come`}
@@ -184,13 +188,13 @@ function TwoArmRegion({ look }: { look: TwoArmLookAhead }) {
               [1, `${CAIRN_COLOURS.efficacy}66`],
             ],
           },
-          { x: ax, y: edge, type: "scatter", mode: "lines", name: look.final ? "Success: at or above" : "Efficacy: at or above", line: { color: CAIRN_COLOURS.efficacy, shape: "vh", width: 2 } },
+          ...(anyEdge ? [{ x: edgeX, y: edgeY, type: "scatter", mode: "lines", name: look.final ? "Success: at or above" : "Efficacy: at or above", line: { color: CAIRN_COLOURS.efficacy, shape: "hvh", width: 2 }, hoverinfo: "skip" }] : []),
           { x: [look.expectedControl], y: [look.efficacyAtLeastT[look.expectedControl]], type: "scatter", mode: "markers", name: "Control at its observed rate", marker: { color: CAIRN_COLOURS.observed, size: 10, symbol: "diamond" } },
         ] as never
       }
       layout={{
-        xaxis: { title: { text: `Control responders among the ${look.aheadC} still to come` }, range: [-0.5, look.aheadC + 0.5] },
-        yaxis: { title: { text: `Experimental responders among the ${look.aheadT} still to come` }, range: [-0.5, look.aheadT + 0.5] },
+        xaxis: { title: { text: `Control responders still to come (of ${look.aheadC})` }, range: [-0.5, look.aheadC + 0.5] },
+        yaxis: { title: { text: `Experimental still to come (of ${look.aheadT})` }, range: [-0.5, look.aheadT + 0.5] },
       }}
     />
   );

@@ -86,7 +86,7 @@ function singleArmSentence(row: Omit<LookAhead, "sentence">, pending: number): s
   const look = `the look at ${row.n} patients`;
   if (row.futilityAtMost === null) parts.push(`${cap(look)} cannot stop for futility whatever ${among} do`);
   else if (row.futilityAtMost >= row.ahead) parts.push(`${cap(look)} stops for futility whatever ${among} do`);
-  else parts.push(`${cap(look)} stops for futility with ${row.futilityAtMost === 0 ? "no responder" : `${row.futilityAtMost} or fewer responders`} among ${among}; at least ${row.futilityAtMost + 1} are needed to continue`);
+  else parts.push(`${cap(look)} stops for futility with ${row.futilityAtMost === 0 ? "no responder" : `${row.futilityAtMost} or fewer responders`} among ${among}; at least ${row.futilityAtMost + 1} ${row.futilityAtMost === 0 ? "is" : "are"} needed to continue`);
   if (row.efficacyMin === null && row.futilityAtMost === null) parts.push("and has no efficacy boundary");
   else if (row.efficacyMin === null) parts.push("(no efficacy stopping at this look)");
   else if (row.efficacyAtLeast === null) parts.push("stopping for efficacy there is out of reach");
