@@ -129,19 +129,19 @@ export function CsvUpload({ trialId, analysisId, rowVersion, safetyRule, cutoffD
                 <th>Enrolled</th>
                 <th>Evaluable for response</th>
                 <th>Responders</th>
-                <th>Pending</th>
+                {phase.preview.counts.some((c) => (c.pending ?? 0) > 0) ? <th>Pending (response not yet known)</th> : null}
                 {safetyRule ? <th>Treated (evaluable for toxicity)</th> : null}
                 {safetyRule ? <th>With toxicity</th> : null}
               </tr>
             </thead>
             <tbody>
-              {phase.preview.counts.map((c) => (
+              {phase.preview.counts.map((c, _i, all) => (
                 <tr key={c.armId}>
                   <td>{c.armLabel}</td>
                   <td>{c.enrolled}</td>
                   <td>{c.evaluable}</td>
                   <td>{c.responders}</td>
-                  <td>{c.pending ?? 0}</td>
+                  {all.some((x) => (x.pending ?? 0) > 0) ? <td>{c.pending ?? 0}</td> : null}
                   {safetyRule ? <td>{c.treated ?? "—"}</td> : null}
                   {safetyRule ? <td>{c.toxicities ?? "—"}</td> : null}
                 </tr>
