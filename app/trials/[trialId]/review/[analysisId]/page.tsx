@@ -246,7 +246,19 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
         </Card>
 
         {(() => {
-          const panel = whatItTakesPanel(input);
+          let panel: ReturnType<typeof whatItTakesPanel>;
+          try {
+            panel = whatItTakesPanel(input);
+          } catch (e) {
+            if (!(e instanceof StatsDomainError)) throw e;
+            return (
+              <Card title="What it takes, and what if" className="lg:col-span-2">
+                <Banner tone="warning" title="What it takes cannot be computed from the stored counts">
+                  {e.message}.
+                </Banner>
+              </Card>
+            );
+          }
           return (
             <Card title="What it takes, and what if" className="lg:col-span-2">
               <div className="flex flex-col gap-6" id="what-it-takes">
