@@ -80,6 +80,8 @@ export type ArmCountRow = {
   treated: number | null;
   /** Patients evaluable for response: the response rule's denominator. */
   evaluable: number;
+  /** Enrolled, will be evaluable, response not yet known at the cut-off (0 for rows stored before the column). */
+  pending: number;
   responders: number;
   toxicities: number | null;
 };
@@ -92,6 +94,8 @@ export type PatientOutcomeRow = {
   arm_id: number;
   enrolled_on: string;
   evaluable: number | boolean;
+  /** Will be evaluable, response not yet known at the cut-off (CSV evaluable value "pending"); false when absent. */
+  outcome_pending?: number | boolean;
   responder: number | boolean | null;
   /** Evaluable for toxicity; null when the design records no toxicity. */
   treated: number | boolean | null;

@@ -40,6 +40,8 @@ import * as mBlind1 from "./20261203060100_audit_events_hash_scheme";
 import * as mBlind2 from "./20261203060200_signatures_hash_scheme";
 import * as mBlind3 from "./20261203060300_create_view_audit_events_open";
 import * as mBlind4 from "./20261203060400_create_view_packets_open";
+import * as mPending1 from "./20261205060100_add_pending_to_analysis_arm_counts";
+import * as mPending2 from "./20261205060200_add_outcome_pending_to_patient_outcomes";
 import * as mApiTokens from "./20261205070000_create_api_tokens";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
@@ -81,6 +83,8 @@ const migrations: Array<[string, Migration]> = [
   ["20261203060200_signatures_hash_scheme", mBlind2],
   ["20261203060300_create_view_audit_events_open", mBlind3],
   ["20261203060400_create_view_packets_open", mBlind4],
+  ["20261205060100_add_pending_to_analysis_arm_counts", mPending1],
+  ["20261205060200_add_outcome_pending_to_patient_outcomes", mPending2],
   ["20261205070000_create_api_tokens", mApiTokens],
 ];
 

@@ -47,7 +47,7 @@ export async function fetchArmAtLook(trialId: number, analysisId: number, armId:
 }
 
 /** treated and toxicities are both numbers (a design with a safety rule) or both null. */
-export type ArmCountsInput = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
+export type ArmCountsInput = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending?: number };
 
 /** Replaces the counts of an analysis (all arms at once). */
 export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCountsInput[]): Promise<void> {
@@ -60,6 +60,7 @@ export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCo
         enrolled: c.enrolled,
         treated: c.treated,
         evaluable: c.evaluable,
+        pending: c.pending ?? 0,
         responders: c.responders,
         toxicities: c.toxicities,
       })),

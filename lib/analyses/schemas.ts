@@ -43,7 +43,7 @@ const absentWithoutSafety = (what: string) =>
   z.preprocess((v) => (v === "" || v === undefined ? null : v), z.null({ message: `This design has no safety rule, so ${what} are not recorded.` }));
 
 /** One arm's counts, for the stored-row check at lock as well as for input. */
-export type ArmCountsShape = { enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
+export type ArmCountsShape = { enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending?: number };
 
 /**
  * The within-look rules, shared by input validation and the lock-time check: responders <=
@@ -55,6 +55,11 @@ export function withinLookProblems(c: ArmCountsShape, maxPerArm: number | null |
   if (maxPerArm !== null && maxPerArm !== undefined && c.enrolled > maxPerArm)
     out.push({ path: "enrolled", message: `Enrolled (${c.enrolled}) is above the locked design's maximum sample size for an arm (${maxPerArm}), which the design cannot analyse. If the trial has over-enrolled, amend the design first.` });
   if (c.evaluable > c.enrolled) out.push({ path: "evaluable", message: `Evaluable for response (${c.evaluable}) cannot exceed enrolled (${c.enrolled}).` });
+  const pending = c.pending ?? 0;
+  if (pending > 0 && c.evaluable + pending > c.enrolled)
+    out.push({ path: "pending", message: `Evaluable (${c.evaluable}) plus pending (${pending}) cannot exceed enrolled (${c.enrolled}): a pending patient is enrolled and not yet evaluable.` });
+  if (pending > 0 && maxPerArm !== null && maxPerArm !== undefined && c.evaluable + pending > maxPerArm)
+    out.push({ path: "pending", message: `Evaluable (${c.evaluable}) plus pending (${pending}) is above the locked design's maximum sample size for an arm (${maxPerArm}).` });
   if (c.responders > c.evaluable) out.push({ path: "responders", message: `Responders (${c.responders}) cannot exceed evaluable for response (${c.evaluable}).` });
   if (c.treated !== null && c.treated > c.enrolled) out.push({ path: "treated", message: `Treated (${c.treated}) cannot exceed enrolled (${c.enrolled}).` });
   if (c.toxicities !== null && c.treated !== null && c.toxicities > c.treated)
@@ -73,11 +78,13 @@ export function armCountsSchema(ctx: CountsContext) {
       enrolled: countCell("the number enrolled"),
       treated: ctx.safetyRule ? countCell("the number treated (evaluable for toxicity)") : absentWithoutSafety("treated counts"),
       evaluable: countCell("the number evaluable for response"),
+      // Enrolled, will be evaluable, response not yet known at the cut-off; optional (empty or absent: 0).
+      pending: z.preprocess((v) => (v === undefined || v === null || (typeof v === "string" && v.trim() === "") ? 0 : v), countCell("the number pending (response not yet known)")),
       responders: countCell("the number of responders"),
       toxicities: ctx.safetyRule ? countCell("the number with toxicity") : absentWithoutSafety("toxicities"),
     })
     .superRefine((c, z2) => {
-      for (const p of withinLookProblems({ ...c, treated: c.treated ?? null, toxicities: c.toxicities ?? null }, ctx.maxPerArm))
+      for (const p of withinLookProblems({ ...c, treated: c.treated ?? null, toxicities: c.toxicities ?? null, pending: c.pending }, ctx.maxPerArm))
         z2.addIssue({ code: "custom", path: [p.path], message: p.message });
     });
   return z.array(arm).superRefine((rows, z2) => {

@@ -170,6 +170,7 @@ export async function saveArmCounts(actor: PublicUser, trialId: number, analysis
     evaluable: c.evaluable,
     responders: c.responders,
     toxicities: c.toxicities ?? null,
+    pending: c.pending ?? 0,
   }));
   return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
@@ -200,8 +201,9 @@ export async function saveArmCounts(actor: PublicUser, trialId: number, analysis
   });
 }
 
-function plainCounts(c: { arm_id: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null }) {
-  return { armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities };
+/** Pending appears only when some are pending, so records signed before the column existed read the same. */
+function plainCounts(c: { arm_id: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending?: number }) {
+  return { armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities, ...(c.pending ? { pending: c.pending } : {}) };
 }
 
 function armRefs(arms: ArmRow[]): ArmRef[] {
@@ -214,7 +216,7 @@ export type UploadPreview =
       ok: true;
       rowCount: number;
       includedRows: number;
-      counts: Array<{ armId: number; armLabel: string; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null }>;
+      counts: Array<{ armId: number; armLabel: string; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending: number }>;
       cutoffDate: string;
       excluded: ExcludedRows;
     }
@@ -295,6 +297,7 @@ export async function confirmPatientUpload(actor: PublicUser, trialId: number, a
         arm_id: r.armId,
         enrolled_on: r.enrolledOn,
         evaluable: r.evaluable,
+        outcome_pending: r.pending,
         responder: r.responder,
         treated: r.treated,
         toxicity: r.toxicity,
@@ -343,7 +346,7 @@ export async function lockAnalysis(actor: PublicUser, trialId: number, analysisI
     refuseProblems(
       countsProblems(
         ctx,
-        counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
+        counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities, pending: c.pending })),
         await fetchNeighbourLockedCounts(trialId, a.look_number, tx),
       ),
       `Look ${a.look_number} was not locked`,

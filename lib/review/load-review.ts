@@ -43,7 +43,7 @@ export async function loadReviewInput(trial: TrialRow, analysisId: number, close
     plannedN: l.planned_n,
     counts: counts
       .filter((c) => c.analysis_id === l.id)
-      .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
+      .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities, pending: c.pending ?? 0 })),
   }));
   return {
     analysis,

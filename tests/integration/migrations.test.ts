@@ -54,6 +54,8 @@ const EXPECTED: Record<string, string[]> = {
   "20261203060200_signatures_hash_scheme": ["column signatures.hash_scheme"],
   "20261203060300_create_view_audit_events_open": ["view audit_events_open"],
   "20261203060400_create_view_packets_open": ["view packets_open"],
+  "20261205060100_add_pending_to_analysis_arm_counts": ["column analysis_arm_counts.pending"],
+  "20261205060200_add_outcome_pending_to_patient_outcomes": ["column patient_outcomes.outcome_pending"],
   "20261205070000_create_api_tokens": ["table api_tokens"],
 };
 

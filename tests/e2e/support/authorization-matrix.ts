@@ -128,6 +128,7 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   get(`${LOOK}/review/export`, unblindedOnly(401)),
   get(`${LOOK}/review/r-script`, unblindedOnly(401)),
   get(`${LOOK}/interval?arm={arm}&lo=0.2&hi=0.4`, unblindedOnly(401)),
+  get(`${LOOK}/what-if?patients=1&responders=0&patientsT=1&respondersT=0&patientsC=1&respondersC=0`, unblindedOnly(401)),
   get(`${LOOK}/recommendations`, unblindedOnly(401)),
   get(`${A}/audit`, everyone(401)),
   get(`${A}/calibrations/${NO_JOB}`, writers(EDIT_DESIGN, 404)),

@@ -39,7 +39,7 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
     fetchPatientOutcomeGrid(a.id, closedConnection(access)),
     a.status === "locked" || a.status === "reviewed" ? fetchLockSignature(a.id) : Promise.resolve(undefined),
   ]);
-  const countValues = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities }));
+  const countValues = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, pending: c.pending, responders: c.responders, toxicities: c.toxicities }));
   const patientLevel = patients.length > 0;
   const arms = look.arms.map((x) => ({ id: x.id, label: x.label, role: x.arm_role }));
   return (

@@ -20,6 +20,9 @@ import { buttonClass } from "@/components/ui/button";
 import { DataGrid } from "@/components/grid/data-grid";
 import { BoundaryPlot, CumulativePlot, DifferencePlot, PredictiveOverLooksPlot, ToxicityPlot } from "@/components/review/review-charts";
 import { IntervalQuestion } from "@/components/review/interval-question";
+import { WhatItTakes } from "@/components/review/what-it-takes";
+import { WhatIf } from "@/components/review/what-if";
+import { whatItTakesPanel } from "@/lib/review/what-if";
 import { RecommendationForm } from "@/components/review/recommendation-form";
 import { recordRecommendationAction } from "./actions";
 import { ReopenReviewForm } from "@/components/review/reopen-review-form";
@@ -131,7 +134,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             <thead>
               <tr>
                 <th>Arm</th>
-                <th>Responders / evaluable</th>
+                <th>Responders / evaluable / pending</th>
                 <th>Mean</th>
                 <th>Median</th>
                 <th>SD</th>
@@ -146,7 +149,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
               {review.arms.map((a) => (
                 <tr key={a.armId}>
                   <td>{a.label}</td>
-                  <td className="tabular-nums">{`${a.responders} / ${a.evaluable}`}</td>
+                  <td className="tabular-nums" data-testid="arm-counts">{`${a.responders} / ${a.evaluable} / ${a.pending}`}</td>
                   <td>{formatRate(a.summary.mean)}</td>
                   <td>{formatRate(a.summary.median)}</td>
                   <td>{formatRate(a.summary.sd)}</td>
@@ -160,7 +163,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             </tbody>
           </table>
           <p className="mt-2 text-xs text-stone-500">
-            Clopper-Pearson (exact) and Wilson (score) are frequentist intervals, shown for comparison. {single && design.arms === "single" ? `p0 = ${formatRate(design.p0)}.` : ""}
+            Pending: enrolled by the cut-off, response not yet known; they count among the patients still to come in the predictive probability. Clopper-Pearson (exact) and Wilson (score) are frequentist intervals, shown for comparison. {single && design.arms === "single" ? `p0 = ${formatRate(design.p0)}.` : ""}
           </p>
         </Card>
 
@@ -247,6 +250,30 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             })}
           />
         </Card>
+
+        {(() => {
+          let panel: ReturnType<typeof whatItTakesPanel>;
+          try {
+            panel = whatItTakesPanel(input);
+          } catch (e) {
+            if (!(e instanceof StatsDomainError)) throw e;
+            return (
+              <Card title="What it takes, and what if" className="lg:col-span-2">
+                <Banner tone="warning" title="What it takes cannot be computed from the stored counts">
+                  {e.message}.
+                </Banner>
+              </Card>
+            );
+          }
+          return (
+            <Card title="What it takes, and what if" className="lg:col-span-2">
+              <div className="flex flex-col gap-6" id="what-it-takes">
+                <WhatItTakes takes={panel.takes} pending={panel.pending} />
+                {panel.nextAhead ? <WhatIf trialId={trial.id} analysisId={analysisId} now={panel.now} rates={panel.rates} maxN={panel.maxN} nextAhead={panel.nextAhead} boundaries={review.boundaries} observedPath={review.observedPath} /> : null}
+              </div>
+            </Card>
+          );
+        })()}
 
         {review.safety ? (
           <Card title="Safety" className="lg:col-span-2">

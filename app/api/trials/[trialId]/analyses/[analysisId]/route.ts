@@ -23,7 +23,7 @@ export const GET = handle(async (req: Request, ctx: LookRouteParams) => {
   };
   if (allows(access.principal, "viewClosed") || allows(access.principal, "enterData")) {
     const [counts, patientRows] = await Promise.all([fetchArmCounts(analysisId, closedConnection(access)), countPatientOutcomes(analysisId, closedConnection(access))]);
-    body.counts = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities }));
+    body.counts = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, pending: c.pending, responders: c.responders, toxicities: c.toxicities }));
     body.patientRows = patientRows;
     // patient: counts derived from the patient rows; count: typed in (no patient rows).
     body.dataLevel = patientRows > 0 ? "patient" : "count";
