@@ -4,6 +4,7 @@
  * and shows the derived counts or every problem by line and column; "Write" sends the same file
  * again, the server checks it again and writes all rows or none.
  */
+import type { ArmCounts } from "@/lib/domain";
 import { useRef, useState } from "react";
 import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
@@ -11,7 +12,7 @@ import { Banner } from "@/components/ui/banner";
 import { MAX_UPLOAD_BYTES, PATIENT_CSV_COLUMNS, tooLargeMessage, type ExcludedRows } from "@/lib/csv/patient-outcomes";
 import { callApi, type CsvIssueJson } from "@/lib/api-client";
 
-type PreviewCounts = { armId: number; armLabel: string; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending?: number };
+type PreviewCounts = ArmCounts & { armLabel: string };
 type Preview =
   | { ok: true; rowCount: number; includedRows: number; counts: PreviewCounts[]; cutoffDate: string; excluded: ExcludedRows }
   | { ok: false; rowCount: number; issueCount: number; issues: CsvIssueJson[]; excluded?: ExcludedRows };

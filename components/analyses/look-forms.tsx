@@ -4,6 +4,7 @@
  * as an amendment. Each posts JSON to the interim data API; the row version the page was rendered
  * with travels in a hidden input, so a save over someone else's newer save is refused (409).
  */
+import type { ArmCounts } from "@/lib/domain";
 import { startTransition, useActionState, type FormEvent } from "react";
 import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
@@ -17,7 +18,7 @@ const initial: FormState = {};
 
 export type ArmInput = { id: number; label: string; role: string };
 /** Two denominators: evaluable (for response) and treated (evaluable for toxicity, with a safety rule only). */
-export type CountsValue = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending?: number };
+export type CountsValue = ArmCounts;
 
 /**
  * Submits through the action without React's automatic form reset, so what the user typed stays in

@@ -7,8 +7,7 @@ import "server-only";
  * corrects_id names the row it corrects.
  */
 import { db, type Tx } from "../knex";
-import type { AnalysisOpenRow, RecommendationDecision } from "../types";
-import { ANALYSIS_OPEN_COLUMNS } from "./open-status";
+import type { RecommendationDecision } from "../types";
 
 export { RECOMMENDATION_DECISIONS } from "@/lib/domain";
 
@@ -74,11 +73,6 @@ export async function fetchRecommendationsClosed(trialId: number, analysisId?: n
 export async function fetchRecommendationClosed(id: number, tx: Tx = db): Promise<RecommendationClosed | undefined> {
   const r = await closedQuery(tx).where("r.id", id).first();
   return r ? withFlag(r) : undefined;
-}
-
-/** The analysis row locked for the duration of a recording transaction, so two signers queue. */
-export async function fetchAnalysisForUpdate(tx: Tx, analysisId: number): Promise<AnalysisOpenRow | undefined> {
-  return tx("analyses").where({ id: analysisId }).forUpdate().first(ANALYSIS_OPEN_COLUMNS);
 }
 
 /**

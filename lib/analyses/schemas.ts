@@ -2,6 +2,7 @@
  * Request schemas for interim data entry, shared by the route handlers (authoritative) and the
  * browser forms (instant feedback). Pure: no server imports.
  */
+import type { ArmCounts } from "@/lib/domain";
 import { reasonSchema, rowVersionSchema, signingPasswordSchema } from "@/lib/schema-pieces";
 import { z } from "zod";
 import { isIsoDate } from "@/lib/csv/patient-outcomes";
@@ -43,7 +44,7 @@ const absentWithoutSafety = (what: string) =>
   z.preprocess((v) => (v === "" || v === undefined ? null : v), z.null({ message: `This design has no safety rule, so ${what} are not recorded.` }));
 
 /** One arm's counts, for the stored-row check at lock as well as for input. */
-export type ArmCountsShape = { enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending?: number };
+export type ArmCountsShape = Omit<ArmCounts, "armId">;
 
 /**
  * The within-look rules, shared by input validation and the lock-time check: responders <=

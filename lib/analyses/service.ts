@@ -21,6 +21,7 @@ import { db, writeTransaction, type ClosedReader, type Tx } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { fetchAnalysisForUpdate, fetchNeighbourCutoffs, updateAnalysisOpenFields, type AnalysisLockedRow } from "@/db/queries/analyses";
 import {
+  armCountsOf,
   countPatientOutcomes,
   deletePatientOutcomes,
   fetchArmCounts,
@@ -203,7 +204,9 @@ export async function saveArmCounts(actor: PublicUser, trialId: number, analysis
 
 /** Pending appears only when some are pending, so records signed before the column existed read the same. */
 function plainCounts(c: { arm_id: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending?: number }) {
-  return { armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities, ...(c.pending ? { pending: c.pending } : {}) };
+  // Pending only when there are some, so a record signed before pending counts existed reads the same.
+  const { pending, ...rest } = armCountsOf(c);
+  return pending ? { ...rest, pending } : rest;
 }
 
 function armRefs(arms: ArmRow[]): ArmRef[] {
@@ -346,7 +349,7 @@ export async function lockAnalysis(actor: PublicUser, trialId: number, analysisI
     refuseProblems(
       countsProblems(
         ctx,
-        counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities, pending: c.pending })),
+        counts.map(armCountsOf),
         await fetchNeighbourLockedCounts(trialId, a.look_number, tx),
       ),
       `Look ${a.look_number} was not locked`,

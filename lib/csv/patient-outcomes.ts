@@ -17,6 +17,7 @@
  * Line numbers are those of the file as a text editor shows them (header = line 1), counted from
  * the start of each record, so a quoted field that spans lines does not shift later numbers.
  */
+import type { ArmCounts } from "@/lib/domain";
 import Papa from "papaparse";
 import { z } from "zod";
 
@@ -68,7 +69,7 @@ export type PatientRecord = {
 };
 
 /** treated and toxicities are numbers exactly when the design has a safety rule. */
-export type DerivedArmCounts = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending: number };
+export type DerivedArmCounts = ArmCounts & { pending: number };
 
 /** Rows enrolled after the cut-off, left out of the look: how many, and which (at most MAX_REPORTED_ISSUES listed). */
 export type ExcludedRows = { count: number; cutoffDate: string; rows: Array<{ line: number; subjectId: string; enrolmentDate: string }> };
