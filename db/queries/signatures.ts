@@ -24,7 +24,15 @@ export function stableStringify(v: unknown): string {
     .join(",")}}`;
 }
 
-export type SignatureMeaning = "design approved" | "analysis locked" | "recommendation recorded" | "review reopened for correction";
+export type SignatureMeaning =
+  | "design approved"
+  | "analysis locked"
+  | "recommendation recorded"
+  | "review reopened for correction"
+  | "conflict of interest declared"
+  | "vote cast"
+  | "minutes approved"
+  | "recommendation letter signed";
 
 export async function insertSignature(
   tx: Tx,

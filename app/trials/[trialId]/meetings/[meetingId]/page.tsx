@@ -18,7 +18,7 @@ import { cancelMeeting, generateOpenPacketAction, retryFailedEmail, saveAttendan
 
 export const metadata: Metadata = { title: "DMC meeting" };
 
-const KIND_LABELS: Record<EmailKind, string> = { packet_open: "Open report (attached)", packet_closed_notice: "Closed report (link)", meeting_reminder: "Reminder", password_link: "Set-password link", password_changed: "Password changed" };
+const KIND_LABELS: Record<EmailKind, string> = { packet_open: "Open report (attached)", packet_closed_notice: "Closed report (link)", meeting_reminder: "Reminder", password_link: "Set-password link", password_changed: "Password changed", recommendation_letter: "Recommendation letter (attached)" };
 const STATUS_TONES = { queued: "amber", sending: "amber", sent: "lichen", failed: "berry" } as const;
 
 /** A UTC time stamp, independent of the server's own time zone. */
