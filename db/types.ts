@@ -49,6 +49,8 @@ export type DesignRow = {
   created_by: number | null;
   created_at: Date;
   locked_at: Date | null;
+  /** The DMC's quorum written in this (charter) version; null when none was written. */
+  dmc_quorum?: number | null;
 };
 
 export type AnalysisStatus = "planned" | "open" | "locked" | "reviewed";

@@ -152,18 +152,6 @@ export async function fetchLetters(meetingId: number, tx: Tx = blindDb): Promise
   return tx("recommendation_letters as l").join("signatures as s", "s.id", "l.signature_id").where("l.meeting_id", meetingId).select(LETTER_COLUMNS).orderBy("l.version", "desc");
 }
 
-/** The latest letter of each meeting of a trial, for the open status. */
-export async function fetchLatestLettersOfTrial(trialId: number, tx: Tx = blindDb): Promise<Array<LetterMeta & { lookNumber: number }>> {
-  return tx("recommendation_letters as l")
-    .join("signatures as s", "s.id", "l.signature_id")
-    .join("meetings as m", "m.id", "l.meeting_id")
-    .join("analyses as a", "a.id", "m.analysis_id")
-    .where("l.trial_id", trialId)
-    .whereNotExists(tx("recommendation_letters as n").whereRaw("n.meeting_id = l.meeting_id AND n.version > l.version"))
-    .select([...LETTER_COLUMNS, "a.look_number as lookNumber"])
-    .orderBy("l.id", "desc");
-}
-
 export async function fetchLetterPdf(trialId: number, meetingId: number, version: number | null, tx: Tx = blindDb): Promise<(LetterMeta & { pdf: Buffer }) | undefined> {
   const q = tx("recommendation_letters as l").join("signatures as s", "s.id", "l.signature_id").where({ "l.trial_id": trialId, "l.meeting_id": meetingId });
   if (version !== null) q.where("l.version", version);

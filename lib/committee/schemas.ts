@@ -1,6 +1,8 @@
 /** The zod schemas of the committee's acts, shared by the server actions and the services. */
 import { z } from "zod";
-import { RECOMMENDATION_DECISION_VALUES } from "@/lib/review/recommendation-schema";
+
+/** The decisions a member votes for: the same as a recommendation's (lib/review/recommendation-schema.ts), restated so the open side imports nothing from the review. */
+const RECOMMENDATION_DECISION_VALUES = ["continue", "continue_modified", "stop_futility", "stop_efficacy", "stop_safety"] as const;
 
 const id = (what: string) => z.coerce.number({ message: `Not a valid ${what}.` }).int(`Not a valid ${what}.`).positive(`Not a valid ${what}.`).max(2_147_483_647, `Not a valid ${what}.`);
 const password = z.string({ message: "Enter your password to sign." }).min(1, "Enter your password to sign.").max(200, "That password is too long.");
@@ -19,7 +21,11 @@ export const addMemberSchema = z.object({
 
 export const changeChairSchema = z.object({
   memberId: id("member"),
-  rowVersion: z.coerce.number().int().min(1),
+  /** The member's row version the administrator saw; empty when the form did not carry one. */
+  rowVersion: z
+    .union([z.literal("").transform(() => null), z.null(), z.coerce.number().int().min(1)])
+    .optional()
+    .transform((v) => v ?? null),
 });
 
 export const SESSION_VALUES = ["open", "closed"] as const;

@@ -88,7 +88,8 @@ export async function changeCommitteeChair(access: TrialAccess, raw: unknown): P
     const former = committee.find((m) => m.role === "chair");
     // The former chair's row first: the unique index on chair_of_trial_id allows one chair at a time.
     if (former && !(await updateCommitteeRole(tx, former.id, former.rowVersion, access.trial.id, "voting"))) throw conflict("The committee changed since you opened it; nothing was saved. Reload and try again.");
-    if (!(await updateCommitteeRole(tx, next.id, input.rowVersion, access.trial.id, "chair"))) throw conflict("The committee changed since you opened it; nothing was saved. Reload and try again.");
+    if (input.rowVersion !== null && input.rowVersion !== next.rowVersion) throw conflict("The committee changed since you opened it; nothing was saved. Reload and try again.");
+    if (!(await updateCommitteeRole(tx, next.id, next.rowVersion, access.trial.id, "chair"))) throw conflict("The committee changed since you opened it; nothing was saved. Reload and try again.");
     await appendAudit(tx, {
       actorUserId: access.user.id,
       actorEmail: access.user.email,
