@@ -14,6 +14,7 @@ import { insertSignature } from "../queries/signatures";
 import { createPlannedLooks } from "../queries/analyses";
 import { replaceArmCounts } from "../queries/closed";
 import { insertCommitteeMember } from "../queries/committee";
+import { insertMeeting } from "../queries/meetings";
 import { expandLooks } from "@/lib/stats/looks";
 import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import type { TrialRole } from "../types";
@@ -200,6 +201,21 @@ export async function seedDemo(): Promise<void> {
       const cid = await insertCommitteeMember(tx, { trialId: t2.id, userId: ids[key], role, createdBy: ids.admin });
       await appendAudit(tx, { actorUserId: ids.admin, actorEmail: "demo-seed", trialId: t2.id, action: "committee_member_added", entityType: "committee_member", entityId: cid, visibility: "open", newValues: { userId: ids[key], role } });
     }
+    // The committee met on look 1 of CRN-305 (a past date: the meeting is ready for attendance,
+    // declarations, votes and minutes, none of which the seed records).
+    const t2look1 = await tx("analyses").where({ trial_id: t2.id, look_number: 1 }).first();
+    const t2meeting = await insertMeeting(tx, {
+      trialId: t2.id,
+      analysisId: t2look1.id,
+      scheduledAt: new Date("2026-09-15T12:00:00Z"),
+      timeZone: "Europe/Oslo",
+      openAgenda: "1. Accrual and data timeliness\n2. Questions from the sponsor",
+      closedAgenda: "3. Closed results of look 1\n4. The committee's vote",
+      reminderDaysBefore: 3,
+      createdBy: ids.coordinator,
+      attendeeUserIds: [ids.dmc, ids.dmc2, ids.dmc3, ids.statistician, ids.sponsor, ids.coordinator],
+    });
+    await appendAudit(tx, { actorUserId: ids.coordinator, actorEmail: "demo-seed", trialId: t2.id, action: "meeting_scheduled", entityType: "meeting", entityId: t2meeting, visibility: "open", newValues: { lookNumber: 1, scheduledAt: "2026-09-15T12:00:00.000Z", timeZone: "Europe/Oslo" } });
     // The first look of the single-arm trial has been reviewed and a recommendation recorded.
     const t1 = await tx("trials").where({ code: "CRN-201" }).first();
     const look1 = await tx("analyses").where({ trial_id: t1.id, look_number: 1 }).first();
