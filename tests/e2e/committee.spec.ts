@@ -90,7 +90,7 @@ test("the coordinator records the open session; the statistician the closed one"
   await signIn(page, "coordinator");
   await openMeeting(page);
   const open = page.getByRole("form", { name: "Open session attendance" });
-  for (const who of [ACCOUNTS.dmc.name, MEMBERS.dmc2.name, MEMBERS.dmc3.name, ACCOUNTS.statistician.name, ACCOUNTS.sponsor.name, ACCOUNTS.coordinator.name]) await open.getByLabel(new RegExp(`^${who}`)).check();
+  for (const who of [ACCOUNTS.dmc.name, MEMBERS.dmc2.name, MEMBERS.dmc3.name, ACCOUNTS.statistician.name, ACCOUNTS.sponsor.name, ACCOUNTS.coordinator.name]) await open.getByRole("checkbox", { name: new RegExp(`^${who} \\(`) }).check();
   await open.getByRole("button", { name: "Record open session attendance" }).click();
   await expect(page.getByText("Attendance of the open session recorded.")).toBeVisible();
   // A blinded organiser is not offered the closed session.
@@ -101,7 +101,7 @@ test("the coordinator records the open session; the statistician the closed one"
   await openMeeting(stat);
   await expect(stat.getByTestId("meeting-quorum")).toContainText("not quorate");
   const closed = stat.getByRole("form", { name: "Closed session attendance" });
-  for (const who of [ACCOUNTS.dmc.name, MEMBERS.dmc2.name, MEMBERS.dmc3.name, ACCOUNTS.statistician.name]) await closed.getByLabel(who, { exact: true }).check();
+  for (const who of [ACCOUNTS.dmc.name, MEMBERS.dmc2.name, MEMBERS.dmc3.name, ACCOUNTS.statistician.name]) await closed.getByRole("checkbox", { name: who, exact: true }).check();
   await closed.getByRole("button", { name: "Record closed session attendance" }).click();
   await expect(stat.getByText("Attendance of the closed session recorded.")).toBeVisible();
   await stat.reload();
