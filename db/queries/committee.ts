@@ -59,6 +59,17 @@ export function quorumInForce(charterQuorum: number | null, votingMembers: numbe
   return charterQuorum ?? Math.floor(votingMembers / 2) + 1;
 }
 
+/** The latest draft design version of a trial (where the quorum may still be written), locked for a write. */
+export async function fetchDraftDesignForUpdate(tx: Tx, trialId: number): Promise<{ id: number; version: number; dmcQuorum: number | null; rowVersion: number } | undefined> {
+  return tx("designs").where({ trial_id: trialId, status: "draft" }).forUpdate().first("id", "version", "dmc_quorum as dmcQuorum", "row_version as rowVersion");
+}
+
+/** Writes the quorum into a draft design version (a locked one is never changed); bumps its row version so a lock started before sees the change. */
+export async function setDraftDesignQuorum(tx: Tx, designId: number, quorum: number | null): Promise<boolean> {
+  const n = await tx("designs").where({ id: designId, status: "draft" }).update({ dmc_quorum: quorum, row_version: tx.raw("row_version + 1") });
+  return n === 1;
+}
+
 export type SessionAttendance = { userId: number; name: string; session: MinutesSession; attended: boolean; recordedAt: Date };
 
 export async function fetchSessionAttendance(meetingId: number, tx: Tx = blindDb): Promise<SessionAttendance[]> {

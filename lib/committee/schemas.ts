@@ -28,6 +28,10 @@ export const changeChairSchema = z.object({
     .transform((v) => v ?? null),
 });
 
+export const quorumSchema = z.object({
+  quorum: z.coerce.number({ message: "Give the quorum as a whole number." }).int("Give the quorum as a whole number.").min(1, "The quorum is at least 1 voting member.").max(30, "The quorum is at most 30 voting members."),
+});
+
 export const SESSION_VALUES = ["open", "closed"] as const;
 
 export const sessionAttendanceSchema = z.object({

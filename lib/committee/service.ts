@@ -17,6 +17,8 @@ import { fetchMeeting } from "@/db/queries/meetings";
 import {
   fetchCommittee,
   fetchDeclarations,
+  fetchDraftDesignForUpdate,
+  setDraftDesignQuorum,
   fetchLatestMinutesForUpdate,
   insertCommitteeMember,
   insertDeclaration,
@@ -33,7 +35,7 @@ import type { MeetingRow } from "@/db/types";
 import type { TrialAccess } from "@/lib/auth";
 import { confirmSigner } from "@/lib/auth/signature";
 import { conflict, forbiddenError, HttpError, notFoundError } from "@/lib/http";
-import { addMemberSchema, changeChairSchema, declarationSchema, minutesApproveSchema, minutesDraftSchema, sessionAttendanceSchema } from "./schemas";
+import { addMemberSchema, changeChairSchema, declarationSchema, minutesApproveSchema, minutesDraftSchema, quorumSchema, sessionAttendanceSchema } from "./schemas";
 
 const field = (status: 409 | 422, message: string, f: string) => new HttpError(status, message, { field: f });
 
@@ -101,6 +103,22 @@ export async function changeCommitteeChair(access: TrialAccess, raw: unknown): P
       oldValues: { chairUserId: former?.userId ?? null },
       newValues: { chairUserId: next.userId },
     });
+  });
+}
+
+/**
+ * editDesign (administrator, unblinded statistician): writes the DMC's quorum into the trial's draft
+ * design version, so it is signed with the charter when that version is locked. A locked version
+ * is never changed: without a draft, start an amendment first.
+ */
+export async function setCharterQuorum(access: TrialAccess, raw: unknown): Promise<{ designVersion: number }> {
+  const input = quorumSchema.parse(raw);
+  return writeTransaction(async (tx) => {
+    const draft = await fetchDraftDesignForUpdate(tx, access.trial.id);
+    if (!draft) throw conflict("The quorum is part of the charter: it is written in a draft design version. Start an amendment on the Design page, set the quorum, then lock the amendment.");
+    await setDraftDesignQuorum(tx, draft.id, input.quorum);
+    await appendAudit(tx, { actorUserId: access.user.id, actorEmail: access.user.email, trialId: access.trial.id, action: "design_quorum_set", entityType: "design", entityId: draft.id, visibility: "open", oldValues: { version: draft.version, dmcQuorum: draft.dmcQuorum }, newValues: { version: draft.version, dmcQuorum: input.quorum } });
+    return { designVersion: draft.version };
   });
 }
 

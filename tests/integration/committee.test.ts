@@ -23,9 +23,13 @@ import { createPlannedLooks } from "@/db/queries/analyses";
 import { replaceArmCounts } from "@/db/queries/closed";
 import { insertMeeting } from "@/db/queries/meetings";
 import { fetchCommittee, fetchOpenMinutes } from "@/db/queries/committee";
+import { parseStoredDesign } from "@/db/queries/designs";
 import { fetchMeetingRecommendationsClosed } from "@/db/queries/committee-closed";
 import { fetchRecommendationsOpen } from "@/db/queries/open-status";
-import { addCommitteeMember, approveMinutes, changeCommitteeChair, declareConflicts, recordSessionAttendance, saveMinutesDraft } from "@/lib/committee/service";
+import { addCommitteeMember, approveMinutes, changeCommitteeChair, declareConflicts, recordSessionAttendance, saveMinutesDraft, setCharterQuorum } from "@/lib/committee/service";
+import { amendDesign, designSignedRecord, lockDesign } from "@/lib/design/service";
+import { recordHash } from "@/db/queries/signatures";
+import { fetchCharterQuorum } from "@/db/queries/committee";
 import { castVote } from "@/lib/committee/votes";
 import { queueLetterMail, signRecommendationLetter } from "@/lib/committee/letter";
 import { recordRecommendation } from "@/lib/review/record-recommendation";
@@ -332,5 +336,31 @@ describe("the letter to the sponsor", () => {
     const logged = await db("audit_events").where({ action: "email_sent" }).orderBy("id", "desc").first();
     expect(JSON.parse(logged.new_values).to).toBe(sponsor.email);
     expect((await db("email_messages").where({ id: q.ids[0] }).first()).status).toBe("sent");
+  });
+});
+
+describe("the quorum belongs to the charter", () => {
+  it("is written only into a draft design version, carried into an amendment, and signed with the charter when locked", async () => {
+    const admin_ = await as(admin, "editDesign");
+    const before = await rowCounts();
+    expect(await outcome(setCharterQuorum(admin_, { quorum: 3 }))).toBe(409); // only a locked version exists
+    expect(await outcome(setCharterQuorum(admin_, { quorum: 0 }))).toBe("zod");
+    expect(await rowCounts()).toEqual(before);
+    expect(await outcome(as(sponsor, "editDesign"))).toBe(403);
+    const v1 = await db("designs").where({ trial_id: trialId, version: 1 }).first();
+    const draft = await amendDesign(admin_, v1.id, "Invented amendment: the charter's quorum rises to three.");
+    expect(draft.dmc_quorum).toBe(2);
+    await setCharterQuorum(admin_, { quorum: 3 });
+    const stored = await db("designs").where({ id: draft.id }).first();
+    expect(stored.dmc_quorum).toBe(3);
+    expect(stored.row_version).toBe(draft.row_version + 1);
+    await lockDesign(await as(statistician, "lockDesign"), draft.id, stored.row_version, statistician.password);
+    const locked = await db("designs as d").join("signatures as s", "s.id", "d.signature_id").where("d.id", draft.id).first("s.record_hash", "d.version", "d.spec");
+    expect(locked.record_hash).toBe(recordHash(designSignedRecord(trialId, locked.version, parseStoredDesign(locked.spec), 3)));
+    expect(locked.record_hash).not.toBe(recordHash(designSignedRecord(trialId, locked.version, parseStoredDesign(locked.spec), 2)));
+    // The reviewed look keeps the charter version it was locked under, and with it the quorum of two.
+    expect(await fetchCharterQuorum(lookId)).toEqual({ quorum: 2, designVersion: 1 });
+    const audit = await db("audit_events").where({ action: "design_quorum_set" }).first();
+    expect(JSON.parse(audit.new_values)).toEqual({ version: 2, dmcQuorum: 3 });
   });
 });

@@ -189,6 +189,7 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   // after the form is read, so an empty form is invalid for every DMC member.
   action(COMMITTEE, "addCommitteeMemberAction", "/trials/{trial}/committee", actionFor(["admin"]), { trialId: "{trial}" }),
   action(COMMITTEE, "changeCommitteeChairAction", "/trials/{trial}/committee", actionFor(["admin"]), { trialId: "{trial}" }),
+  action(COMMITTEE, "setCharterQuorumAction", "/trials/{trial}/committee", actionFor(EDIT_DESIGN), { trialId: "{trial}" }),
   action(MEETING_COMMITTEE, "recordOpenAttendanceAction", "/trials/{trial}/committee", actionFor(MANAGE_MEETINGS), { trialId: "{trial}" }),
   action(MEETING_COMMITTEE, "recordClosedAttendanceAction", "/trials/{trial}/committee", actionFor(["statistician", "dmc"]), { trialId: "{trial}" }),
   action(MEETING_COMMITTEE, "declareConflictsAction", "/trials/{trial}/committee", actionFor(["dmc"]), { trialId: "{trial}" }),

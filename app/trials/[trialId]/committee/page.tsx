@@ -12,7 +12,8 @@ import { formatMeetingTime } from "@/lib/packets/meeting-time";
 import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
 import { CommitteeForm } from "@/components/committee/committee-form";
-import { addCommitteeMemberAction, changeCommitteeChairAction } from "./actions";
+import { addCommitteeMemberAction, changeCommitteeChairAction, setCharterQuorumAction } from "./actions";
+import { fetchDesignVersions } from "@/db/queries/open-status";
 
 export const metadata: Metadata = { title: "Data monitoring committee" };
 
@@ -21,12 +22,15 @@ export default async function CommitteePage({ params }: { params: Promise<{ tria
   const trialId = parseId((await params).trialId);
   const { trial, principal, unblinded, reader } = await authorizePage(trialId, "viewOpen");
   const manage = allows(principal, "manageCommittee");
-  const [committee, meetings, charter, memberships] = await Promise.all([
+  const editDesign = allows(principal, "editDesign");
+  const [committee, meetings, charter, memberships, versions] = await Promise.all([
     fetchCommittee(trial.id),
     fetchMeetings(trial.id),
     fetchLockedDesign(trial.id, reader),
     manage ? fetchMemberships({ trialId: trial.id }) : Promise.resolve([]),
+    fetchDesignVersions(trial.id, reader),
   ]);
+  const draft = versions.find((v) => v.status === "draft");
   const voting = committee.filter(isVoting);
   const charterQuorum = charter?.dmc_quorum ?? null;
   const seated = new Set(committee.map((m) => m.userId));
@@ -56,6 +60,24 @@ export default async function CommitteePage({ params }: { params: Promise<{ tria
           </>
         )}
       </Card>
+
+      {editDesign ? (
+        <Card title="Quorum in the charter">
+          {draft ? (
+            <CommitteeForm
+              action={setCharterQuorumAction}
+              label="Quorum in the draft design"
+              hidden={{ trialId: trial.id }}
+              fields={[{ kind: "select", name: "quorum", label: `Voting members present needed (written into draft design version ${draft.version})`, options: Array.from({ length: 12 }, (_, i) => ({ value: i + 1, label: String(i + 1) })) }]}
+              submit="Write the quorum into the draft"
+              pendingLabel="Saving…"
+              variant="secondary"
+            />
+          ) : (
+            <p className="text-sm text-stone-600">The quorum is part of the charter. To change it, start an amendment on the Design page (a new draft version), set the quorum here, then lock the amendment.</p>
+          )}
+        </Card>
+      ) : null}
 
       {manage ? (
         <div className="grid gap-4 md:grid-cols-2">
