@@ -177,8 +177,10 @@ describe("declarations and votes", () => {
     expect(await outcome(vote(chair))).toBe(409); // one vote per member
   });
 
-  it("the blinded account cannot select a vote, not even a count", async () => {
+  it("the blinded account cannot select a vote, not even a count; the application's account cannot change one", async () => {
     await expect(blindDb("committee_votes").count({ n: "*" })).rejects.toThrow(/denied/i);
+    await expect(db("committee_votes").where({ meeting_id: meetingId }).update({ decision: "stop_safety" })).rejects.toThrow(/denied/i);
+    await expect(db("conflict_declarations").where({ meeting_id: meetingId }).del()).rejects.toThrow(/denied/i);
     const audit = await db("audit_events").where({ action: "committee_vote_cast" });
     expect(audit.every((r: { visibility: string }) => r.visibility === "closed")).toBe(true);
   });
