@@ -50,6 +50,8 @@ export type DesignRow = {
   created_by: number | null;
   created_at: Date;
   locked_at: Date | null;
+  /** The DMC's quorum written in this (charter) version; null when none was written. */
+  dmc_quorum?: number | null;
 };
 
 /** Open information about a look: safe for every role on the trial. */
@@ -179,7 +181,7 @@ export type PacketMetaRow = {
 /** CLOSED when audience is "closed": the PDF holds arm-level results. */
 export type PacketRow = PacketMetaRow & { pdf: Buffer };
 
-export type EmailKind = "packet_open" | "packet_closed_notice" | "meeting_reminder" | "password_link" | "password_changed";
+export type EmailKind = "packet_open" | "packet_closed_notice" | "meeting_reminder" | "password_link" | "password_changed" | "recommendation_letter";
 export type EmailStatus = "queued" | "sending" | "sent" | "failed";
 export type EmailMessageRow = {
   id: number;
@@ -187,6 +189,8 @@ export type EmailMessageRow = {
   trial_id: number | null;
   meeting_id: number | null;
   packet_id: number | null;
+  /** The recommendation letter a "recommendation_letter" mail carries (null otherwise). */
+  letter_id?: number | null;
   to_user_id: number | null;
   to_address: string;
   subject: string;
@@ -226,3 +230,7 @@ export type ApiTokenRow = {
   revoked_at: Date | null;
   created_at: Date;
 };
+
+/** A trial's DMC as its charter sets it up: the chair (who votes), voting members, the independent (non-voting) statistician. */
+export type CommitteeRole = "chair" | "voting" | "statistician";
+export type MinutesSession = "open" | "closed";

@@ -98,6 +98,10 @@ export type NewRecommendation = {
   createdBy: number;
   createdAt: Date;
   reviewVersion: number;
+  /** A committee's recommendation: the meeting, the tally of the votes, the dissent (closed). */
+  meetingId?: number | null;
+  tally?: unknown;
+  dissent?: string | null;
 };
 
 export async function insertRecommendation(tx: Tx, r: NewRecommendation): Promise<number> {
@@ -111,6 +115,9 @@ export async function insertRecommendation(tx: Tx, r: NewRecommendation): Promis
     created_by: r.createdBy,
     created_at: r.createdAt,
     review_version: r.reviewVersion,
+    meeting_id: r.meetingId ?? null,
+    tally_json: r.tally === undefined || r.tally === null ? null : JSON.stringify(r.tally),
+    dissent: r.dissent ?? null,
   });
   return id;
 }

@@ -16,7 +16,15 @@ export function recordHash(record: unknown, key?: string): string {
 /** The signed record's text: the one canonical JSON (kept under this name for the attack tests). */
 export const stableStringify = canonicalJson;
 
-export type SignatureMeaning = "design approved" | "analysis locked" | "recommendation recorded" | "review reopened for correction";
+export type SignatureMeaning =
+  | "design approved"
+  | "analysis locked"
+  | "recommendation recorded"
+  | "review reopened for correction"
+  | "conflict of interest declared"
+  | "vote cast"
+  | "minutes approved"
+  | "recommendation letter signed";
 
 export async function insertSignature(
   tx: Tx,

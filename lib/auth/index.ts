@@ -153,6 +153,7 @@ function describe(cap: Capability): string {
     enterData: "entering interim data",
     recordRecommendation: "recording a recommendation",
     manageMeetings: "managing DMC meetings",
+    manageCommittee: "changing the committee (an administrator's act)",
     viewAuditOpen: "viewing the audit trail",
     viewAuditClosed: "viewing closed audit entries",
   };

@@ -18,6 +18,13 @@ export const recommendationSchema = z.object({
     .union([z.literal("").transform(() => null), z.null(), z.coerce.number().int("Not a valid entry.").positive("Not a valid entry.").max(2_147_483_647)])
     .optional()
     .transform((v) => v ?? null),
+  /** The meeting at which the committee decided; required when the trial has a committee. */
+  meetingId: z
+    .union([z.literal("").transform(() => null), z.null(), z.coerce.number().int("Not a valid meeting.").positive("Not a valid meeting.").max(2_147_483_647)])
+    .optional()
+    .transform((v) => v ?? null),
+  /** Closed: the minority view, when the committee's vote was not unanimous. */
+  dissent: z.string().trim().max(4000, "Keep the dissent under 4000 characters.").optional().transform((v) => (v ? v : null)),
   password: signingPasswordSchema,
 });
 
@@ -26,5 +33,5 @@ export type RecommendationInput = z.infer<typeof recommendationSchema>;
 export type RecommendationFormState = {
   ok?: string;
   error?: string;
-  fieldErrors?: Partial<Record<"decision" | "rationale" | "correctsId" | "password", string[]>>;
+  fieldErrors?: Partial<Record<"decision" | "rationale" | "correctsId" | "meetingId" | "dissent" | "password", string[]>>;
 };

@@ -135,8 +135,8 @@ SQL
 }
 
 # Table-level grants, renewed after every migration: full DML everywhere except the audit trail,
-# signatures and recommendations, which the application may only read and append to, and users,
-# which it may not delete.
+# signatures, recommendations and the committee's signed records (votes, declarations, letters),
+# which the application may only read and append to, and users, which it may not delete.
 grant_app_privileges() {
   local db="$1" tables t
   tables=$(mysql_root -N -e "SELECT table_name FROM information_schema.tables WHERE table_schema='$db' AND table_type='BASE TABLE'")
@@ -145,7 +145,7 @@ grant_app_privileges() {
       case "$t" in
         # Append-only: the application may read and add, never change or remove. The REVOKE removes
         # UPDATE/DELETE granted before this rule; the GRANT before it ensures REVOKE finds a grant row.
-        audit_events|signatures|recommendations)
+        audit_events|signatures|recommendations|committee_votes|conflict_declarations|recommendation_letters)
           echo "GRANT SELECT, INSERT ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';"
           echo "REVOKE UPDATE, DELETE ON \`$db\`.\`$t\` FROM '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
         # Accounts are deactivated, never deleted.

@@ -25,6 +25,7 @@ import { WhatIf } from "@/components/review/what-if";
 import { whatItTakesPanel } from "@/lib/review/what-if";
 import { RecommendationForm } from "@/components/review/recommendation-form";
 import { recordRecommendationAction } from "./actions";
+import { fetchCommittee } from "@/db/queries/committee";
 import { ReopenReviewForm } from "@/components/review/reopen-review-form";
 import { ANALYSIS_STATUS_LABELS, DECISION_LABELS, formatBoundary, formatProbability, formatRate } from "@/lib/format";
 import type { Interval, HpdRegion } from "@/lib/review/posterior-summary";
@@ -81,6 +82,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
       .map(async (m) => ({ meeting: m, closedAgenda: await fetchClosedAgenda(m.id, closed), packets: await fetchPackets(m.id, ["closed"]) })),
   );
   const prepare = allows(principal, "manageMeetings");
+  const hasCommittee = (await fetchCommittee(trial.id, closed)).length > 0;
   // Recommendations of an earlier review version are superseded, never corrected.
   const current = recommendations.find((r) => r.correctedById === null && !r.superseded) ?? null;
   const nText = (o: { n: number; nControl: number | null }) => (o.nControl === null ? String(o.n) : `${o.n} / ${o.nControl}`);
@@ -389,7 +391,14 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
               <ReopenReviewForm trialId={trial.id} analysisId={analysisId} rowVersion={analysis.row_version} lookNumber={analysis.look_number} reviewVersion={analysis.review_version} signerName={user.name} />
             </div>
           ) : null}
-          {allows(principal, "recordRecommendation") ? (
+          {hasCommittee ? (
+            <p className="text-sm text-stone-600" data-testid="committee-records">
+              This trial has a data monitoring committee: its chair records the committee&apos;s recommendation in the closed session of the meeting, after the members have voted.
+              {meetings.map(({ meeting: m }) => (
+                <Link key={m.id} className="ml-1" href={`/trials/${trial.id}/meetings/${m.id}/closed-session`}>Closed session of the meeting on look {analysis.look_number}.</Link>
+              ))}
+            </p>
+          ) : allows(principal, "recordRecommendation") ? (
             <RecommendationForm trialId={trial.id} analysisId={analysisId} correctsId={current?.id ?? null} signerName={user.name} recordAction={recordRecommendationAction} />
           ) : (
             <p className="text-sm text-stone-600">Only a DMC member records the committee&apos;s recommendation.</p>
