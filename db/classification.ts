@@ -130,7 +130,9 @@ export const BLINDED_READS: Record<string, "all" | "none" | readonly string[]> =
   patient_outcomes: "none",
   recommendation_letters: "all",
   recommendations: ["id", "trial_id", "analysis_id", "review_version", "decision", "corrects_id", "signature_id", "created_by", "created_at"],
-  signatures: ["id", "user_id", "signer_name", "signer_email", "meaning", "entity_type", "entity_id", "signed_at", "hash_scheme"],
+  // Row-level: a vote's signature row is closed (it counts the votes); view signatures_open leaves those rows out.
+  signatures: "none",
+  signatures_open: "all",
   sign_in_failures: "none",
   trial_memberships: "all",
   trials: "all",

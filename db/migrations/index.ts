@@ -56,6 +56,7 @@ import * as mCommittee13 from "./20261205041300_email_messages_letter_id";
 import * as mPending1 from "./20261205060100_add_pending_to_analysis_arm_counts";
 import * as mPending2 from "./20261205060200_add_outcome_pending_to_patient_outcomes";
 import * as mApiTokens from "./20261205070000_create_api_tokens";
+import * as mSignaturesOpen from "./20261205080000_create_view_signatures_open";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
 const migrations: Array<[string, Migration]> = [
@@ -112,6 +113,7 @@ const migrations: Array<[string, Migration]> = [
   ["20261205060100_add_pending_to_analysis_arm_counts", mPending1],
   ["20261205060200_add_outcome_pending_to_patient_outcomes", mPending2],
   ["20261205070000_create_api_tokens", mApiTokens],
+  ["20261205080000_create_view_signatures_open", mSignaturesOpen],
 ];
 
 export const migrationSource: Knex.MigrationSource<[string, Migration]> = {

@@ -92,7 +92,7 @@ export type ConflictDeclaration = { userId: number; name: string; hasConflict: b
 export async function fetchDeclarations(meetingId: number, tx: Tx = blindDb): Promise<ConflictDeclaration[]> {
   const rows = await tx("conflict_declarations as d")
     .join("users as u", "u.id", "d.user_id")
-    .join("signatures as s", "s.id", "d.signature_id")
+    .join("signatures_open as s", "s.id", "d.signature_id")
     .where("d.meeting_id", meetingId)
     .select("d.user_id as userId", "u.name", "d.has_conflict as hasConflict", "d.statement", "d.signature_id as signatureId", "s.signer_name as signerName", "d.created_at as declaredAt")
     .orderBy("u.name");
@@ -123,7 +123,7 @@ export const toMinutes = (r: Omit<MinutesVersion, "approved">): MinutesVersion =
 /** Open-session minutes, every version, newest first (through the view: never a closed row). */
 export async function fetchOpenMinutes(meetingId: number, tx: Tx = blindDb): Promise<MinutesVersion[]> {
   const rows = await tx("meeting_minutes_open as m")
-    .leftJoin("signatures as s", "s.id", "m.approval_signature_id")
+    .leftJoin("signatures_open as s", "s.id", "m.approval_signature_id")
     .where("m.meeting_id", meetingId)
     .select(minutesColumns("m"))
     .orderBy("m.version", "desc");
@@ -160,17 +160,17 @@ export type LetterMeta = { id: number; trialId: number; meetingId: number; recom
 const LETTER_COLUMNS = ["l.id", "l.trial_id as trialId", "l.meeting_id as meetingId", "l.recommendation_id as recommendationId", "l.version", "l.content_hash as contentHash", "l.page_count as pageCount", "l.byte_size as byteSize", "s.signer_name as signerName", "l.created_at as createdAt"];
 
 export async function fetchLetters(meetingId: number, tx: Tx = blindDb): Promise<LetterMeta[]> {
-  return tx("recommendation_letters as l").join("signatures as s", "s.id", "l.signature_id").where("l.meeting_id", meetingId).select(LETTER_COLUMNS).orderBy("l.version", "desc");
+  return tx("recommendation_letters as l").join("signatures_open as s", "s.id", "l.signature_id").where("l.meeting_id", meetingId).select(LETTER_COLUMNS).orderBy("l.version", "desc");
 }
 
 export async function fetchLetterPdf(trialId: number, meetingId: number, version: number | null, tx: Tx = blindDb): Promise<(LetterMeta & { pdf: Buffer }) | undefined> {
-  const q = tx("recommendation_letters as l").join("signatures as s", "s.id", "l.signature_id").where({ "l.trial_id": trialId, "l.meeting_id": meetingId });
+  const q = tx("recommendation_letters as l").join("signatures_open as s", "s.id", "l.signature_id").where({ "l.trial_id": trialId, "l.meeting_id": meetingId });
   if (version !== null) q.where("l.version", version);
   return q.orderBy("l.version", "desc").first([...LETTER_COLUMNS, "l.pdf"]);
 }
 
 export async function fetchLetterById(id: number, tx: Tx = db): Promise<(LetterMeta & { pdf: Buffer }) | undefined> {
-  return tx("recommendation_letters as l").join("signatures as s", "s.id", "l.signature_id").where("l.id", id).first([...LETTER_COLUMNS, "l.pdf"]);
+  return tx("recommendation_letters as l").join("signatures_open as s", "s.id", "l.signature_id").where("l.id", id).first([...LETTER_COLUMNS, "l.pdf"]);
 }
 
 /** Inserts the next letter version of a meeting; call inside a transaction that locks the meeting row. */
@@ -200,7 +200,7 @@ export async function insertLetterVersion(tx: Tx, l: { trialId: number; meetingI
 export async function fetchMeetingRecommendationOpen(meetingId: number, tx: Tx = blindDb): Promise<{ id: number; decision: string; recordedAt: Date; signerName: string; lookNumber: number; reviewVersion: number } | undefined> {
   return tx("recommendations as r")
     .join("analyses as a", "a.id", "r.analysis_id")
-    .join("signatures as s", "s.id", "r.signature_id")
+    .join("signatures_open as s", "s.id", "r.signature_id")
     .join("meetings as m", function () {
       this.on("m.analysis_id", "=", "r.analysis_id");
     })

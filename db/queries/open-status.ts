@@ -50,7 +50,7 @@ export type OpenRecommendation = {
 export async function fetchRecommendationsOpen(trialId: number, tx: Tx = db): Promise<OpenRecommendation[]> {
   return tx("recommendations as r")
     .join("analyses as a", "a.id", "r.analysis_id")
-    .join("signatures as s", "s.id", "r.signature_id")
+    .join("signatures_open as s", "s.id", "r.signature_id")
     .where("r.trial_id", trialId)
     .select(
       "r.id",
@@ -81,7 +81,7 @@ export type OpenLetter = { id: number; meetingId: number; lookNumber: number; ve
 
 export async function fetchLatestLettersOfTrial(trialId: number, tx: Tx = db): Promise<OpenLetter[]> {
   return tx("recommendation_letters as l")
-    .join("signatures as s", "s.id", "l.signature_id")
+    .join("signatures_open as s", "s.id", "l.signature_id")
     .join("meetings as m", "m.id", "l.meeting_id")
     .join("analyses as a", "a.id", "m.analysis_id")
     .where("l.trial_id", trialId)

@@ -139,8 +139,13 @@ SQL
 # which the application may only read and append to, and users, which it may not delete.
 grant_app_privileges() {
   local db="$1" tables t
+  local views v
   tables=$(mysql_root -N -e "SELECT table_name FROM information_schema.tables WHERE table_schema='$db' AND table_type='BASE TABLE'")
+  views=$(mysql_root -N -e "SELECT table_name FROM information_schema.tables WHERE table_schema='$db' AND table_type='VIEW'")
   {
+    # The *_open views are what blinded reads go through; open queries shared by every role join
+    # them (signatures_open), so the application's account reads them too.
+    for v in $views; do echo "GRANT SELECT ON \`$db\`.\`$v\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';"; done
     for t in $tables; do
       case "$t" in
         # Append-only: the application may read and add, never change or remove. The REVOKE removes

@@ -184,6 +184,17 @@ describe("declarations and votes", () => {
     const audit = await db("audit_events").where({ action: "committee_vote_cast" });
     expect(audit.every((r: { visibility: string }) => r.visibility === "closed")).toBe(true);
   });
+
+  it("nor count the votes through their signatures: the signatures table is refused and the open view has no vote row", async () => {
+    const voteSignatures = Number((await db("signatures").where({ meaning: "vote cast" }).count({ n: "*" }).first())?.n);
+    // The positive control: votes were signed, so there is something to hide.
+    expect(voteSignatures).toBeGreaterThan(0);
+    await expect(blindDb("signatures").count({ n: "*" })).rejects.toThrow(/denied/i);
+    expect(Number((await blindDb("signatures_open").where({ meaning: "vote cast" }).count({ n: "*" }).first())?.n)).toBe(0);
+    // Every other signature stays readable: the view drops the vote rows and nothing else.
+    const all = Number((await db("signatures").count({ n: "*" }).first())?.n);
+    expect(Number((await blindDb("signatures_open").count({ n: "*" }).first())?.n)).toBe(all - voteSignatures);
+  });
 });
 
 describe("the committee's recommendation", () => {

@@ -70,6 +70,7 @@ const EXPECTED: Record<string, string[]> = {
   "20261205060100_add_pending_to_analysis_arm_counts": ["column analysis_arm_counts.pending"],
   "20261205060200_add_outcome_pending_to_patient_outcomes": ["column patient_outcomes.outcome_pending"],
   "20261205070000_create_api_tokens": ["table api_tokens"],
+  "20261205080000_create_view_signatures_open": ["view signatures_open"],
 };
 
 const ALL_TABLES = Object.values(EXPECTED)
