@@ -23,9 +23,9 @@ export async function SiteHeader() {
         </Link>
         {user ? (
           <nav aria-label="Account" className="flex items-center gap-4 text-sm">
-            <Link href="/trials">Trials</Link>
-            {user.isAdmin ? <Link href="/admin">Administration</Link> : null}
-            <Link href="/account" className="text-stone-600" data-testid="signed-in-as" title="Your account: change your password">
+            <Link href="/trials" className="no-underline hover:underline">Trials</Link>
+            {user.isAdmin ? <Link href="/admin" className="no-underline hover:underline">Administration</Link> : null}
+            <Link href="/account" className="text-stone-600 no-underline hover:underline" data-testid="signed-in-as" title="Your account: change your password">
               {user.name}
             </Link>
             <SignOutButton />

@@ -101,7 +101,7 @@ export function AccountActions({ userId, name, isActive, isSelf }: { userId: num
         {isActive ? (
           <form action={linkAction}>
             <input type="hidden" name="userId" value={userId} />
-            <Button type="submit" variant="quiet" aria-label={`Send a new set-password link to ${name}`} disabled={linkPending}>New link</Button>
+            <Button type="submit" variant="quiet" aria-label={`New link: send ${name} a new set-password link`} disabled={linkPending}>New link</Button>
           </form>
         ) : null}
         {isSelf ? null : isActive ? (

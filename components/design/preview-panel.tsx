@@ -56,8 +56,11 @@ function Stat({ label, value, testId, note }: { label: string; value: string; te
   return (
     <div className="rounded-md border border-stone-200 bg-stone-50 px-3 py-2">
       <dt className="text-xs text-stone-600">{label}</dt>
-      <dd className="text-xl font-semibold tabular-nums" data-testid={testId}>{value}</dd>
-      {note ? <p className="text-[11px] text-stone-500">{note}</p> : null}
+      {/* A <dl> group holds only <dt> and <dd>: the note is part of the value. */}
+      <dd className="text-xl font-semibold tabular-nums">
+        <span data-testid={testId}>{value}</span>
+        {note ? <span className="block text-xs font-normal text-stone-600">{note}</span> : null}
+      </dd>
     </div>
   );
 }
