@@ -4,12 +4,15 @@ import type { InputHTMLAttributes, ReactNode, SelectHTMLAttributes, TextareaHTML
 export function Field({
   label,
   name,
+  id,
   error,
   hint,
   children,
 }: {
   label: string;
   name: string;
+  /** The control's id when it is not its name. */
+  id?: string;
   error?: string | string[];
   hint?: string;
   children: ReactNode;
@@ -17,7 +20,7 @@ export function Field({
   const msg = Array.isArray(error) ? error[0] : error;
   return (
     <div className="flex flex-col gap-1">
-      <label htmlFor={name} className="text-sm font-medium text-stone-700">
+      <label htmlFor={id ?? name} className="text-sm font-medium text-stone-700">
         {label}
       </label>
       {children}
