@@ -181,3 +181,34 @@ test("every chart has a visible title, a text summary and a numbers table (open 
   expect(charts).toBeGreaterThanOrEqual(12);
   expect(problems, problems.join("\n")).toEqual([]);
 });
+
+test("pages reflow at 320 CSS px: no page scrolls sideways (tables and grids scroll inside their cards)", async ({ browser, baseURL }) => {
+  // WCAG 1.4.10: 320 px is 1280 px at 400% zoom. The statistician and the DMC member between them open every trial page.
+  test.setTimeout(600_000);
+  const wide: string[] = [];
+  for (const role of ["statistician", "dmc"] as const) {
+    const page = await (await contextFor(browser, baseURL!, role)).newPage();
+    await page.setViewportSize({ width: 320, height: 800 });
+    for (const path of pagesFor(role)) {
+      await page.goto(path);
+      await settle(page);
+      const { scroll, width, culprit } = await page.evaluate(() => {
+        const width = document.documentElement.clientWidth;
+        // The widest element that sticks out, to name in the message.
+        let culprit = "";
+        let worst = width;
+        for (const el of document.querySelectorAll<HTMLElement>("body *")) {
+          const r = el.getBoundingClientRect();
+          if (r.right > worst + 1) {
+            worst = r.right;
+            culprit = `${el.tagName.toLowerCase()}${el.id ? `#${el.id}` : ""}.${String(el.className).split(" ").slice(0, 3).join(".")}`;
+          }
+        }
+        return { scroll: document.documentElement.scrollWidth, width, culprit };
+      });
+      if (scroll > width + 1) wide.push(`${path} as ${role}: ${scroll} px wide at ${width} px (${culprit})`);
+    }
+    await page.close();
+  }
+  expect(wide, wide.join("\n")).toEqual([]);
+});

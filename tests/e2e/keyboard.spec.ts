@@ -63,6 +63,7 @@ test("the closed review: fewer than 40 Tab stops from the top to the recommendat
     visited.push(await focusedName(page));
   }
   expect(await focusInside(form), `never reached the form; visited:\n${visited.join("\n")}`).toBe(true);
+  console.log(`closed review: ${stops} Tab stops from the top to the recommendation form`);
   expect(stops, `Tab stops before the recommendation form:\n${visited.join("\n")}`).toBeLessThan(40);
 
   // The boundary grid: one Tab in, arrows inside, one Tab out; and back again with Shift+Tab.
