@@ -92,7 +92,7 @@ function ResultsChart({ job, limit, target, twoArms }: { job: CalibrationJobJson
     <div>
       <CairnPlot
         title={SEARCH_WORDS.cloudTitle}
-        summary={`${job.points.length} distinct results from ${job.evaluated} threshold sets; ${feasible.length} meet both the type I error limit ${limit} and the power target ${target}.${best[0] ? ` Fewest average patients: type I error ${formatProbability(best[0].typeIError)}, power ${formatProbability(best[0].power)}.` : ""}`}
+        summary={`${job.evaluated} threshold sets give ${job.points.length} distinct results; ${job.feasible} threshold sets meet both the type I error limit ${limit} and the power target ${target}.${best[0] ? ` Fewest average patients: type I error ${formatProbability(best[0].typeIError)}, power ${formatProbability(best[0].power)}.` : ""}`}
         numbers={{
           columns: ["Type I error", "Power", "Meets both targets"],
           rows: [...job.points]
