@@ -9,8 +9,9 @@ export function Card({ title, actions, children, className = "" }: { title?: Rea
           {actions}
         </header>
       ) : null}
-      {/* Wide tables and grids scroll inside the card, so the page itself reflows at 320 px (WCAG 1.4.10). */}
-      <div className="-m-1.5 min-w-0 overflow-x-auto p-1.5">{children}</div>
+      {/* Wide tables and grids scroll inside the card, so the page itself reflows at 320 px (WCAG 1.4.10);
+          relative, so visually hidden text inside is clipped here too rather than widening the page. */}
+      <div className="relative -m-1.5 min-w-0 overflow-x-auto p-1.5">{children}</div>
     </section>
   );
 }

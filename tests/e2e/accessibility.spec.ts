@@ -3,7 +3,8 @@
  * (tests/e2e/support/authorization-matrix.ts), as every role that may open it (the rows whose cell is
  * 200), on both demo trials (CRN-201, single arm; CRN-305, two arms), with the WCAG 2.0, 2.1 and 2.2
  * A and AA tags: no serious or critical violation. A failure names the page, the role, the rule and
- * the elements. The same visits check every chart drawn: a visible title, a text summary and a
+ * the elements. Each page is also narrowed to 320 CSS px and must not scroll sideways (reflow,
+ * WCAG 1.4.10). A separate test checks every chart drawn: a visible title, a text summary and a
  * numbers table (components/charts/chart-figure.tsx).
  *
  * Fast on purpose: one browser context per role, signed in once through next-auth's credentials
@@ -79,6 +80,28 @@ async function chartProblems(page: Page): Promise<{ charts: number; problems: st
   return { charts: n, problems };
 }
 
+const DESKTOP = { width: 1280, height: 800 };
+
+/** How far the page scrolls sideways at the current width, naming the element that sticks out furthest; null when it does not. */
+async function sidewaysScroll(page: Page): Promise<string | null> {
+  // Wait until the resize has been laid out (charts and grids follow the width).
+  await expect.poll(() => page.evaluate(() => document.documentElement.clientWidth)).toBeLessThanOrEqual(320);
+  const { scroll, width, culprit } = await page.evaluate(() => {
+    const width = document.documentElement.clientWidth;
+    let culprit = "";
+    let worst = width;
+    for (const el of document.querySelectorAll<HTMLElement>("body *")) {
+      const r = el.getBoundingClientRect();
+      if (r.right > worst + 1) {
+        worst = r.right;
+        culprit = `${el.tagName.toLowerCase()}${el.id ? `#${el.id}` : ""}.${String(el.className).split(" ").slice(0, 3).join(".")}`;
+      }
+    }
+    return { scroll: document.documentElement.scrollWidth, width, culprit };
+  });
+  return scroll > width + 1 ? `${scroll} px wide at ${width} px (furthest out: ${culprit})` : null;
+}
+
 function pagesFor(role: AccountKey | "anonymous"): string[] {
   const out: string[] = [];
   for (const row of AUTHORIZATION_MATRIX) {
@@ -141,10 +164,11 @@ test("the check can fail: text below 4.5:1 is reported with its rule and element
 });
 
 for (const role of ROLES) {
-  test(`every page ${role === "anonymous" ? "open without signing in" : `the ${role} may open`} has no serious or critical WCAG 2.2 AA violation`, async ({ browser, baseURL }) => {
+  test(`every page ${role === "anonymous" ? "open without signing in" : `the ${role} may open`} has no serious or critical WCAG 2.2 AA violation and reflows at 320 px`, async ({ browser, baseURL }) => {
     // One page after another in one context; each visit waits for its lazy parts on a loaded machine.
     test.setTimeout(600_000);
     const page = await (await contextFor(browser, baseURL!, role)).newPage();
+    await page.setViewportSize(DESKTOP);
     const failures: string[] = [];
     const paths = pagesFor(role);
     expect(paths.length, `pages for ${role}`).toBeGreaterThan(0);
@@ -153,6 +177,11 @@ for (const role of ROLES) {
       expect(res?.status(), `${path} as ${role}`).toBe(200);
       await settle(page);
       for (const v of await axeViolations(page)) failures.push(`${path} as ${role}: ${v}`);
+      // Reflow (WCAG 1.4.10): at 320 CSS px (1280 px at 400% zoom) the page must not scroll sideways.
+      await page.setViewportSize({ width: 320, height: 800 });
+      const wide = await sidewaysScroll(page);
+      if (wide) failures.push(`${path} as ${role}: reflow: ${wide}`);
+      await page.setViewportSize(DESKTOP);
     }
     await page.close();
     expect(failures, failures.join("\n")).toEqual([]);
@@ -182,33 +211,3 @@ test("every chart has a visible title, a text summary and a numbers table (open 
   expect(problems, problems.join("\n")).toEqual([]);
 });
 
-test("pages reflow at 320 CSS px: no page scrolls sideways (tables and grids scroll inside their cards)", async ({ browser, baseURL }) => {
-  // WCAG 1.4.10: 320 px is 1280 px at 400% zoom. The statistician and the DMC member between them open every trial page.
-  test.setTimeout(600_000);
-  const wide: string[] = [];
-  for (const role of ["statistician", "dmc"] as const) {
-    const page = await (await contextFor(browser, baseURL!, role)).newPage();
-    await page.setViewportSize({ width: 320, height: 800 });
-    for (const path of pagesFor(role)) {
-      await page.goto(path);
-      await settle(page);
-      const { scroll, width, culprit } = await page.evaluate(() => {
-        const width = document.documentElement.clientWidth;
-        // The widest element that sticks out, to name in the message.
-        let culprit = "";
-        let worst = width;
-        for (const el of document.querySelectorAll<HTMLElement>("body *")) {
-          const r = el.getBoundingClientRect();
-          if (r.right > worst + 1) {
-            worst = r.right;
-            culprit = `${el.tagName.toLowerCase()}${el.id ? `#${el.id}` : ""}.${String(el.className).split(" ").slice(0, 3).join(".")}`;
-          }
-        }
-        return { scroll: document.documentElement.scrollWidth, width, culprit };
-      });
-      if (scroll > width + 1) wide.push(`${path} as ${role}: ${scroll} px wide at ${width} px (${culprit})`);
-    }
-    await page.close();
-  }
-  expect(wide, wide.join("\n")).toEqual([]);
-});
