@@ -29,12 +29,11 @@ const focusedName = (page: Page) =>
     return el ? `${el.tagName.toLowerCase()}${el.id ? `#${el.id}` : ""} "${(el.getAttribute("aria-label") ?? el.textContent ?? "").trim().slice(0, 40)}"` : "nothing";
   });
 
-/** Moves focus to the top of the page (before its first control), as a fresh load leaves it. */
+/** A fresh load of the current page, so sequential focus starts at the top of the document. */
 async function focusTop(page: Page) {
-  await page.evaluate(() => {
-    (document.activeElement as HTMLElement | null)?.blur();
-    window.scrollTo(0, 0);
-  });
+  await page.goto(page.url());
+  await settle(page);
+  expect(await page.evaluate(() => document.activeElement === document.body)).toBe(true);
 }
 
 async function openDemoReview(page: Page, code: string) {
@@ -63,7 +62,7 @@ test("the closed review: fewer than 40 Tab stops from the top to the recommendat
     visited.push(await focusedName(page));
   }
   expect(await focusInside(form), `never reached the form; visited:\n${visited.join("\n")}`).toBe(true);
-  console.log(`closed review: ${stops} Tab stops from the top to the recommendation form`);
+  console.log(`closed review: ${stops} Tab stops from the top to the recommendation form:\n${visited.join("\n")}`);
   expect(stops, `Tab stops before the recommendation form:\n${visited.join("\n")}`).toBeLessThan(40);
 
   // The boundary grid: one Tab in, arrows inside, one Tab out; and back again with Shift+Tab.
