@@ -17,15 +17,15 @@ export async function SiteHeader() {
   const user = await currentUser().catch(() => null);
   return (
     <header className="border-b border-stone-200 bg-white">
-      <div className="mx-auto flex max-w-7xl items-center justify-between px-5 py-3">
+      <div className="mx-auto flex max-w-7xl flex-wrap items-center justify-between gap-2 px-5 py-3">
         <Link href="/trials" className="flex items-center gap-2 text-lg font-semibold text-stone-900 no-underline">
           <CairnMark /> Cairn
         </Link>
         {user ? (
-          <nav aria-label="Account" className="flex items-center gap-4 text-sm">
-            <Link href="/trials">Trials</Link>
-            {user.isAdmin ? <Link href="/admin">Administration</Link> : null}
-            <Link href="/account" className="text-stone-600" data-testid="signed-in-as" title="Your account: change your password">
+          <nav aria-label="Account" className="flex flex-wrap items-center gap-x-4 gap-y-1 text-sm">
+            <Link href="/trials" className="no-underline hover:underline">Trials</Link>
+            {user.isAdmin ? <Link href="/admin" className="no-underline hover:underline">Administration</Link> : null}
+            <Link href="/account" className="text-stone-600 no-underline hover:underline" data-testid="signed-in-as" title="Your account: change your password">
               {user.name}
             </Link>
             <SignOutButton />

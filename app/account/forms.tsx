@@ -6,6 +6,7 @@ import { Button } from "@/components/ui/button";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
 import { Banner } from "@/components/ui/banner";
 import { NewPasswordFields, PasswordSetNotice } from "@/components/account/password-fields";
+import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
 export function ChangePasswordForm() {
   const [state, action, pending] = useActionState(changePassword, {} as PasswordFormState);
@@ -13,6 +14,7 @@ export function ChangePasswordForm() {
   if (state.ok) return <PasswordSetNotice message={state.ok} />;
   return (
     <form action={action} noValidate className="flex flex-col gap-3" aria-label="Change your password">
+      <FocusFirstInvalid after={state} />
       {state.error ? <Banner tone="danger">{state.error}</Banner> : null}
       <Field label="Current password" name="currentPassword" error={fe.currentPassword}>
         <TextInput id="currentPassword" name="currentPassword" type="password" autoComplete="current-password" maxLength={200} invalid={!!fe.currentPassword} />

@@ -6,6 +6,7 @@ import { Button } from "@/components/ui/button";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
 import { Banner } from "@/components/ui/banner";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
+import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
 const initial: FormState = {};
 
@@ -32,6 +33,7 @@ export function CreateAccountForm() {
   const fe = state.fieldErrors ?? {};
   return (
     <form action={action} noValidate className="flex flex-col gap-3" aria-label="Create an account">
+      <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <LinkOnce state={state} />
       <Field label="Name" name="name" error={fe.name}>
@@ -53,6 +55,7 @@ export function AssignRoleForm({ users, trials }: { users: { id: number; label: 
   const fe = state.fieldErrors ?? {};
   return (
     <form action={action} noValidate className="flex flex-col gap-3" aria-label="Give a role on a trial">
+      <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <Field label="Person" name="userId" error={fe.userId}>
         <SelectInput id="userId" name="userId" defaultValue="" invalid={!!fe.userId}>
@@ -101,7 +104,7 @@ export function AccountActions({ userId, name, isActive, isSelf }: { userId: num
         {isActive ? (
           <form action={linkAction}>
             <input type="hidden" name="userId" value={userId} />
-            <Button type="submit" variant="quiet" aria-label={`Send a new set-password link to ${name}`} disabled={linkPending}>New link</Button>
+            <Button type="submit" variant="quiet" aria-label={`New link: send ${name} a new set-password link`} disabled={linkPending}>New link</Button>
           </form>
         ) : null}
         {isSelf ? null : isActive ? (

@@ -4,6 +4,7 @@ import { setPassword, type SetPasswordState } from "./actions";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { NewPasswordFields, PasswordSetNotice } from "@/components/account/password-fields";
+import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
 /**
  * The link's token, read from the URL fragment once per page load and kept: the fragment is removed
@@ -28,6 +29,7 @@ export function SetPasswordForm() {
   if (state.ok) return <PasswordSetNotice message={state.ok} />;
   return (
     <form action={action} noValidate className="flex flex-col gap-3" aria-label="Set your password">
+      <FocusFirstInvalid after={state} />
       {state.error ? <Banner tone="danger">{state.error}</Banner> : null}
       <input type="hidden" name="token" value={token} />
       <NewPasswordFields errors={fe} hint="At least 12 characters. Only you know it; it also signs records in your name." />

@@ -12,6 +12,7 @@ import { Banner } from "@/components/ui/banner";
 import { Field, TextArea, TextInput } from "@/components/ui/field";
 import { callApi, jsonInit, type ApiFailure } from "@/lib/api-client";
 import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
+import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
 type FormState = { ok?: string; failure?: ApiFailure };
 const initial: FormState = {};
@@ -61,6 +62,7 @@ export function OpenLookForm({ trialId, analysisId, rowVersion, lookNumber }: { 
   const fe = state.failure?.fieldErrors ?? {};
   return (
     <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Open this look for entry">
+      <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
       <Field label="Data cut-off date" name="cutoffDate" error={fe.cutoffDate} hint="Patients enrolled on or before this date belong to this look.">
@@ -130,6 +132,7 @@ export function CountsForm({
   if (safetyRule) cols.push(["treated", "Treated (evaluable for toxicity)"], ["toxicities", "With toxicity"]);
   return (
     <form onSubmit={keepValues(action)} className="flex flex-col gap-4" aria-label="Enter counts by hand" noValidate>
+      <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
       <div className="max-w-xs">
@@ -199,12 +202,13 @@ export function LockForm({ trialId, analysisId, rowVersion, lookNumber, signerNa
   const fe = state.failure?.fieldErrors ?? {};
   return (
     <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Lock this look">
+      <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
       <p className="text-sm text-stone-700">
         Signing as <strong>{signerName}</strong>, meaning <strong>analysis locked</strong>: the cut-off and counts shown above become the record of look {lookNumber} and can no longer change.
       </p>
-      <Field label="Your password (to sign)" name="password" error={fe.password}>
+      <Field label={`Your password (to sign): analysis locked, look ${lookNumber}`} name="password" error={fe.password}>
         <TextInput id="password" name="password" type="password" autoComplete="current-password" required invalid={!!fe.password} />
       </Field>
       <div>
@@ -225,6 +229,7 @@ export function ReopenForm({ trialId, analysisId, rowVersion, lookNumber }: { tr
   const fe = state.failure?.fieldErrors ?? {};
   return (
     <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Correct this look">
+      <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
       <Field label="Reason for the correction" name="reason" error={fe.reason} hint={`Reopening records an amendment; the old values stay in the audit trail. ${CLOSED_FIELD_NOTE}`}>
@@ -252,6 +257,7 @@ export function SwitchToCountLevelForm({ trialId, analysisId, rowVersion, patien
   const fe = state.failure?.fieldErrors ?? {};
   return (
     <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Switch to count-level entry">
+      <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <p className="text-sm text-stone-700">
         This look is <strong>patient-level</strong>: its counts are derived from its {patientRows} uploaded patient rows and cannot be typed in. To correct them, upload a corrected file. To

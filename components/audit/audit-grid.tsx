@@ -61,29 +61,29 @@ export function AuditGrid({ entries, openOnly, trialCode }: { entries: AuditEntr
         {openOnly ? " Your role is blinded: entries about arm-level or outcome data are not shown." : ""}
       </p>
       <div className="flex flex-wrap items-end gap-3" role="search" aria-label="Filter the audit trail">
-        <label className="flex flex-col gap-1 text-sm">
-          <span className="font-medium text-stone-700">Action</span>
-          <SelectInput value={action} onChange={(e) => setAction(e.target.value)} aria-label="Filter by action">
+        <div className="flex flex-col gap-1 text-sm">
+          <label htmlFor="audit-filter-action" className="font-medium text-stone-700">Action</label>
+          <SelectInput id="audit-filter-action" value={action} onChange={(e) => setAction(e.target.value)}>
             <option value="">All actions</option>
             {actions.map((a) => (
               <option key={a} value={a}>{a}</option>
             ))}
           </SelectInput>
-        </label>
+        </div>
         {!openOnly ? (
-          <label className="flex flex-col gap-1 text-sm">
-            <span className="font-medium text-stone-700">Visibility</span>
-            <SelectInput value={visibility} onChange={(e) => setVisibility(e.target.value)} aria-label="Filter by visibility">
+          <div className="flex flex-col gap-1 text-sm">
+            <label htmlFor="audit-filter-visibility" className="font-medium text-stone-700">Visibility</label>
+            <SelectInput id="audit-filter-visibility" value={visibility} onChange={(e) => setVisibility(e.target.value)}>
               <option value="">Open and closed</option>
               <option value="open">Open only</option>
               <option value="closed">Closed only</option>
             </SelectInput>
-          </label>
+          </div>
         ) : null}
-        <label className="flex flex-col gap-1 text-sm">
-          <span className="font-medium text-stone-700">Contains</span>
-          <TextInput value={text} onChange={(e) => setText(e.target.value)} placeholder="person, record, value…" aria-label="Filter by text" />
-        </label>
+        <div className="flex flex-col gap-1 text-sm">
+          <label htmlFor="audit-filter-text" className="font-medium text-stone-700">Contains</label>
+          <TextInput id="audit-filter-text" value={text} onChange={(e) => setText(e.target.value)} placeholder="person, record, value…" />
+        </div>
         <p className="text-xs text-stone-500" aria-live="polite">
           {shown.length} of {rows.length} entries
         </p>

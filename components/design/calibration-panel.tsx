@@ -28,6 +28,8 @@ type RangeText = { from: string; to: string; step: string };
 const POLL_MS = 500;
 /** The searches keep this many best designs; grouping equal ones leaves fewer rows. */
 const KEEP = 30;
+/** At most this many plotted points in the chart's numbers table. */
+const CHART_TABLE_ROWS = 200;
 
 function Notation({ children }: { children: string }) {
   return <span className="ml-1 text-xs font-normal text-stone-500">{children}</span>;
@@ -89,9 +91,17 @@ function ResultsChart({ job, limit, target, twoArms }: { job: CalibrationJobJson
   const xMax = Math.min(1, Math.max(limit * 2, ...job.points.map(([t]) => t), 0.05));
   return (
     <div>
-      <h3 className="text-sm font-semibold">{SEARCH_WORDS.cloudTitle}</h3>
       <CairnPlot
         title={SEARCH_WORDS.cloudTitle}
+        summary={`${job.evaluated} threshold sets give ${job.points.length} distinct results; ${job.feasible} threshold sets meet both the type I error limit ${limit} and the power target ${target}.${best[0] ? ` Fewest average patients: type I error ${formatProbability(best[0].typeIError)}, power ${formatProbability(best[0].power)}.` : ""}`}
+        numbers={{
+          columns: ["Type I error", "Power", "Meets both targets"],
+          rows: [...job.points]
+            .sort((a, b) => a[0] - b[0] || a[1] - b[1])
+            .slice(0, CHART_TABLE_ROWS)
+            .map(([t, pw]) => [formatProbability(t), formatProbability(pw), t <= limit && pw >= target ? "yes" : "no"]),
+          note: job.points.length > CHART_TABLE_ROWS ? `The first ${CHART_TABLE_ROWS} of ${job.points.length} results by type I error; the table of best designs below lists the thresholds.` : undefined,
+        }}
         fileName="cairn-threshold-search"
         height={340}
         data={[
@@ -109,7 +119,7 @@ function ResultsChart({ job, limit, target, twoArms }: { job: CalibrationJobJson
         ]}
         layout={{
           xaxis: { title: { text: twoArms ? "Type I error, largest on the null boundary (probability, 0 to 1)" : "Type I error at the null rate (probability, 0 to 1)" }, range: [0, xMax], zeroline: false },
-          yaxis: { title: { text: "Power at the alternative (probability, 0 to 1)" }, range: [0, 1.02] },
+          yaxis: { title: { text: "Power at the alternative (probability, 0 to 1)" }, range: [0, 1.02], dtick: 0.2 },
           shapes: [
             { type: "rect", x0: 0, x1: limit, y0: target, y1: 1.02, fillcolor: CAIRN_COLOURS.efficacy, opacity: 0.08, line: { width: 0 } },
             { type: "line", x0: limit, x1: limit, y0: 0, y1: 1.02, line: { color: CAIRN_COLOURS.futility, dash: "dash", width: 1 } },

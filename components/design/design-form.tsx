@@ -39,7 +39,7 @@ function PriorFields({ prefix, title, prior, errors, readOnly, onChange }: { pre
   return (
     <div className="flex flex-col gap-3" data-testid={`${prefix}-fields`}>
       <Field label={title} name={`${prefix}-family`} error={errors[prefix]}>
-        <SelectInput id={`${prefix}-family`} name={`${prefix}-family`} value={prior.family} disabled={readOnly} onChange={(e) => onChange({ ...prior, family: e.target.value as PriorFamily })}>
+        <SelectInput id={`${prefix}-family`} name={`${prefix}-family`} value={prior.family} aria-readonly={readOnly || undefined} onChange={(e) => onChange({ ...prior, family: e.target.value as PriorFamily })}>
           {(Object.keys(PRIOR_FAMILY_LABELS) as PriorFamily[]).map((f) => (
             <option key={f} value={f}>{PRIOR_FAMILY_LABELS[f]}</option>
           ))}
@@ -72,14 +72,20 @@ function PriorFields({ prefix, title, prior, errors, readOnly, onChange }: { pre
   );
 }
 
-export function DesignFormFields({ form, errors, readOnly, armLabels, onChange }: Props) {
+export function DesignFormFields({ form, errors, readOnly, armLabels, onChange: change }: Props) {
+  // A read-only design (locked, superseded, or a draft the viewer may not edit) keeps every field
+  // focusable and readable (WCAG 2.1.1, 1.3.1): text fields are readOnly, and choices ignore changes
+  // (controlled, so a click leaves them as they are) and say aria-readonly. Not a disabled fieldset,
+  // whose values a keyboard or screen-reader user could not reach.
+  const onChange = readOnly ? () => undefined : change;
+  const ro = readOnly || undefined;
   const set = <K extends keyof DesignForm>(k: K) => (v: DesignForm[K]) => onChange({ ...form, [k]: v });
   const predictive = form.ruleKind === "predictive";
   const num = (k: keyof DesignForm & string, label: string, hint?: string) => (
     <NumberField id={k} label={label} value={form[k] as string} error={errors[k]} hint={hint} onChange={(v) => onChange({ ...form, [k]: v })} readOnly={readOnly} />
   );
   return (
-    <fieldset disabled={readOnly} className="flex flex-col gap-4" aria-label="Design settings">
+    <fieldset className="flex flex-col gap-4" aria-label="Design settings">
       {errors.form || errors.arms ? <p className="text-sm text-berry-700">{errors.form ?? errors.arms}</p> : null}
       {form.arms === "single" ? (
         <>
@@ -107,7 +113,7 @@ export function DesignFormFields({ form, errors, readOnly, armLabels, onChange }
         </Group>
       )}
       <Group title="Planned looks">
-        <div className="flex gap-4 text-sm" role="radiogroup" aria-label="How the looks are given">
+        <div className="flex gap-4 text-sm" role="radiogroup" aria-label="How the looks are given" aria-readonly={ro}>
           <label className="flex items-center gap-2">
             <input type="radio" name="looksKind" checked={form.looksKind === "list"} onChange={() => set("looksKind")("list")} /> A list of enrolled counts
           </label>
@@ -128,7 +134,7 @@ export function DesignFormFields({ form, errors, readOnly, armLabels, onChange }
       </Group>
       <Group title="Monitoring rule">
         <Field label="Rule" name="ruleKind" error={errors.ruleKind}>
-          <SelectInput id="ruleKind" name="ruleKind" value={form.ruleKind} onChange={(e) => set("ruleKind")(e.target.value as DesignForm["ruleKind"])}>
+          <SelectInput id="ruleKind" name="ruleKind" value={form.ruleKind} aria-readonly={ro} onChange={(e) => set("ruleKind")(e.target.value as DesignForm["ruleKind"])}>
             <option value="predictive">Predictive probability of success (Lee &amp; Liu 2008)</option>
             <option value="posterior">{monitoringRuleLabel("posterior", form.arms)}</option>
             <option value="uncertainStandard">{monitoringRuleLabel("uncertainStandard", form.arms)}</option>
@@ -149,18 +155,18 @@ export function DesignFormFields({ form, errors, readOnly, armLabels, onChange }
           ? num("delta", "Margin δ for the interim rule", form.ruleKind === "uncertainStandard" ? "Interims use P(pE > pS + δ | data)." : "Interims use P(p > p0 + δ | data).")
           : null}
         <label className="flex items-center gap-2 text-sm">
-          <input type="checkbox" checked={form.efficacyStopping} onChange={(e) => set("efficacyStopping")(e.target.checked)} /> Stop early for efficacy
+          <input type="checkbox" checked={form.efficacyStopping} aria-readonly={ro} onChange={(e) => set("efficacyStopping")(e.target.checked)} /> Stop early for efficacy
         </label>
         {form.efficacyStopping ? num("efficacyThreshold", predictive ? "Efficacy threshold θU" : "Efficacy threshold pU", "Stop if the probability > this threshold.") : null}
       </Group>
       <Group title="Safety rule">
         <label className="flex items-center gap-2 text-sm">
-          <input type="checkbox" checked={form.safetyOn} onChange={(e) => set("safetyOn")(e.target.checked)} /> Monitor toxicity{form.arms === "two" ? " (experimental arm)" : ""}
+          <input type="checkbox" checked={form.safetyOn} aria-readonly={ro} onChange={(e) => set("safetyOn")(e.target.checked)} /> Monitor toxicity{form.arms === "two" ? " (experimental arm)" : ""}
         </label>
         {form.safetyOn ? (
           <>
             <Field label="Compare the toxicity rate with" name="safetyKind" error={errors.safetyKind}>
-              <SelectInput id="safetyKind" name="safetyKind" value={form.safetyKind} onChange={(e) => set("safetyKind")(e.target.value as DesignForm["safetyKind"])}>
+              <SelectInput id="safetyKind" name="safetyKind" value={form.safetyKind} aria-readonly={ro} onChange={(e) => set("safetyKind")(e.target.value as DesignForm["safetyKind"])}>
                 <option value="fixedLimit">A fixed limit qmax</option>
                 <option value="uncertainStandard">An uncertain standard rate plus a margin (Thall, Simon &amp; Estey 1995)</option>
               </SelectInput>

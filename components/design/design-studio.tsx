@@ -5,7 +5,7 @@
  * calibration, save (with a revision check), lock with an e-signature, and amendments.
  */
 import { callApi, jsonInit, type ApiFailure } from "@/lib/api-client";
-import { useMemo, useState } from "react";
+import { useMemo, useRef, useState } from "react";
 import { useRouter } from "next/navigation";
 import { format } from "date-fns";
 import { Button } from "@/components/ui/button";
@@ -13,6 +13,7 @@ import { Banner } from "@/components/ui/banner";
 import { Badge } from "@/components/ui/badge";
 import { Card } from "@/components/ui/card";
 import { Field, TextArea, TextInput } from "@/components/ui/field";
+import { firstInvalidControl } from "@/components/ui/focus-first-invalid";
 import { DesignFormFields } from "./design-form";
 import { PreviewPanel, usePreview } from "./preview-panel";
 import { CalibrationPanel } from "./calibration-panel";
@@ -56,6 +57,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
   const [serverErrors, setServerErrors] = useState<FieldErrors>({});
   const [outcome, setOutcome] = useState<Outcome>(null);
   const [busy, setBusy] = useState(false);
+  const formBox = useRef<HTMLDivElement>(null);
   const [password, setPassword] = useState("");
   const [passwordError, setPasswordError] = useState<string | undefined>();
   const [reason, setReason] = useState("");
@@ -92,13 +94,24 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
   }
 
   function failure(f: ApiFailure) {
-    if (f.pathIssues.length) setServerErrors(issuesToFieldErrors(f.pathIssues.map((i) => ({ ...i, path: i.path.replace(/^spec\.?/, "") }))));
+    if (f.pathIssues.length) {
+      setServerErrors(issuesToFieldErrors(f.pathIssues.map((i) => ({ ...i, path: i.path.replace(/^spec\.?/, "") }))));
+      focusFirstInvalid();
+    }
     setOutcome({ tone: "danger", text: f.error });
+  }
+
+  /** After the errors are drawn, focus moves to the first field to fix (WCAG 3.3.1). */
+  function focusFirstInvalid() {
+    requestAnimationFrame(() => {
+      if (formBox.current) firstInvalidControl(formBox.current)?.focus();
+    });
   }
 
   async function save() {
     if (!validation.ok) {
       setOutcome({ tone: "danger", text: "Check the highlighted fields; nothing was saved." });
+      focusFirstInvalid();
       return;
     }
     setBusy(true);
@@ -226,7 +239,9 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
                 {selected?.status === "draft" ? "You may read this draft; editing needs the statistician or administrator role." : "This version is read-only. Earlier versions stay readable; a change to the charter version is made as an amendment."}
               </p>
             ) : null}
-            <DesignFormFields form={form} errors={errors} readOnly={!editable} armLabels={armLabels} onChange={change} />
+            <div ref={formBox}>
+              <DesignFormFields form={form} errors={errors} readOnly={!editable} armLabels={armLabels} onChange={change} />
+            </div>
             {editable ? (
               <div className="mt-4 flex items-center gap-3">
                 <Button type="button" onClick={save} disabled={busy}>
@@ -250,7 +265,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
                   void lock();
                 }}
               >
-                <Field label="Your password (to sign)" name="sign-password" error={passwordError}>
+                <Field label={`Your password (to sign): design approved, version ${selected.version}`} name="sign-password" error={passwordError}>
                   <TextInput id="sign-password" name="sign-password" type="password" autoComplete="current-password" value={password} invalid={!!passwordError} onChange={(e) => setPassword(e.target.value)} />
                 </Field>
                 <div>

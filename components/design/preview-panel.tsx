@@ -8,6 +8,7 @@ import { callApi, jsonInit } from "@/lib/api-client";
 import { useEffect, useRef, useState } from "react";
 import type { ColDef } from "ag-grid-community";
 import { CairnPlot, CAIRN_COLOURS } from "@/components/charts/plot";
+import { cell, countAxis, densityAxis, probabilityAxis, sampleIndices } from "@/lib/charts/chart-numbers";
 import { DataGrid } from "@/components/grid/data-grid";
 import { Banner } from "@/components/ui/banner";
 import { formatBoundary, formatProbability } from "@/lib/format";
@@ -55,8 +56,11 @@ function Stat({ label, value, testId, note }: { label: string; value: string; te
   return (
     <div className="rounded-md border border-stone-200 bg-stone-50 px-3 py-2">
       <dt className="text-xs text-stone-600">{label}</dt>
-      <dd className="text-xl font-semibold tabular-nums" data-testid={testId}>{value}</dd>
-      {note ? <p className="text-[11px] text-stone-500">{note}</p> : null}
+      {/* A <dl> group holds only <dt> and <dd>: the note is part of the value. */}
+      <dd className="text-xl font-semibold tabular-nums">
+        <span data-testid={testId}>{value}</span>
+        {note ? <span className="block text-xs font-normal text-stone-600">{note}</span> : null}
+      </dd>
     </div>
   );
 }
@@ -102,13 +106,28 @@ function SingleArmResult({ p, design }: { p: SingleArmPreview; design: Extract<D
     { x: xs, y: p.boundaries.map((b) => b.futilityMax), name: "Futility boundary (stop at or below)", mode: "lines+markers", line: { color: CAIRN_COLOURS.futility, ...step }, connectgaps: false },
     { x: xs, y: p.boundaries.map((b) => b.efficacyMin), name: "Efficacy boundary (stop at or above; final: success)", mode: "lines+markers", line: { color: CAIRN_COLOURS.efficacy, ...step }, connectgaps: false },
   ];
-  if (design.safety) data.push({ x: xs, y: p.boundaries.map((b) => b.toxicityMin), name: "Safety boundary (toxicities, stop at or above)", mode: "lines+markers", line: { color: CAIRN_COLOURS.safety, dash: "dot", ...step } });
+  // The toxicity boundary counts toxicities, not responders: its own axis on the right.
+  if (design.safety) data.push({ x: xs, y: p.boundaries.map((b) => b.toxicityMin), name: "Safety boundary (toxicities, stop at or above; right axis)", mode: "lines+markers", yaxis: "y2", line: { color: CAIRN_COLOURS.safety, dash: "dot", ...step } });
+  const maxResp = Math.max(1, ...p.boundaries.map((b) => Math.max(b.futilityMax ?? 0, b.efficacyMin ?? 0)));
+  const maxTox = Math.max(1, ...p.boundaries.map((b) => b.toxicityMin ?? 0));
+  const final = p.boundaries[p.boundaries.length - 1];
   return (
     <>
       <OcSummaryBlock p={p} nullLabel={`at p0 = ${design.p0}`} targetLabel={`at p1 = ${design.p1}`} />
       <h3 className="mt-2 text-sm font-semibold">Stopping boundaries</h3>
       <DataGrid rows={rows} columns={SINGLE_COLUMNS} label="Stopping boundaries" height={Math.min(360, 60 + rows.length * 42)} csvFileName="cairn-boundaries.csv" />
-      <CairnPlot title="Stopping boundaries: cumulative responders against patients enrolled" data={data} layout={{ xaxis: { title: { text: "Patients enrolled" }, range: [0, p.nMax + 1] }, yaxis: { title: { text: "Cumulative responders" }, rangemode: "tozero" } }} fileName="cairn-boundaries" />
+      <CairnPlot
+        title="Stopping boundaries: cumulative responders against evaluable patients"
+        summary={`Responder counts that stop the trial at each of ${p.boundaries.length} looks up to ${p.nMax} evaluable patients${final ? `; at the final analysis, success needs at least ${formatBoundary(final.efficacyMin)} responders` : ""}.${design.safety ? " The safety boundary counts toxicities, on the right-hand axis." : ""}`}
+        numbers={{ columns: ["Look", "Evaluable patients", "Futility: stop if responders ≤", "Efficacy: stop if responders ≥", ...(design.safety ? ["Safety: stop if toxicities ≥"] : [])], rows: rows.map((r) => [r.look, r.n, r.futility, r.efficacy, ...(design.safety ? [r.safety] : [])]) }}
+        data={data}
+        layout={{
+          xaxis: countAxis("Evaluable patients (count)", p.nMax, { range: [0, p.nMax + 1] }),
+          yaxis: countAxis("Cumulative responders (count)", maxResp),
+          ...(design.safety ? { yaxis2: countAxis("Cumulative toxicities (count)", maxTox, { overlaying: "y", side: "right", showgrid: false }), margin: { l: 64, r: 64, t: 16, b: 56 } } : {}),
+        }}
+        fileName="cairn-boundaries"
+      />
       <OcCurve p={p} xLabel="True response rate" marks={[design.p0, design.p1]} />
       <SafetyOcTable p={p} nullLabel={`p0 = ${design.p0}`} targetLabel={`p1 = ${design.p1}`} />
     </>
@@ -166,7 +185,14 @@ function TwoArmResult({ p, design }: { p: TwoArmPreview; design: Extract<Design,
           Safety (experimental arm): stop if toxicities ≥ {p.safety.map((s) => `${formatBoundary(s.toxicityMin)} of ${s.n}`).join("; ")}.
         </p>
       ) : null}
-      <CairnPlot title="Experimental responders that stop, against control responders, by look" data={data} layout={{ xaxis: { title: { text: "Control responders" } }, yaxis: { title: { text: "Experimental responders" }, rangemode: "tozero" } }} fileName="cairn-boundaries-two-arm" />
+      <CairnPlot
+        title="Experimental responders that stop, against control responders, by look"
+        summary={`For each of ${p.looks.length} looks (${p.looks.join(", ")} evaluable patients per arm), the experimental responder counts that stop for futility (at or below) or efficacy (at or above), given the control arm's responders.`}
+        numbers={{ columns: ["Look", "Evaluable patients per arm", "Control responders", "Futility: stop if experimental responders ≤", "Efficacy: stop if experimental responders ≥"], rows: rows.map((r) => [r.look, r.n, r.xC, r.futility, r.efficacy]) }}
+        data={data}
+        layout={{ xaxis: countAxis("Control responders (count)", Math.max(1, ...p.looks)), yaxis: countAxis("Experimental responders (count)", Math.max(1, ...p.looks)) }}
+        fileName="cairn-boundaries-two-arm"
+      />
       <OcCurve p={p} xLabel={`True experimental rate (control at ${design.controlRate})`} marks={[design.controlRate, design.experimentalRate]} />
       <SafetyOcTable p={p} nullLabel={`both at ${design.controlRate}`} targetLabel={`${design.experimentalRate} vs ${design.controlRate}`} />
     </>
@@ -222,11 +248,13 @@ function NullBoundaryCurve({ p }: { p: TwoArmPreview }) {
   return (
     <CairnPlot
       title={`Type I error along the null boundary ${nullBoundaryText(p.delta)}, by control rate`}
+      summary={`Largest type I error ${formatProbability(p.typeIError)} at control rate ${p.typeIErrorMaxAt.controlRate}, over ${p.nullCurve.length} control rates.`}
+      numbers={{ columns: ["Control rate pC", "Type I error"], rows: p.nullCurve.map((c) => [c.controlRate, cell(c.typeIError)]) }}
       height={240}
       data={[
         { x: p.nullCurve.map((c) => c.controlRate), y: p.nullCurve.map((c) => c.typeIError), name: "Type I error", mode: "lines+markers", line: { color: CAIRN_COLOURS.efficacy } },
       ]}
-      layout={{ showlegend: false, xaxis: { title: { text: "True control rate pC (experimental pT = pC + δ)" }, range: [0, 1] }, yaxis: { title: { text: "P(declare success)" }, rangemode: "tozero" }, margin: { l: 56, r: 16, t: 28, b: 48 } }}
+      layout={{ showlegend: false, xaxis: probabilityAxis("True control rate pC (proportion; experimental pT = pC + δ)"), yaxis: { title: { text: "P(declare success) (probability)" }, rangemode: "tozero", automargin: true } }}
       fileName="cairn-type-i-error-null-boundary"
     />
   );
@@ -234,9 +262,16 @@ function NullBoundaryCurve({ p }: { p: TwoArmPreview }) {
 
 function OcCurve({ p, xLabel, marks }: { p: DesignPreview; xLabel: string; marks: number[] }) {
   const x = p.curve.map((c) => c.rate);
+  const perArm = p.arms === "two" ? " per arm" : "";
   return (
     <CairnPlot
       title="P(declare success) and expected sample size over true rates"
+      summary={`At the marked rates (${marks.join(" and ")}): type I error ${formatProbability(p.typeIError)}, power ${formatProbability(p.power)}; expected sample size${perArm} ${fmtN(p.atNull.expectedSampleSize)} and ${fmtN(p.atTarget.expectedSampleSize)}.`}
+      numbers={{
+        columns: ["True rate", "P(declare success)", "P(early stop for futility)", "P(early stop for efficacy)", `Expected sample size${perArm}`],
+        rows: sampleIndices(x, 0.05).map((i) => [x[i].toFixed(2), cell(p.curve[i].pDeclareSuccess), cell(p.curve[i].pEarlyFutility), cell(p.curve[i].pEarlyEfficacy), cell(p.curve[i].expectedSampleSize, 1)]),
+        note: "Every 0.05 of the rate; the chart draws the full grid.",
+      }}
       data={[
         { x, y: p.curve.map((c) => c.pDeclareSuccess), name: "P(declare success)", mode: "lines", line: { color: CAIRN_COLOURS.efficacy } },
         { x, y: p.curve.map((c) => c.pEarlyFutility), name: "P(early stop for futility)", mode: "lines", line: { color: CAIRN_COLOURS.futility, dash: "dash" } },
@@ -244,10 +279,10 @@ function OcCurve({ p, xLabel, marks }: { p: DesignPreview; xLabel: string; marks
         { x, y: p.curve.map((c) => c.expectedSampleSize), name: "Expected sample size", mode: "lines", yaxis: "y2", line: { color: CAIRN_COLOURS.control, dash: "dot" } },
       ]}
       layout={{
-        xaxis: { title: { text: xLabel }, range: [0, 1] },
-        yaxis: { title: { text: "Probability" }, range: [0, 1] },
-        yaxis2: { title: { text: "Expected sample size" }, overlaying: "y", side: "right", rangemode: "tozero" },
-        margin: { l: 56, r: 56, t: 28, b: 48 },
+        xaxis: probabilityAxis(`${xLabel} (proportion)`),
+        yaxis: probabilityAxis("Probability (0 to 1)", {}, 0, 1, 0.2),
+        yaxis2: countAxis(`Expected sample size${perArm} (patients)`, Math.max(1, ...p.curve.map((c) => c.expectedSampleSize)), { overlaying: "y", side: "right", showgrid: false }),
+        margin: { l: 64, r: 64, t: 16, b: 56 },
         shapes: marks.map((m) => ({ type: "line", x0: m, x1: m, y0: 0, y1: 1, yref: "paper", line: { color: "#bbb", width: 1, dash: "dot" } })),
       }}
       fileName="cairn-operating-characteristics"
@@ -266,9 +301,11 @@ function PriorDensities({ p }: { p: DesignPreview }) {
           </p>
           <CairnPlot
             title={`Prior density: ${pr.label}`}
-            height={180}
+            summary={`Prior mean ${pr.mean.toFixed(3)}, effective sample size ${pr.ess.toFixed(1)} patients.`}
+            numbers={{ columns: ["Rate", "Prior density"], rows: sampleIndices(pr.density.x, 0.05).map((i) => [pr.density.x[i].toFixed(2), cell(pr.density.y[i])]), note: "Every 0.05 of the rate; the chart draws the full grid." }}
+            height={220}
             data={[{ x: pr.density.x, y: pr.density.y, mode: "lines", line: { color: CAIRN_COLOURS.prior }, fill: "tozeroy", name: "density" }]}
-            layout={{ showlegend: false, margin: { l: 36, r: 8, t: 8, b: 32 }, xaxis: { range: [0, 1] }, yaxis: { rangemode: "tozero", range: [0, Math.min(12, Math.max(...pr.density.y) * 1.05)] } }}
+            layout={{ showlegend: false, margin: { l: 56, r: 8, t: 8, b: 48 }, xaxis: probabilityAxis("Rate (proportion, 0 to 1)", {}, 0, 1, 0.2), yaxis: densityAxis("Density", { range: [0, Math.min(12, Math.max(...pr.density.y) * 1.05)] }) }}
             fileName="cairn-prior"
           />
         </div>

@@ -1,54 +1,30 @@
 "use client";
 /**
- * The one AG Grid entry point: community modules registered once, Cairn's theme colours, sorting
- * and filtering on, CSV export (cells neutralised against formula injection, lib/csv/formula-injection.ts).
- * No Google-font parameters (no outside requests).
+ * The one AG Grid entry point. The grid's code (ag-grid-community and ag-grid-react, about a third
+ * of a megabyte gzipped with every module) is loaded after first paint and only on pages that show
+ * a grid (next/dynamic, ssr: false); until then a quiet placeholder of the grid's height holds the
+ * space so nothing jumps. The grid itself lives in ag-data-grid.tsx.
  */
-import { useMemo, useRef } from "react";
-import { AgGridReact } from "ag-grid-react";
-import { AllCommunityModule, ModuleRegistry, themeQuartz, type ColDef } from "ag-grid-community";
-import { Button } from "@/components/ui/button";
-import { safeCsvExportParams } from "@/lib/csv/formula-injection";
+import dynamic from "next/dynamic";
+import type { ColDef } from "ag-grid-community";
 
-ModuleRegistry.registerModules([AllCommunityModule]);
-
-const cairnTheme = themeQuartz.withParams({
-  fontFamily: "inherit",
-  headerFontWeight: 600,
-  accentColor: "#3f7d4f",
-  borderColor: "#dcd8cd",
-  headerBackgroundColor: "#f7f6f3",
-  foregroundColor: "#1f1d19",
-  rowHoverColor: "#eef6ef",
-});
-
-export function DataGrid<T extends object>({
-  rows,
-  columns,
-  label,
-  height = 420,
-  csvFileName,
-}: {
+export type DataGridProps<T extends object> = {
   rows: T[];
   columns: ColDef<T>[];
   label: string;
   height?: number;
   csvFileName?: string;
-}) {
-  const ref = useRef<AgGridReact<T>>(null);
-  const defaultColDef = useMemo<ColDef<T>>(() => ({ sortable: true, filter: true, resizable: true, flex: 1, minWidth: 90 }), []);
+};
+
+const LazyGrid = dynamic(() => import("./ag-data-grid").then((m) => m.AgDataGrid), {
+  ssr: false,
+  loading: () => <p className="text-sm text-stone-600">Loading the table…</p>,
+});
+
+export function DataGrid<T extends object>(props: DataGridProps<T>) {
   return (
-    <div className="flex flex-col gap-2">
-      {csvFileName ? (
-        <div className="flex justify-end">
-          <Button variant="secondary" type="button" onClick={() => ref.current?.api.exportDataAsCsv(safeCsvExportParams(csvFileName))}>
-            Export CSV
-          </Button>
-        </div>
-      ) : null}
-      <div role="region" aria-label={label} style={{ height }}>
-        <AgGridReact<T> ref={ref} theme={cairnTheme} rowData={rows} columnDefs={columns} defaultColDef={defaultColDef} animateRows={false} />
-      </div>
+    <div style={{ minHeight: (props.height ?? 420) + (props.csvFileName ? 44 : 0) }}>
+      <LazyGrid {...(props as unknown as DataGridProps<object>)} />
     </div>
   );
 }

@@ -6,6 +6,7 @@ import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { Field, SelectInput, TextArea, TextInput } from "@/components/ui/field";
 import type { MeetingFormState } from "@/lib/meetings/schemas";
+import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
 type Action = (prev: MeetingFormState, form: FormData) => Promise<MeetingFormState>;
 const initial: MeetingFormState = {};
@@ -43,6 +44,7 @@ export function ScheduleMeetingForm({ action, trialId, analyses, members, zones,
       className="flex flex-col gap-3"
       aria-label="Schedule a DMC meeting"
     >
+      <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <input type="hidden" name="trialId" value={trialId} />
       <Field label="Analysis reviewed" name="analysisId" error={fe.analysisId}>
@@ -107,6 +109,7 @@ export function AttendanceForm({ action, trialId, meetingId, rowVersion, attende
   const [state, formAction, pending] = useActionState(action, initial);
   return (
     <form action={formAction} className="flex flex-col gap-2" aria-label="Record attendance">
+      <FocusFirstInvalid after={state} />
       <input type="hidden" name="trialId" value={trialId} />
       <input type="hidden" name="meetingId" value={meetingId} />
       <input type="hidden" name="rowVersion" value={rowVersion} />

@@ -6,6 +6,7 @@ import { Banner } from "@/components/ui/banner";
 import { Field, SelectInput, TextArea, TextInput } from "@/components/ui/field";
 import { DECISION_LABELS } from "@/lib/format";
 import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
+import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
 const initial: RecommendationFormState = {};
 
@@ -45,6 +46,7 @@ export function RecommendationForm({ trialId, analysisId, correctsId, signerName
   };
   return (
     <form onSubmit={submit} className="flex flex-col gap-3" aria-label={correctsId ? "Record a correction" : "Record the recommendation"}>
+      <FocusFirstInvalid after={state} />
       {state.ok ? <Banner tone="success">{state.ok}</Banner> : state.error ? <Banner tone="danger">{state.error}</Banner> : null}
       <input type="hidden" name="trialId" value={trialId} />
       <input type="hidden" name="analysisId" value={analysisId} />
@@ -65,7 +67,7 @@ export function RecommendationForm({ trialId, analysisId, correctsId, signerName
       <Field label="Rationale" name="rationale" error={fe.rationale} hint={CLOSED_FIELD_NOTE}>
         <TextArea id="rationale" name="rationale" rows={4} maxLength={4000} value={rationale} onChange={(e) => setRationale(e.target.value)} invalid={!!fe.rationale} />
       </Field>
-      <Field label="Password (electronic signature)" name="password" error={fe.password} hint={`Signing as ${signerName}, meaning "recommendation recorded".`}>
+      <Field label="Password (electronic signature): recommendation recorded" name="password" error={fe.password} hint={`Signing as ${signerName}, meaning "recommendation recorded".`}>
         <TextInput id="password" name="password" type="password" autoComplete="current-password" maxLength={200} value={password} onChange={(e) => setPassword(e.target.value)} invalid={!!fe.password} />
       </Field>
       <Button type="submit" disabled={pending}>{pending ? "Signing…" : correctsId ? "Sign and record the correction" : "Sign and record"}</Button>

@@ -12,6 +12,7 @@ import { Banner } from "@/components/ui/banner";
 import { Field, TextArea, TextInput } from "@/components/ui/field";
 import { callApi, jsonInit, type ApiFailure } from "@/lib/api-client";
 import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
+import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
 type State = { ok?: string; failure?: ApiFailure };
 
@@ -39,6 +40,7 @@ export function ReopenReviewForm({ trialId, analysisId, rowVersion, lookNumber, 
   };
   return (
     <form onSubmit={submit} className="flex flex-col gap-3" aria-label="Reopen this reviewed look for a correction">
+      <FocusFirstInvalid after={state} />
       {state.ok ? <Banner tone="success">{state.ok}</Banner> : state.failure ? <Banner tone="danger" title="Not reopened">{state.failure.error}</Banner> : null}
       <input type="hidden" name="rowVersion" value={rowVersion} />
       <p className="text-sm text-stone-600">
@@ -47,7 +49,7 @@ export function ReopenReviewForm({ trialId, analysisId, rowVersion, lookNumber, 
       <Field label="Reason for the correction" name="reason" error={fe.reason} hint={CLOSED_FIELD_NOTE}>
         <TextArea id="reopen-reason" name="reason" rows={2} maxLength={1000} value={reason} onChange={(e) => setReason(e.target.value)} invalid={!!fe.reason} />
       </Field>
-      <Field label="Password (electronic signature)" name="password" error={fe.password} hint={`Signing as ${signerName}, meaning "review reopened for correction".`}>
+      <Field label="Password (electronic signature): review reopened for correction" name="password" id="reopen-password" error={fe.password} hint={`Signing as ${signerName}, meaning "review reopened for correction".`}>
         <TextInput id="reopen-password" name="password" type="password" autoComplete="current-password" maxLength={200} value={password} onChange={(e) => setPassword(e.target.value)} invalid={!!fe.password} />
       </Field>
       <div>

@@ -4,6 +4,8 @@
  * slices of the computed review (unrounded) and draw them with CairnPlot.
  */
 import { CairnPlot, CAIRN_COLOURS } from "@/components/charts/plot";
+import { cell, countAxis, densityAxis, probabilityAxis, sampleIndices } from "@/lib/charts/chart-numbers";
+import { formatProbability } from "@/lib/format";
 import type { ArmReview, BoundaryRow, LookReview, Review, SafetyReview } from "@/lib/review/compute-review";
 
 type Shade = { lower: number; upper: number };
@@ -34,14 +36,25 @@ export function interpolateDensity(p: number[], density: number[], x: number): n
 }
 
 const ARM_COLOURS = [CAIRN_COLOURS.posterior, CAIRN_COLOURS.control];
+const RATE_AXIS = "Response rate (proportion, 0 to 1)";
+const TABLE_STEP = 0.05;
+const stepNote = `Every ${TABLE_STEP} of the rate; the chart draws the full grid.`;
+const p3 = (v: number) => v.toFixed(3);
+const interval = (i: { lower: number; upper: number }) => `${p3(i.lower)} to ${p3(i.upper)}`;
+
+/** A table of several curves that share one x grid, sampled every TABLE_STEP. */
+function curveTable(xHeader: string, xs: number[], curves: { header: string; y: number[] }[], decimals = 3) {
+  return { columns: [xHeader, ...curves.map((c) => c.header)], rows: sampleIndices(xs, TABLE_STEP).map((i) => [xs[i].toFixed(2), ...curves.map((c) => cell(c.y[i], decimals))]), note: stepNote };
+}
 
 export function PosteriorDensityPlot({ review, band }: { review: Pick<Review, "arms" | "reference" | "credibleLevel">; band?: { armId: number; lower: number; upper: number } | null }) {
   const data: Record<string, unknown>[] = [];
+  const level = Math.round(review.credibleLevel * 100);
   review.arms.forEach((arm: ArmReview, k: number) => {
     const colour = ARM_COLOURS[k] ?? CAIRN_COLOURS.observed;
     const dens = (x: number) => interpolateDensity(arm.curves.p, arm.curves.density, x);
     const hpd = arm.summary.hpd.pieces;
-    if (!band) hpd.forEach((piece, j) => data.push({ ...shadeTrace(arm.curves.p, arm.curves.density, piece, j === 0 ? `${arm.label}: ${Math.round(review.credibleLevel * 100)}% HPD` : "", `${colour}33`, dens), showlegend: j === 0 }));
+    if (!band) hpd.forEach((piece, j) => data.push({ ...shadeTrace(arm.curves.p, arm.curves.density, piece, j === 0 ? `${arm.label}: ${level}% HPD` : "", `${colour}33`, dens), showlegend: j === 0 }));
     data.push({ x: arm.curves.p, y: arm.curves.density, type: "scatter", mode: "lines", name: `${arm.label} posterior`, line: { color: colour, width: 2 } });
     data.push({ x: arm.priorCurves.p, y: arm.priorCurves.density, type: "scatter", mode: "lines", name: `${arm.label} prior`, line: { color: colour, width: 1, dash: "dot" }, visible: "legendonly" });
     if (band && band.armId === arm.armId) data.push(shadeTrace(arm.curves.p, arm.curves.density, band, "Asked interval", `${CAIRN_COLOURS.efficacy}55`, dens));
@@ -50,12 +63,26 @@ export function PosteriorDensityPlot({ review, band }: { review: Pick<Review, "a
   if (review.reference.kind === "p0")
     shapes.push({ type: "line", x0: review.reference.value, x1: review.reference.value, yref: "paper", y0: 0, y1: 1, line: { color: CAIRN_COLOURS.futility, dash: "dash", width: 1.5 } });
   const annotations = review.reference.kind === "p0" ? [{ x: review.reference.value, yref: "paper", y: 1, text: `p0 = ${review.reference.value}`, showarrow: false, yanchor: "bottom", font: { color: CAIRN_COLOURS.futility } }] : [];
+  const summary =
+    review.arms.map((a) => `${a.label}: ${a.responders} responders of ${a.evaluable} evaluable, posterior mean ${p3(a.summary.mean)}, ${level}% HPD ${a.summary.hpd.pieces.map(interval).join(" and ")}.`).join(" ") +
+    (review.reference.kind === "p0" ? ` Dashed line: p0 = ${review.reference.value}.` : "") +
+    (band ? ` Shaded: the asked interval ${p3(band.lower)} to ${p3(band.upper)}.` : "");
+  const numbers = curveTable(
+    "Response rate",
+    review.arms[0].curves.p,
+    review.arms.flatMap((a) => [
+      { header: `${a.label} posterior density`, y: a.curves.density },
+      { header: `${a.label} prior density`, y: a.priorCurves.density },
+    ]),
+  );
   return (
     <CairnPlot
       title="Posterior density of the response rate"
+      summary={summary}
+      numbers={numbers}
       fileName="posterior-density"
       data={data as never}
-      layout={{ xaxis: { title: { text: "Response rate" }, range: [0, 1] }, yaxis: { title: { text: "Density" }, rangemode: "tozero" }, shapes: shapes as never, annotations: annotations as never }}
+      layout={{ xaxis: probabilityAxis(RATE_AXIS), yaxis: densityAxis(), shapes: shapes as never, annotations: annotations as never }}
     />
   );
 }
@@ -63,7 +90,19 @@ export function PosteriorDensityPlot({ review, band }: { review: Pick<Review, "a
 export function CumulativePlot({ review }: { review: Pick<Review, "arms" | "reference"> }) {
   const data = review.arms.map((arm, k) => ({ x: arm.curves.p, y: arm.curves.cdf, type: "scatter" as const, mode: "lines" as const, name: `${arm.label}: P(rate ≤ x)`, line: { color: ARM_COLOURS[k] ?? CAIRN_COLOURS.observed, width: 2 } }));
   const shapes = review.reference.kind === "p0" ? [{ type: "line", x0: review.reference.value, x1: review.reference.value, yref: "paper", y0: 0, y1: 1, line: { color: CAIRN_COLOURS.futility, dash: "dash", width: 1.5 } }] : [];
-  return <CairnPlot title="Posterior cumulative distribution" fileName="posterior-cumulative" data={data} layout={{ xaxis: { title: { text: "Response rate" }, range: [0, 1] }, yaxis: { title: { text: "Cumulative probability" }, range: [0, 1] }, shapes: shapes as never }} />;
+  const summary =
+    review.arms.map((a) => `${a.label}: median ${p3(a.summary.median)}, ${Math.round(a.summary.level * 100)}% equal-tailed interval ${interval(a.summary.equalTailed)}.`).join(" ") +
+    (review.reference.kind === "p0" ? ` Dashed line: p0 = ${review.reference.value}.` : "");
+  return (
+    <CairnPlot
+      title="Posterior cumulative distribution"
+      summary={summary}
+      numbers={curveTable("Response rate x", review.arms[0].curves.p, review.arms.map((a) => ({ header: `${a.label}: P(rate ≤ x)`, y: a.curves.cdf })))}
+      fileName="posterior-cumulative"
+      data={data}
+      layout={{ xaxis: probabilityAxis(RATE_AXIS), yaxis: probabilityAxis("Cumulative probability (0 to 1)", {}, 0, 1, 0.2), shapes: shapes as never }}
+    />
+  );
 }
 
 export function PredictiveOverLooksPlot({ history, ruleKind, futilityThreshold, efficacyThreshold }: { history: LookReview[]; ruleKind: "predictive" | "posterior" | "uncertainStandard"; futilityThreshold: number; efficacyThreshold: number | null }) {
@@ -75,7 +114,18 @@ export function PredictiveOverLooksPlot({ history, ruleKind, futilityThreshold, 
     { x, y: x.map(() => futilityThreshold), type: "scatter", mode: "lines", name: `Futility threshold ${futilityThreshold}`, line: { color: CAIRN_COLOURS.futility, dash: "dash" } },
   ];
   if (efficacyThreshold !== null) data.push({ x, y: x.map(() => efficacyThreshold), type: "scatter", mode: "lines", name: `Efficacy threshold ${efficacyThreshold}`, line: { color: CAIRN_COLOURS.efficacy, dash: "dash" } });
-  return <CairnPlot title={`${label} at each look`} fileName="predictive-over-looks" data={data as never} layout={{ yaxis: { title: { text: "Probability" }, range: [0, 1.02] } }} />;
+  const last = history[history.length - 1];
+  const summary = `${label} at each of ${history.length} look${history.length === 1 ? "" : "s"}${last ? `; at look ${last.lookNumber} (n = ${last.n}) it is ${formatProbability(y[y.length - 1])}` : ""}. Futility threshold ${futilityThreshold}${efficacyThreshold !== null ? `, efficacy threshold ${efficacyThreshold}` : ""}.`;
+  return (
+    <CairnPlot
+      title={`${label} at each look`}
+      summary={summary}
+      numbers={{ columns: ["Look", "Evaluable patients", label], rows: history.map((h, i) => [h.lookNumber, h.n, cell(y[i])]) }}
+      fileName="predictive-over-looks"
+      data={data as never}
+      layout={{ xaxis: { title: { text: "Look (evaluable patients)" }, automargin: true }, yaxis: probabilityAxis("Probability (0 to 1)", {}, 0, 1.02, 0.2) }}
+    />
+  );
 }
 
 export function BoundaryPlot({ boundaries, observedPath, observedBoundaries = [], twoArms }: { boundaries: BoundaryRow[]; observedPath: Review["observedPath"]; observedBoundaries?: Review["observedBoundaries"]; twoArms: boolean }) {
@@ -88,12 +138,22 @@ export function BoundaryPlot({ boundaries, observedPath, observedBoundaries = []
     { x: observedBoundaries.map((o) => o.n), y: observedBoundaries.map((o) => o.futilityMax), type: "scatter", mode: "markers", name: "Futility at the observed n", marker: { color: CAIRN_COLOURS.futility, size: 11, symbol: "triangle-down-open", line: { width: 2 } } },
     { x: observedBoundaries.map((o) => o.n), y: observedBoundaries.map((o) => o.efficacyMin), type: "scatter", mode: "markers", name: "Efficacy / success at the observed n", marker: { color: CAIRN_COLOURS.efficacy, size: 11, symbol: "triangle-up-open", line: { width: 2 } } },
   ];
+  const maxN = Math.max(1, ...n, ...observedPath.map((o) => o.n));
+  const maxY = Math.max(1, ...boundaries.map((b) => Math.max(b.futilityMax ?? 0, b.efficacyMin ?? 0)), ...observedPath.map((o) => o.responders));
+  const lastSeen = observedPath[observedPath.length - 1];
+  const summary = `Responder counts that stop the trial at each of ${boundaries.length} planned looks (steps), with the observed path${twoArms ? " of the experimental arm" : ""}${lastSeen ? `: ${lastSeen.responders} responders of ${lastSeen.n} evaluable at look ${lastSeen.lookNumber}` : ""}.`;
+  const perArm = twoArms ? " per arm" : "";
   return (
     <CairnPlot
       title="Stopping boundaries and the observed path"
+      summary={summary}
+      numbers={{
+        columns: [`Evaluable patients${perArm}`, "Futility: stop at or below", "Efficacy / success: at or above", "Observed responders"],
+        rows: boundaries.map((b) => [b.n, b.futilityMax ?? "none", b.efficacyMin ?? "none", observedPath.find((o) => o.n === b.n)?.responders ?? null]),
+      }}
       fileName="boundary-chart"
       data={data as never}
-      layout={{ xaxis: { title: { text: twoArms ? "Evaluable patients per arm" : "Evaluable patients" }, rangemode: "tozero" }, yaxis: { title: { text: "Cumulative responders" }, rangemode: "tozero" } }}
+      layout={{ xaxis: countAxis(`Evaluable patients${perArm} (count)`, maxN), yaxis: countAxis("Cumulative responders (count)", maxY) }}
     />
   );
 }
@@ -103,12 +163,15 @@ export function DifferencePlot({ grid, delta }: { grid: { d: number[]; density: 
     { x: grid.d, y: grid.density, type: "scatter" as const, mode: "lines" as const, name: "Posterior of pT − pC", line: { color: CAIRN_COLOURS.posterior, width: 2 } },
     shadeTrace(grid.d, grid.density, { lower: delta, upper: 1 }, `pT − pC > ${delta}`, `${CAIRN_COLOURS.efficacy}33`, (x) => interpolateDensity(grid.d.map((v) => v + 1), grid.density, x + 1)),
   ];
+  const peak = grid.density.reduce((best, v, i) => (v > grid.density[best] ? i : best), 0);
   return (
     <CairnPlot
       title="Posterior density of the difference in response rates"
+      summary={`Density of the experimental minus the control response rate; highest near ${grid.d[peak]?.toFixed(2)}. Shaded: differences above ${delta}.`}
+      numbers={curveTable("Difference pT − pC", grid.d, [{ header: "Posterior density", y: grid.density }])}
       fileName="difference-density"
       data={data}
-      layout={{ xaxis: { title: { text: "Experimental minus control" }, range: [-1, 1] }, yaxis: { title: { text: "Density" }, rangemode: "tozero" }, shapes: [{ type: "line", x0: delta, x1: delta, yref: "paper", y0: 0, y1: 1, line: { color: CAIRN_COLOURS.futility, dash: "dash" } }] as never }}
+      layout={{ xaxis: probabilityAxis("Experimental minus control response rate (difference of proportions)", {}, -1, 1, 0.2), yaxis: densityAxis("Density (per unit of difference)"), shapes: [{ type: "line", x0: delta, x1: delta, yref: "paper", y0: 0, y1: 1, line: { color: CAIRN_COLOURS.futility, dash: "dash" } }] as never }}
     />
   );
 }
@@ -122,9 +185,11 @@ export function ToxicityPlot({ safety }: { safety: SafetyReview }) {
   return (
     <CairnPlot
       title="Posterior density of the toxicity rate"
+      summary={`${safety.toxicities} with toxicity among ${safety.treated} treated; posterior mean ${p3(safety.summary.mean)}. Shaded: rates above ${safety.qmax}, probability ${formatProbability(safety.probAboveLimit)}.`}
+      numbers={curveTable("Toxicity rate", safety.curves.p, [{ header: "Posterior density", y: safety.curves.density }])}
       fileName="toxicity-posterior"
       data={data}
-      layout={{ xaxis: { title: { text: "Toxicity rate" }, range: [0, 1] }, yaxis: { title: { text: "Density" }, rangemode: "tozero" }, shapes: [{ type: "line", x0: safety.qmax, x1: safety.qmax, yref: "paper", y0: 0, y1: 1, line: { color: CAIRN_COLOURS.safety, dash: "dash" } }] as never }}
+      layout={{ xaxis: probabilityAxis("Toxicity rate (proportion, 0 to 1)"), yaxis: densityAxis(), shapes: [{ type: "line", x0: safety.qmax, x1: safety.qmax, yref: "paper", y0: 0, y1: 1, line: { color: CAIRN_COLOURS.safety, dash: "dash" } }] as never }}
     />
   );
 }

@@ -224,10 +224,20 @@ function WhatIfPlot({ boundaries, observedPath, answer, twoArms }: { boundaries:
     data.push({ x: [answer.boundary.n], y: [answer.boundary.futilityMax], type: "scatter", mode: "markers", name: "Futility at the supposed n", marker: { color: CAIRN_COLOURS.futility, size: 11, symbol: "triangle-down-open", line: { width: 2 } } });
     data.push({ x: [answer.boundary.n], y: [answer.boundary.efficacyMin], type: "scatter", mode: "markers", name: "Efficacy / success at the supposed n", marker: { color: CAIRN_COLOURS.efficacy, size: 11, symbol: "triangle-up-open", line: { width: 2 } } });
   }
+  const summary = answer
+    ? `Observed ${observedPath.at(-1)?.responders ?? 0} responders of ${observedPath.at(-1)?.n ?? 0}; supposed ${answer.to.responders} of ${answer.to.n}, against futility at or below ${formatBoundary(answer.boundary.futilityMax)} and efficacy at or above ${formatBoundary(answer.boundary.efficacyMin)} at n = ${answer.boundary.n}.`
+    : `The planned boundaries and the observed path; type counts above to draw a supposed next step.`;
+  const numbers = {
+    columns: ["Evaluable patients", "Futility: stop at or below", "Efficacy / success: at or above"],
+    rows: boundaries.map((b) => [b.n, b.futilityMax, b.efficacyMin]),
+    note: answer ? `Supposed path: ${answer.from.responders} of ${answer.from.n} to ${answer.to.responders} of ${answer.to.n}.` : undefined,
+  };
   return (
     <CairnPlot
       title="Stopping boundaries with the observed path and the supposed one (dashed)"
       fileName="what-if-boundaries"
+      summary={summary}
+      numbers={numbers}
       data={data as never}
       layout={{ xaxis: { title: { text: twoArms ? "Evaluable patients per arm" : "Evaluable patients" }, rangemode: "tozero" }, yaxis: { title: { text: "Cumulative responders" }, rangemode: "tozero" } }}
     />

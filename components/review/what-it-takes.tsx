@@ -156,7 +156,6 @@ function TwoArmRegion({ look }: { look: TwoArmLookAhead }) {
     text.push(trow);
   }
   const ax = Array.from({ length: look.aheadC + 1 }, (_, i) => i);
-  const ay = Array.from({ length: look.aheadT + 1 }, (_, i) => i);
   // The edge between cells: half a count below the first successful (or efficacious) count.
   const edge = ax.map((yC) => (look.efficacyAtLeastT[yC] ?? look.aheadT + 1) - 0.5);
   const edgeX = [-0.5, ...ax, look.aheadC + 0.5];
@@ -167,27 +166,24 @@ function TwoArmRegion({ look }: { look: TwoArmLookAhead }) {
       title={`Outcome region ${look.final ? "at the final analysis" : `at the look at ${look.n} per arm`} over the responders still to come`}
       fileName={`what-it-takes-region-${look.n}`}
       height={380}
+      summary={`For each number of control responders still to come (0 to ${look.aheadC}), the fewest experimental responders among the ${look.aheadT} still to come that give ${look.final ? "success" : "efficacy"}; with the control arm at its observed rate (${look.expectedControl} more), that is ${formatBoundary(look.efficacyAtLeastT[look.expectedControl])}.`}
+      numbers={{
+        columns: ["Control responders still to come", `Experimental needed for ${look.final ? "success" : "efficacy"} (at least)`, "Futility (at most)"],
+        rows: look.efficacyAtLeastT.map((eff, yC) => [yC, eff, look.futilityAtMostT[yC]]),
+      }}
       data={
         [
-          {
-            type: "heatmap",
-            x: ax,
-            y: ay,
-            z,
-            text,
-            hovertemplate: "control +%{x}, experimental +%{y}: %{text}<extra></extra>",
-            zmin: 0,
-            zmax: 2,
-            showscale: false,
-            colorscale: [
-              [0, `${CAIRN_COLOURS.futility}55`],
-              [0.33, `${CAIRN_COLOURS.futility}55`],
-              [0.34, "#f5f3ee"],
-              [0.66, "#f5f3ee"],
-              [0.67, `${CAIRN_COLOURS.efficacy}66`],
-              [1, `${CAIRN_COLOURS.efficacy}66`],
-            ],
-          },
+          // One square per cell, a trace per outcome (the partial chart bundle has no heatmap).
+          ...[0, 1, 2].map((v) => {
+            const xs: number[] = [];
+            const ys: number[] = [];
+            for (let yT = 0; yT <= look.aheadT; yT++) for (let yC = 0; yC <= look.aheadC; yC++) if (z[yT][yC] === v) {
+                  xs.push(yC);
+                  ys.push(yT);
+                }
+            const fill = v === 0 ? `${CAIRN_COLOURS.futility}55` : v === 2 ? `${CAIRN_COLOURS.efficacy}66` : "#e7e3da";
+            return { x: xs, y: ys, type: "scatter", mode: "markers", name: words[v] || "continue", marker: { symbol: "square", color: fill, size: Math.max(4, Math.min(18, 300 / Math.max(look.aheadC + 1, look.aheadT + 1))) }, hovertemplate: `control +%{x}, experimental +%{y}: ${words[v] || "continue"}<extra></extra>` };
+          }),
           ...(anyEdge ? [{ x: edgeX, y: edgeY, type: "scatter", mode: "lines", name: look.final ? "Success: at or above" : "Efficacy: at or above", line: { color: CAIRN_COLOURS.efficacy, shape: "hvh", width: 2 }, hoverinfo: "skip" }] : []),
           { x: [look.expectedControl], y: [look.efficacyAtLeastT[look.expectedControl]], type: "scatter", mode: "markers", name: "Control at its observed rate", marker: { color: CAIRN_COLOURS.observed, size: 10, symbol: "diamond" } },
         ] as never

@@ -2,14 +2,16 @@ import type { ReactNode } from "react";
 
 export function Card({ title, actions, children, className = "" }: { title?: ReactNode; actions?: ReactNode; children: ReactNode; className?: string }) {
   return (
-    <section className={`rounded-card border border-stone-200 bg-white p-5 shadow-[0_1px_0_rgba(0,0,0,0.03)] ${className}`}>
+    <section className={`min-w-0 rounded-card border border-stone-200 bg-white p-5 shadow-[0_1px_0_rgba(0,0,0,0.03)] ${className}`}>
       {title || actions ? (
         <header className="mb-3 flex items-center justify-between gap-3">
           {title ? <h2 className="text-lg font-semibold text-stone-800">{title}</h2> : <span />}
           {actions}
         </header>
       ) : null}
-      {children}
+      {/* Wide tables and grids scroll inside the card, so the page itself reflows at 320 px (WCAG 1.4.10);
+          relative, so visually hidden text inside is clipped here too rather than widening the page. */}
+      <div className="relative -m-1.5 min-w-0 overflow-x-auto p-1.5">{children}</div>
     </section>
   );
 }

@@ -4,12 +4,15 @@ import type { InputHTMLAttributes, ReactNode, SelectHTMLAttributes, TextareaHTML
 export function Field({
   label,
   name,
+  id,
   error,
   hint,
   children,
 }: {
   label: string;
   name: string;
+  /** The control's id when it is not its name. */
+  id?: string;
   error?: string | string[];
   hint?: string;
   children: ReactNode;
@@ -17,7 +20,7 @@ export function Field({
   const msg = Array.isArray(error) ? error[0] : error;
   return (
     <div className="flex flex-col gap-1">
-      <label htmlFor={name} className="text-sm font-medium text-stone-700">
+      <label htmlFor={id ?? name} className="text-sm font-medium text-stone-700">
         {label}
       </label>
       {children}
@@ -29,16 +32,18 @@ export function Field({
   );
 }
 
+/** Full width of its column unless a width is given, and allowed to shrink, so forms reflow at 320 px. */
+const width = (className: string) => (/(^|\s)w-/.test(className) ? "" : "w-full min-w-0");
 const INPUT = "rounded-md border border-stone-300 bg-white px-3 py-2 text-sm text-stone-900 placeholder:text-stone-400 focus:border-lichen-600 aria-[invalid=true]:border-berry-600";
 
 export function TextInput({ invalid, className = "", ...rest }: InputHTMLAttributes<HTMLInputElement> & { invalid?: boolean }) {
-  return <input className={`${INPUT} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;
+  return <input className={`${INPUT} ${width(className)} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;
 }
 
 export function SelectInput({ invalid, className = "", ...rest }: SelectHTMLAttributes<HTMLSelectElement> & { invalid?: boolean }) {
-  return <select className={`${INPUT} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;
+  return <select className={`${INPUT} ${width(className)} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;
 }
 
 export function TextArea({ invalid, className = "", ...rest }: TextareaHTMLAttributes<HTMLTextAreaElement> & { invalid?: boolean }) {
-  return <textarea className={`${INPUT} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;
+  return <textarea className={`${INPUT} ${width(className)} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;
 }

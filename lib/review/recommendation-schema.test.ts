@@ -4,7 +4,7 @@ import { recommendationSchema } from "./recommendation-schema";
 describe("recommendation input", () => {
   it("accepts a first recommendation and turns an empty correction field into null", () => {
     const r = recommendationSchema.parse({ decision: "continue", rationale: "  No concerns at this look.  ", correctsId: "", password: "x" });
-    expect(r).toEqual({ decision: "continue", rationale: "No concerns at this look.", correctsId: null, password: "x" });
+    expect(r).toEqual({ decision: "continue", rationale: "No concerns at this look.", correctsId: null, meetingId: null, dissent: null, password: "x" });
   });
   it("accepts a correction that names the entry it corrects", () => {
     expect(recommendationSchema.parse({ decision: "stop_safety", rationale: "Corrected after the safety listing.", correctsId: "12", password: "x" }).correctsId).toBe(12);

@@ -79,7 +79,11 @@ test("a statistician runs a two-arm threshold search, reads the chart and the ta
 
   // The chart comes first, titled, with its axes in words and units.
   const chart = search.getByRole("figure", { name: SEARCH_WORDS.cloudTitle });
-  await expect(search.getByRole("heading", { name: SEARCH_WORDS.cloudTitle })).toBeVisible();
+  // Its title is visible in the chart frame (components/charts/chart-figure.tsx), with a summary and the numbers.
+  await expect(chart.locator("[data-chart-title]")).toHaveText(SEARCH_WORDS.cloudTitle);
+  await expect(chart.locator("[data-chart-summary]")).toContainText(`${expected.evaluated} threshold sets give`);
+  await expect(chart.locator("[data-chart-summary]")).toContainText(`${expected.feasible} threshold sets meet both`);
+  expect(await chart.locator("[data-chart-numbers] tbody tr").count()).toBeGreaterThan(0);
   await expect(chart.locator(".xtitle")).toHaveText("Type I error, largest on the null boundary (probability, 0 to 1)");
   await expect(chart.locator(".ytitle")).toHaveText("Power at the alternative (probability, 0 to 1)");
 

@@ -25,7 +25,7 @@ async function openLook(page: Page, code: string, look: number) {
 }
 
 async function goToLook(page: Page, look: number) {
-  const href = await page.getByRole("link", { name: `Look ${look}`, exact: true }).getAttribute("href");
+  const href = await page.getByRole("link", { name: new RegExp(`^(Start|Enter data|View): look ${look}$`) }).getAttribute("href");
   expect(href).toMatch(/\/analyses\/\d+$/);
   await page.goto(href!);
   await expect(page.getByRole("heading", { name: `Look ${look}` })).toBeVisible();
@@ -235,7 +235,7 @@ test("the audit trail: the statistician sees the closed count entries in their o
   await expect(grid.getByText("counts_entered").first()).toBeVisible();
   // Chicago in late 2026: UTC-06:00 (CST) after the first Sunday of November.
   await expect(grid.getByText(/2026-\d\d-\d\d \d\d:\d\d:\d\d -0[56]:00/).first()).toBeVisible();
-  await page.getByLabel("Filter by action").selectOption("analysis_locked");
+  await page.getByLabel("Action", { exact: true }).selectOption("analysis_locked");
   await expect(grid.getByText("counts_entered")).toHaveCount(0);
   await stat.close();
 

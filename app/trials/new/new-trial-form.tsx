@@ -5,6 +5,7 @@ import type { NewTrialFormState } from "@/lib/design/trial-schema";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
+import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
 const initial: NewTrialFormState = {};
 
@@ -15,6 +16,7 @@ export function NewTrialForm() {
   const [designType, setDesignType] = useState<"single" | "two">((v.designType as "single" | "two") ?? "single");
   return (
     <form action={action} className="flex flex-col gap-4" aria-label="New trial" noValidate>
+      <FocusFirstInvalid after={state} />
       {state.error ? <Banner tone="danger">{state.error}</Banner> : null}
       <div className="grid gap-4 sm:grid-cols-2">
         <Field label="Trial code" name="code" error={fe.code} hint="Short and unique, e.g. CRN-410.">

@@ -11,6 +11,10 @@ import { STATUS_TONES } from "@/components/analyses/status";
 
 export const metadata: Metadata = { title: "Interim data" };
 
+function lookVerb(status: string): string {
+  return status === "planned" ? "Start" : status === "open" ? "Enter data" : "View";
+}
+
 export default async function AnalysesPage({ params }: { params: Promise<{ trialId: string }> }) {
   const trialId = parseId((await params).trialId);
   const { trial } = await authorizePage(trialId, "enterData");
@@ -49,8 +53,9 @@ export default async function AnalysesPage({ params }: { params: Promise<{ trial
                 </td>
                 <td>{l.amendment_count}</td>
                 <td>
-                  <Link href={`/trials/${trial.id}/analyses/${l.id}`} aria-label={`Look ${l.look_number}`}>
-                    {l.status === "planned" ? "Start" : l.status === "open" ? "Enter data" : "View"}
+                  {/* The accessible name starts with the visible word (WCAG 2.5.3) and says which look. */}
+                  <Link href={`/trials/${trial.id}/analyses/${l.id}`} aria-label={`${lookVerb(l.status)}: look ${l.look_number}`}>
+                    {lookVerb(l.status)}
                   </Link>
                 </td>
               </tr>
