@@ -184,11 +184,19 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
    */
   const boundsByU = Array.from({ length: nU }, () => new Float64Array(nR).fill(Infinity));
   const boundsPrevU = new Float64Array(nR).fill(Infinity);
+  /*
+   * The same holds along thetaT: a higher thetaT shrinks the final success set, so every PP (an
+   * average of final success indicators) can only fall, the futility sets grow and the efficacy
+   * sets shrink. So the values at the previous thetaT (same thetaL, thetaU) bound this point too.
+   * boundsByT[slot] holds them; boundsTFor is the thetaT they were computed at (NaN: none).
+   */
+  const boundsByT = Array.from({ length: nL * nU }, () => new Float64Array(nR).fill(Infinity));
+  const boundsTFor = new Float64Array(nL * nU).fill(NaN);
   const computed = new Uint8Array(nR);
   const rateOrder = Array.from({ length: nR }, (_, r) => r);
 
   /** One grid point on the boundaries in fMax / eMin (futility rows already cut for thetaL). */
-  const searchPoint = (iL: number, iU: number, thetaL: number, thetaU: number | null): PointResult => {
+  const searchPoint = (thetaT: number, iL: number, iU: number, thetaL: number, thetaU: number | null): PointResult => {
     for (let k = 0; k < K - 1; k++) {
       const table = stats[k];
       const row = eMin[k];
@@ -198,9 +206,11 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
     // Upper bounds on this point's null-boundary rates, from the previous thetaL (same thetaU) and the previous thetaU (same thetaL).
     const fromL = iL > 0 && thetaL >= thetaLGrid[iL - 1] ? boundsByU[iU] : null;
     const fromU = iU > 0 && thetaU !== null && thetaUGrid && thetaU >= thetaUGrid[iU - 1] ? boundsPrevU : null;
+    const slot = iL * nU + iU;
+    const fromT = thetaT >= boundsTFor[slot] ? boundsByT[slot] : null;
     const bound = boundsByU[iU];
     for (let r = 0; r < nR; r++) {
-      const b = Math.min(fromL ? fromL[r] : Infinity, fromU ? fromU[r] : Infinity);
+      const b = Math.min(fromL ? fromL[r] : Infinity, fromU ? fromU[r] : Infinity, fromT ? fromT[r] : Infinity);
       bound[r] = b;
       computed[r] = 0;
     }
@@ -221,6 +231,8 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
       visit(r);
     }
     boundsPrevU.set(bound);
+    boundsByT[slot].set(bound);
+    boundsTFor[slot] = thetaT;
     return { t1e: atNull[maxAt].declareSuccess, maxAt, alt, at0: atNull[nullIndex >= 0 ? nullIndex : maxAt] };
   };
   let stats: Float64Array[][] = [];
@@ -259,6 +271,7 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
         if (thetaU !== null && !(thetaU > thetaL)) {
           boundsByU[iU].fill(Infinity);
           boundsPrevU.fill(Infinity);
+          boundsTFor[iL * nU + iU] = NaN;
           continue;
         }
         const slot = iL * nU + iU;
@@ -273,7 +286,7 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
             }
             haveFutility = true;
           }
-          result = shared[slot] = searchPoint(iL, iU, thetaL, thetaU);
+          result = shared[slot] = searchPoint(thetaT, iL, iU, thetaL, thetaU);
         }
         const { t1e, maxAt, alt, at0 } = result;
         const idx = (iT * nL + iL) * nU + iU;
