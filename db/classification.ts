@@ -54,6 +54,10 @@ export const FREE_TEXT: Record<string, TextClass> = {
   "password_links.token_sha256": "secret",
   "patient_outcomes.subject_id": "closed",
   "recommendations.rationale": "closed",
+  // The kept closed review of a locked look (arm-level results) and the hash of its closed inputs.
+  "review_cache.engine_version": "closed",
+  "review_cache.input_sha256": "closed",
+  "review_cache.review_json": "closed",
   // The reason a locked look was reopened may describe the data that needed correcting.
   "analyses.reopen_reason": "closed",
   "signatures.signer_name": "open",
@@ -102,6 +106,7 @@ export const BLINDED_READS: Record<string, "all" | "none" | readonly string[]> =
   password_links: "none",
   packets_open: "all",
   patient_outcomes: "none",
+  review_cache: "none",
   recommendations: ["id", "trial_id", "analysis_id", "review_version", "decision", "corrects_id", "signature_id", "created_by", "created_at"],
   signatures: ["id", "user_id", "signer_name", "signer_email", "meaning", "entity_type", "entity_id", "signed_at", "hash_scheme"],
   sign_in_failures: "none",
