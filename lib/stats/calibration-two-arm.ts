@@ -202,7 +202,7 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
       const row = eMin[k];
       for (let xC = 0; xC < table.length; xC++) row[xC] = thetaU !== null ? efficacyBottom(table[xC], thetaU) : table[xC].length;
     }
-    const alt = recursion.run(fMax, eMin, altIncT, altIncC);
+    const alt = recursion.run(fMax, eMin, altIncT, altIncC, false);
     // Upper bounds on this point's null-boundary rates, from the previous thetaL (same thetaU) and the previous thetaU (same thetaL).
     const fromL = iL > 0 && thetaL >= thetaLGrid[iL - 1] ? boundsByU[iU] : null;
     const fromU = iU > 0 && thetaU !== null && thetaUGrid && thetaU >= thetaUGrid[iU - 1] ? boundsPrevU : null;
@@ -217,7 +217,7 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
     const order = rateOrder.sort((u, v) => bound[v] - bound[u]);
     let maxAt = -1;
     const visit = (r: number) => {
-      atNull[r] = recursion.run(fMax, eMin, nullIncT[r], nullIncC[r]);
+      atNull[r] = recursion.run(fMax, eMin, nullIncT[r], nullIncC[r], false);
       computed[r] = 1;
       bound[r] = atNull[r].declareSuccess;
       const v = atNull[r].declareSuccess;

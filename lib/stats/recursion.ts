@@ -167,6 +167,7 @@ export class JointRecursion {
   private hi: Int32Array;
   private nlo: Int32Array;
   private nhi: Int32Array;
+  private suffix: Float64Array;
   readonly out: LookArrays;
   constructor(
     private readonly looks: number[],
@@ -181,6 +182,7 @@ export class JointRecursion {
     this.hi = new Int32Array(this.S);
     this.nlo = new Int32Array(this.S);
     this.nhi = new Int32Array(this.S);
+    this.suffix = new Float64Array(this.S + 1);
     this.out = lookArrays(looks.length);
   }
 
@@ -188,9 +190,10 @@ export class JointRecursion {
    * @param fMax - per look, per control count: largest xT that stops for futility (-1: none); final look: largest xT without success
    * @param eMin - per look, per control count: smallest xT that stops for efficacy (n + 1: none); final look: smallest xT with success
    * @param incT, incC - per look, the binomial increments of each arm since the previous look
-   * Per-look probabilities are left in `this.out`.
+   * Per-look probabilities are left in `this.out` (P(continuing) only with `withContinuing`; the
+   * calibrations, which need the summary alone, skip that sum).
    */
-  run(fMax: ArrayLike<number>[], eMin: ArrayLike<number>[], incT: Float64Array[], incC: Float64Array[]): RecursionSummary {
+  run(fMax: ArrayLike<number>[], eMin: ArrayLike<number>[], incT: Float64Array[], incC: Float64Array[], withContinuing = true): RecursionSummary {
     const { S, looks, rows, out } = this;
     let cur = this.cur;
     let nxt = this.nxt;
@@ -224,6 +227,38 @@ export class JointRecursion {
           const d = base + xT;
           for (let y = 0; y <= g; y++) rows[d + y] += v * it[y];
         }
+      }
+      if (k === last) {
+        // The final analysis needs only P(success) and P(no success): each row's mass from a count
+        // xT up (suffix sums) times the control increment that lands it on a row where xT succeeds,
+        // instead of spreading the whole square down the columns first.
+        const fk = fMax[k];
+        const ek = eMin[k];
+        const sfx = this.suffix;
+        let ef = 0;
+        let total = 0;
+        for (let xC = cLo; xC <= cHi; xC++) {
+          const a = lo[xC];
+          if (a > hi[xC]) continue;
+          const b = hi[xC] + g;
+          const base = xC * S;
+          sfx[b + 1] = 0;
+          for (let xT = b; xT >= a; xT--) sfx[xT] = sfx[xT + 1] + rows[base + xT];
+          const rowMass = sfx[a];
+          for (let y = 0; y <= g; y++) {
+            const c = ic[y];
+            if (c === 0) continue;
+            total += c * rowMass;
+            const x2 = xC + y;
+            // Futility is checked first: success needs xT above fMax and at least eMin.
+            const e = ek[x2] > fk[x2] ? ek[x2] : fk[x2] + 1;
+            if (e <= a) ef += c * rowMass;
+            else if (e <= b) ef += c * sfx[e];
+          }
+        }
+        out.fut[k] = total - ef;
+        out.eff[k] = ef;
+        break;
       }
       // New enrolling ranges: row xC' collects rows xC' - g .. xC'.
       const ncLo = cLo;
@@ -289,19 +324,15 @@ export class JointRecursion {
         lo[xC] = a;
         hi[xC] = b;
         if (a <= b) {
-          for (let xT = a; xT <= b; xT++) rest += cur[base + xT];
+          if (withContinuing) for (let xT = a; xT <= b; xT++) rest += cur[base + xT];
           if (first < 0) first = xC;
           lastAlive = xC;
         }
       }
-      if (k === last) {
-        out.fut[k] = fut + rest;
-        out.eff[k] = ef;
-      } else {
-        out.fut[k] = fut;
-        out.eff[k] = ef;
-        out.cont[k] = rest;
-      }
+      // (The final look was booked above.)
+      out.fut[k] = fut;
+      out.eff[k] = ef;
+      out.cont[k] = rest;
       if (first < 0) break;
       cLo = first;
       cHi = lastAlive;
