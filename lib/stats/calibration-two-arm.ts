@@ -5,15 +5,17 @@
  * least the target, the designs with the smallest expected per-arm sample size at the null point.
  *
  * What depends on what:
- * - the final success table (twoArmFinalRule) depends on thetaT only; the predictive tables of the
- *   interim looks (twoArmPredictiveTableAtLook) depend on the final table, so both are built once per
- *   distinct final table (many thetaT values share one) and cached across calls, so a job that splits
- *   one thetaT into several slices still builds them once;
+ * - the final success table depends on thetaT only: its walk (as twoArmFinalRule) reads the
+ *   difference integrals P(pT - pC > delta | xT, xC of N), each evaluated once per call and kept
+ *   (FinalProbabilities); the PP tables of all interim looks come from one backward pass
+ *   (twoArmPredictiveTablesBackward). Both are built once per distinct final table and cached
+ *   across calls, so a job that splits one thetaT into several slices still builds them once, and
+ *   thetaT values with the same final table share every grid point's result;
  * - the posterior-probability rules' interim statistic P(pT - pC > delta | xT, xC) depends on no
  *   threshold and is tabulated once per call;
- * - a (thetaL, thetaU) pair only cuts boundaries out of those tables, and the exact recursion over
- *   the joint (xT, xC) counts is then run once per rate pair, on the part of the square that is still
- *   enrolling (stopped counts are dropped, so later looks cost less).
+ * - a (thetaL, thetaU) pair only cuts boundaries out of those tables (by bisection: the statistic is
+ *   monotone in xT), and the exact recursion over the joint (xT, xC) counts (lib/stats/recursion.ts)
+ *   is then run once per rate pair, on the part of the square that is still enrolling.
  * The recursion is the same arithmetic as exactTwoArmOperatingCharacteristics (futility is checked
  * before efficacy at a count both would stop); calibration-two-arm.test.ts checks the best designs
  * against twoArmTypeIErrorAndPower on the chosen thresholds.
