@@ -50,6 +50,8 @@ export type DesignRow = {
   created_by: number | null;
   created_at: Date;
   locked_at: Date | null;
+  /** The DMC's quorum written in this (charter) version; null when none was written. */
+  dmc_quorum?: number | null;
 };
 
 /** Open information about a look: safe for every role on the trial. */
@@ -80,6 +82,8 @@ export type ArmCountRow = {
   treated: number | null;
   /** Patients evaluable for response: the response rule's denominator. */
   evaluable: number;
+  /** Enrolled, will be evaluable, response not yet known at the cut-off (0 for rows stored before the column). */
+  pending: number;
   responders: number;
   toxicities: number | null;
 };
@@ -92,6 +96,8 @@ export type PatientOutcomeRow = {
   arm_id: number;
   enrolled_on: string;
   evaluable: number | boolean;
+  /** Will be evaluable, response not yet known at the cut-off (CSV evaluable value "pending"); false when absent. */
+  outcome_pending?: number | boolean;
   responder: number | boolean | null;
   /** Evaluable for toxicity; null when the design records no toxicity. */
   treated: number | boolean | null;
@@ -175,7 +181,7 @@ export type PacketMetaRow = {
 /** CLOSED when audience is "closed": the PDF holds arm-level results. */
 export type PacketRow = PacketMetaRow & { pdf: Buffer };
 
-export type EmailKind = "packet_open" | "packet_closed_notice" | "meeting_reminder" | "password_link" | "password_changed";
+export type EmailKind = "packet_open" | "packet_closed_notice" | "meeting_reminder" | "password_link" | "password_changed" | "recommendation_letter";
 export type EmailStatus = "queued" | "sending" | "sent" | "failed";
 export type EmailMessageRow = {
   id: number;
@@ -183,6 +189,8 @@ export type EmailMessageRow = {
   trial_id: number | null;
   meeting_id: number | null;
   packet_id: number | null;
+  /** The recommendation letter a "recommendation_letter" mail carries (null otherwise). */
+  letter_id?: number | null;
   to_user_id: number | null;
   to_address: string;
   subject: string;
@@ -209,3 +217,20 @@ export type PasswordLinkRow = {
   issued_by: number | null;
   created_at: Date;
 };
+
+/** A personal API token (lib/auth/api-tokens.ts): one account, one trial, the role held there. */
+export type ApiTokenRow = {
+  id: number;
+  user_id: number;
+  trial_id: number;
+  role: TrialRole;
+  label: string;
+  token_sha256: string;
+  expires_at: Date;
+  revoked_at: Date | null;
+  created_at: Date;
+};
+
+/** A trial's DMC as its charter sets it up: the chair (who votes), voting members, the independent (non-voting) statistician. */
+export type CommitteeRole = "chair" | "voting" | "statistician";
+export type MinutesSession = "open" | "closed";

@@ -14,3 +14,19 @@ export type RecommendationDecision = (typeof RECOMMENDATION_DECISIONS)[number];
 
 export const MEETING_STATUSES = ["scheduled", "held", "cancelled"] as const;
 export type MeetingStatus = (typeof MEETING_STATUSES)[number];
+
+/**
+ * One arm's counts at one look (closed data): the record every layer passes around; the database
+ * row (analysis_arm_counts) is its snake_case form, converted once by db/queries/closed.ts.
+ * treated and toxicities are both numbers (a design with a safety rule) or both null; pending are
+ * enrolled patients whose response is not yet known at the cut-off (absent means none).
+ */
+export type ArmCounts = {
+  armId: number;
+  enrolled: number;
+  treated: number | null;
+  evaluable: number;
+  responders: number;
+  toxicities: number | null;
+  pending?: number | null;
+};

@@ -11,3 +11,7 @@ export const changePasswordSchema = z
   .refine((v) => v.newPassword !== v.currentPassword, { path: ["newPassword"], message: "Choose a password different from the current one." });
 
 export type PasswordFormState = { ok?: string; error?: string; fieldErrors?: Record<string, string[] | undefined> };
+
+/** The token form: one of the account's (trial, role) pairs as "trialId:role", a name, a lifetime. */
+export type ApiTokenFormState = { ok?: string; error?: string; fieldErrors?: Record<string, string[] | undefined>; token?: string; expiresAt?: string; trialCode?: string };
+export type RevokeFormState = { ok?: string; error?: string; fieldErrors?: Record<string, string[] | undefined> };

@@ -1,8 +1,8 @@
 "use server";
+import { formError } from "@/lib/form-action";
 import { after } from "next/server";
 import { setPasswordWithLink } from "@/lib/auth/accounts";
 import { deliverWithRetries, ensureMailWorker } from "@/lib/mail/delivery";
-import { HttpError } from "@/lib/http";
 import { setPasswordSchema } from "./schemas";
 
 export type SetPasswordState = { ok?: string; error?: string; fieldErrors?: Record<string, string[] | undefined> };
@@ -23,8 +23,7 @@ export async function setPassword(_prev: SetPasswordState, form: FormData): Prom
       // Outside a request (tests): the mail worker's sweep sends it.
     }
   } catch (e) {
-    if (e instanceof HttpError) return { error: e.message };
-    throw e;
+    return formError(e);
   }
   return { ok: "Your password is set. Sign in with your e-mail address and the new password." };
 }

@@ -4,14 +4,15 @@
  * and shows the derived counts or every problem by line and column; "Write" sends the same file
  * again, the server checks it again and writes all rows or none.
  */
+import type { ArmCounts } from "@/lib/domain";
 import { useRef, useState } from "react";
 import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { MAX_UPLOAD_BYTES, PATIENT_CSV_COLUMNS, tooLargeMessage, type ExcludedRows } from "@/lib/csv/patient-outcomes";
-import { callApi, type CsvIssueJson } from "./api-client";
+import { callApi, type CsvIssueJson } from "@/lib/api-client";
 
-type PreviewCounts = { armId: number; armLabel: string; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
+type PreviewCounts = ArmCounts & { armLabel: string };
 type Preview =
   | { ok: true; rowCount: number; includedRows: number; counts: PreviewCounts[]; cutoffDate: string; excluded: ExcludedRows }
   | { ok: false; rowCount: number; issueCount: number; issues: CsvIssueJson[]; excluded?: ExcludedRows };
@@ -64,7 +65,7 @@ export function CsvUpload({ trialId, analysisId, rowVersion, safetyRule, cutoffD
     <div className="flex flex-col gap-3" aria-label="Upload patient-level data" role="group">
       <p className="text-sm text-stone-700">
         One row per patient with the columns <code>{PATIENT_CSV_COLUMNS.join(", ")}</code> and, optionally, <code>treated</code>. Arm by its label or role; evaluable (for
-        response), response, toxicity and treated as yes/no, 1/0 or true/false; response empty for a patient who is not evaluable
+        response), response, toxicity and treated as yes/no, 1/0 or true/false; response empty for a patient who is not evaluable; evaluable <code>pending</code> (response empty) for a patient who will be evaluable but whose response is not yet known at the cut-off
         {safetyRule
           ? "; toxicity required for every treated patient and empty for one not treated (without a treated column every patient counts as treated)"
           : ""}
@@ -129,17 +130,19 @@ export function CsvUpload({ trialId, analysisId, rowVersion, safetyRule, cutoffD
                 <th>Enrolled</th>
                 <th>Evaluable for response</th>
                 <th>Responders</th>
+                {phase.preview.counts.some((c) => (c.pending ?? 0) > 0) ? <th>Pending (response not yet known)</th> : null}
                 {safetyRule ? <th>Treated (evaluable for toxicity)</th> : null}
                 {safetyRule ? <th>With toxicity</th> : null}
               </tr>
             </thead>
             <tbody>
-              {phase.preview.counts.map((c) => (
+              {phase.preview.counts.map((c, _i, all) => (
                 <tr key={c.armId}>
                   <td>{c.armLabel}</td>
                   <td>{c.enrolled}</td>
                   <td>{c.evaluable}</td>
                   <td>{c.responders}</td>
+                  {all.some((x) => (x.pending ?? 0) > 0) ? <td>{c.pending ?? 0}</td> : null}
                   {safetyRule ? <td>{c.treated ?? "—"}</td> : null}
                   {safetyRule ? <td>{c.toxicities ?? "—"}</td> : null}
                 </tr>

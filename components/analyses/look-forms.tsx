@@ -4,12 +4,13 @@
  * as an amendment. Each posts JSON to the interim data API; the row version the page was rendered
  * with travels in a hidden input, so a save over someone else's newer save is refused (409).
  */
+import type { ArmCounts } from "@/lib/domain";
 import { startTransition, useActionState, type FormEvent } from "react";
 import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { Field, TextArea, TextInput } from "@/components/ui/field";
-import { callApi, jsonInit, type ApiFailure } from "./api-client";
+import { callApi, jsonInit, type ApiFailure } from "@/lib/api-client";
 import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
 
 type FormState = { ok?: string; failure?: ApiFailure };
@@ -17,7 +18,7 @@ const initial: FormState = {};
 
 export type ArmInput = { id: number; label: string; role: string };
 /** Two denominators: evaluable (for response) and treated (evaluable for toxicity, with a safety rule only). */
-export type CountsValue = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
+export type CountsValue = ArmCounts;
 
 /**
  * Submits through the action without React's automatic form reset, so what the user typed stays in
@@ -104,6 +105,7 @@ export function CountsForm({
         enrolled: fd.get(`counts.${i}.enrolled`),
         treated: safetyRule ? fd.get(`counts.${i}.treated`) : null,
         evaluable: fd.get(`counts.${i}.evaluable`),
+        pending: fd.get(`counts.${i}.pending`),
         responders: fd.get(`counts.${i}.responders`),
         toxicities: safetyRule ? fd.get(`counts.${i}.toxicities`) : null,
       })),
@@ -123,6 +125,7 @@ export function CountsForm({
     ["enrolled", "Enrolled"],
     ["evaluable", "Evaluable for response"],
     ["responders", "Responders"],
+    ["pending", "Pending (response not yet known)"],
   ];
   if (safetyRule) cols.push(["treated", "Treated (evaluable for toxicity)"], ["toxicities", "With toxicity"]);
   return (
@@ -170,7 +173,7 @@ export function CountsForm({
       </table>
       {fe.counts ? <p className="text-xs text-berry-700">{fe.counts}</p> : null}
       <p className="text-xs text-stone-500">
-        Cumulative whole numbers at the cut-off, with responders ≤ evaluable for response ≤ enrolled{maxPerArm !== null ? ` ≤ ${maxPerArm} (the design's maximum per arm)` : ""}
+        Cumulative whole numbers at the cut-off, with responders ≤ evaluable for response ≤ enrolled; pending: enrolled patients who will be evaluable but whose response is not yet known (evaluable + pending ≤ enrolled; empty means 0){maxPerArm !== null ? ` ≤ ${maxPerArm} (the design's maximum per arm)` : ""}
         {safetyRule ? "; with toxicity ≤ treated ≤ enrolled (the safety rule counts toxicities among the treated patients)" : ""}. No count may fall below the previous locked look&apos;s.
       </p>
       {amendment > 0 ? (

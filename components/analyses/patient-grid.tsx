@@ -13,7 +13,7 @@ export function PatientGrid({ rows, fileName }: { rows: PatientJson[]; fileName:
     { field: "arm", headerName: "Arm" },
     { field: "enrolmentDate", headerName: "Enrolled on" },
     // Text, not checkboxes: an empty response (not evaluable) must not look like "no".
-    { colId: "evaluable", headerName: "Evaluable for response", cellDataType: "text", valueGetter: (p) => yesNo(p.data?.evaluable) },
+    { colId: "evaluable", headerName: "Evaluable for response", cellDataType: "text", valueGetter: (p) => (p.data?.pending ? "pending" : yesNo(p.data?.evaluable)) },
     { colId: "responder", headerName: "Response", cellDataType: "text", valueGetter: (p) => yesNo(p.data?.responder) },
     { colId: "treated", headerName: "Treated", cellDataType: "text", valueGetter: (p) => yesNo(p.data?.treated) },
     { colId: "toxicity", headerName: "Toxicity", cellDataType: "text", valueGetter: (p) => yesNo(p.data?.toxicity) },

@@ -10,6 +10,7 @@
  * designs, grouped where several threshold sets give the same operating characteristics, follows.
  * Words come from lib/design/threshold-labels.ts; the papers' symbols are small secondary notation.
  */
+import { callApi, jsonInit } from "@/lib/api-client";
 import { useEffect, useRef, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
@@ -156,11 +157,10 @@ export function CalibrationPanel({ trialId, design, onUse }: { trialId: number; 
 
   async function poll(id: string) {
     try {
-      const res = await fetch(`/api/trials/${trialId}/calibrations/${id}`);
-      const body = await res.json();
-      if (!res.ok) throw new Error(body.error ?? `The server answered ${res.status}.`);
-      setJob(body.job);
-      if (body.job.status === "running" || body.job.status === "cancelling") timer.current = setTimeout(() => poll(id), POLL_MS);
+      const r = await callApi<{ job: CalibrationJobJson }>(`/api/trials/${trialId}/calibrations/${id}`, {});
+      if (!r.ok) throw new Error(r.error);
+      setJob(r.data.job);
+      if (r.data.job.status === "running" || r.data.job.status === "cancelling") timer.current = setTimeout(() => poll(id), POLL_MS);
     } catch (e) {
       setError((e as Error).message);
     }
@@ -170,32 +170,26 @@ export function CalibrationPanel({ trialId, design, onUse }: { trialId: number; 
     setError(null);
     setErrors({});
     if (timer.current) clearTimeout(timer.current);
-    const res = await fetch(`/api/trials/${trialId}/calibrations`, {
-      method: "POST",
-      headers: { "content-type": "application/json" },
-      body: JSON.stringify({ spec: design, typeIErrorLimit: num(limit), powerTarget: num(target), thetaT: range(thetaT), thetaL: range(thetaL), thetaU: design?.rule.efficacyStopping ? range(thetaU) : null, keep: KEEP }),
-    });
-    const body = await res.json().catch(() => ({}));
-    if (!res.ok) {
-      setError(body.error ?? `The server answered ${res.status}.`);
-      if (Array.isArray(body.issues)) {
-        const e: Record<string, string> = {};
-        for (const i of body.issues as { path: string; message: string }[]) if (!(i.path in e)) e[i.path] = i.message;
-        setErrors({ ...e, ...issuesToFieldErrors(body.issues.filter((i: { path: string }) => i.path.startsWith("spec.")).map((i: { path: string; message: string }) => ({ ...i, path: i.path.slice(5) }))) });
-      }
+    const r = await callApi<{ job: CalibrationJobJson }>(
+      `/api/trials/${trialId}/calibrations`,
+      jsonInit("POST", { spec: design, typeIErrorLimit: num(limit), powerTarget: num(target), thetaT: range(thetaT), thetaL: range(thetaL), thetaU: design?.rule.efficacyStopping ? range(thetaU) : null, keep: KEEP }),
+    );
+    if (!r.ok) {
+      setError(r.error);
+      const specIssues = r.pathIssues.filter((i) => i.path.startsWith("spec.")).map((i) => ({ ...i, path: i.path.slice(5) }));
+      if (r.pathIssues.length) setErrors({ ...r.fieldErrors, ...issuesToFieldErrors(specIssues) });
       return;
     }
     setRan({ limit: num(limit), target: num(target) });
-    setJob(body.job);
-    timer.current = setTimeout(() => poll(body.job.id), POLL_MS);
+    setJob(r.data.job);
+    timer.current = setTimeout(() => poll(r.data.job.id), POLL_MS);
   }
 
   async function cancel() {
     if (!job) return;
-    const res = await fetch(`/api/trials/${trialId}/calibrations/${job.id}`, { method: "DELETE" });
-    const body = await res.json().catch(() => ({}));
-    if (res.ok) setJob(body.job);
-    else setError(body.error ?? "The search could not be stopped.");
+    const r = await callApi<{ job: CalibrationJobJson }>(`/api/trials/${trialId}/calibrations/${job.id}`, { method: "DELETE" });
+    if (r.ok) setJob(r.data.job);
+    else setError(r.error);
   }
 
   const groups = job ? groupByCharacteristics(job.best) : [];

@@ -4,6 +4,7 @@
  * when it is a draft and the viewer may edit), the live boundaries and operating characteristics,
  * calibration, save (with a revision check), lock with an e-signature, and amendments.
  */
+import { callApi, jsonInit, type ApiFailure } from "@/lib/api-client";
 import { useMemo, useState } from "react";
 import { useRouter } from "next/navigation";
 import { format } from "date-fns";
@@ -42,11 +43,7 @@ function when(iso: string) {
   return <time dateTime={iso} suppressHydrationWarning>{format(new Date(iso), "d MMM yyyy, HH:mm")}</time>;
 }
 
-async function send(url: string, method: string, body: unknown) {
-  const res = await fetch(url, { method, headers: { "content-type": "application/json" }, body: JSON.stringify(body) });
-  const json = await res.json().catch(() => ({}));
-  return { res, json } as { res: Response; json: { design?: DesignVersionJson; error?: string; issues?: { path: string; message: string }[] } };
-}
+type DesignAnswer = { design: DesignVersionJson };
 
 export function DesignStudio({ trialId, designType, armLabels, versions: initialVersions, canEdit, canLock }: Props) {
   const router = useRouter();
@@ -94,9 +91,9 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
     });
   }
 
-  function failure(json: { error?: string; issues?: { path: string; message: string }[] }, res: Response) {
-    if (json.issues) setServerErrors(issuesToFieldErrors(json.issues.map((i) => ({ ...i, path: i.path.replace(/^spec\.?/, "") }))));
-    setOutcome({ tone: "danger", text: json.error ?? `The server answered ${res.status}; nothing was saved.` });
+  function failure(f: ApiFailure) {
+    if (f.pathIssues.length) setServerErrors(issuesToFieldErrors(f.pathIssues.map((i) => ({ ...i, path: i.path.replace(/^spec\.?/, "") }))));
+    setOutcome({ tone: "danger", text: f.error });
   }
 
   async function save() {
@@ -107,15 +104,16 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
     setBusy(true);
     setOutcome(null);
     try {
-      const { res, json } =
+      const r =
         selectedId === "new"
-          ? await send(`/api/trials/${trialId}/designs`, "POST", { spec: validation.design })
-          : await send(`/api/trials/${trialId}/designs/${selectedId}`, "PUT", { spec: validation.design, rowVersion: selected?.rowVersion });
-      if (!res.ok || !json.design) return failure(json, res);
-      upsert(json.design);
-      setSelectedId(json.design.id);
+          ? await callApi<DesignAnswer>(`/api/trials/${trialId}/designs`, jsonInit("POST", { spec: validation.design }))
+          : await callApi<DesignAnswer>(`/api/trials/${trialId}/designs/${selectedId}`, jsonInit("PUT", { spec: validation.design, rowVersion: selected?.rowVersion }));
+      if (!r.ok) return failure(r);
+      const saved = r.data.design;
+      upsert(saved);
+      setSelectedId(saved.id);
       setSavedForm(JSON.stringify(form));
-      setOutcome({ tone: "success", text: `Draft version ${json.design.version} saved (revision ${json.design.rowVersion}).` });
+      setOutcome({ tone: "success", text: `Draft version ${saved.version} saved (revision ${saved.rowVersion}).` });
     } finally {
       setBusy(false);
     }
@@ -131,16 +129,16 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
     setOutcome(null);
     setPasswordError(undefined);
     try {
-      const { res, json } = await send(`/api/trials/${trialId}/designs/${selected.id}/lock`, "POST", { password, rowVersion: selected.rowVersion });
+      const r = await callApi<DesignAnswer>(`/api/trials/${trialId}/designs/${selected.id}/lock`, jsonInit("POST", { password, rowVersion: selected.rowVersion }));
       setPassword("");
-      if (!res.ok || !json.design) {
-        if (res.status === 422 && /password/i.test(json.error ?? "")) {
-          setPasswordError(json.error);
+      if (!r.ok) {
+        if (r.status === 422 && /password/i.test(r.error)) {
+          setPasswordError(r.error);
           return;
         }
-        return failure(json, res);
+        return failure(r);
       }
-      const locked = json.design;
+      const locked = r.data.design;
       upsert(locked, (list) => list.map((v) => (v.status === "locked" ? { ...v, status: "superseded" as const } : v)));
       setOutcome({ tone: "success", text: `Version ${locked.version} is locked as the charter version. The planned analyses follow its looks.` });
       router.refresh();
@@ -159,15 +157,16 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
     setOutcome(null);
     setReasonError(undefined);
     try {
-      const { res, json } = await send(`/api/trials/${trialId}/designs/${selected.id}/amend`, "POST", { reason });
-      if (!res.ok || !json.design) {
-        if (json.issues?.length) setReasonError(json.issues[0].message);
-        return failure(json, res);
+      const r = await callApi<DesignAnswer>(`/api/trials/${trialId}/designs/${selected.id}/amend`, jsonInit("POST", { reason }));
+      if (!r.ok) {
+        if (r.pathIssues.length) setReasonError(r.pathIssues[0].message);
+        return failure(r);
       }
-      upsert(json.design);
-      show(json.design);
+      const draft = r.data.design;
+      upsert(draft);
+      show(draft);
       setReason("");
-      setOutcome({ tone: "success", text: `Amendment started: draft version ${json.design.version}, copied from version ${selected.version}.` });
+      setOutcome({ tone: "success", text: `Amendment started: draft version ${draft.version}, copied from version ${selected.version}.` });
     } finally {
       setBusy(false);
     }

@@ -4,6 +4,7 @@
  * server (POST .../design-preview) after the inputs have been still for 400 ms. The last good
  * result stays on screen while a new one computes or when a request fails.
  */
+import { callApi, jsonInit } from "@/lib/api-client";
 import { useEffect, useRef, useState } from "react";
 import type { ColDef } from "ag-grid-community";
 import { CairnPlot, CAIRN_COLOURS } from "@/components/charts/plot";
@@ -32,10 +33,9 @@ export function usePreview(trialId: number, design: Design | null) {
       controller.current = c;
       setComputing(true);
       try {
-        const res = await fetch(`/api/trials/${trialId}/design-preview`, { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify({ spec: JSON.parse(key) }), signal: c.signal });
-        const body = await res.json().catch(() => ({}));
-        if (!res.ok) throw new Error(body.error ?? `The server answered ${res.status}.`);
-        setResult({ design: JSON.parse(key) as Design, preview: body.preview as DesignPreview });
+        const r = await callApi<{ preview: DesignPreview }>(`/api/trials/${trialId}/design-preview`, { ...jsonInit("POST", { spec: JSON.parse(key) }), signal: c.signal });
+        if (!r.ok) throw new Error(r.error);
+        setResult({ design: JSON.parse(key) as Design, preview: r.data.preview });
         setError(null);
         setAnsweredKey(key);
       } catch (e) {

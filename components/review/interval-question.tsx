@@ -4,6 +4,7 @@
  * route handler as the reviewer types (debounced, earlier requests cancelled), and the asked
  * interval is shaded on the posterior density. No page reload.
  */
+import { callApi } from "@/lib/api-client";
 import { useEffect, useRef, useState } from "react";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
 import { formatProbability, formatRate } from "@/lib/format";
@@ -38,10 +39,9 @@ export function IntervalQuestion({ trialId, analysisId, review, defaultLo, defau
       controller.current = c;
       setAnswer({ state: "loading" });
       try {
-        const res = await fetch(`/api/trials/${trialId}/analyses/${analysisId}/interval?arm=${armId}&lo=${loNum}&hi=${hiNum}`, { signal: c.signal, cache: "no-store" });
-        const body = await res.json();
-        if (!res.ok) setAnswer({ state: "error", message: body.issues?.[0]?.message ?? body.error ?? "The answer could not be computed." });
-        else setAnswer({ state: "answer", probability: body.probability, lo: body.lo, hi: body.hi, armId: body.arm });
+        const r = await callApi<{ probability: number; lo: number; hi: number; arm: number }>(`/api/trials/${trialId}/analyses/${analysisId}/interval?arm=${armId}&lo=${loNum}&hi=${hiNum}`, { signal: c.signal, cache: "no-store" });
+        if (!r.ok) setAnswer({ state: "error", message: r.pathIssues[0]?.message ?? r.error });
+        else setAnswer({ state: "answer", probability: r.data.probability, lo: r.data.lo, hi: r.data.hi, armId: r.data.arm });
       } catch (e) {
         if ((e as Error).name !== "AbortError") setAnswer({ state: "error", message: "The server could not be reached; try again." });
       }

@@ -10,7 +10,7 @@ import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
 import { Field, TextArea, TextInput } from "@/components/ui/field";
-import { callApi, jsonInit, type ApiFailure } from "@/components/analyses/api-client";
+import { callApi, jsonInit, type ApiFailure } from "@/lib/api-client";
 import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
 
 type State = { ok?: string; failure?: ApiFailure };

@@ -41,6 +41,23 @@ import * as mBlind2 from "./20261203060200_signatures_hash_scheme";
 import * as mBlind3 from "./20261203060300_create_view_audit_events_open";
 import * as mReviewCache from "./20261205030100_create_review_cache";
 import * as mBlind4 from "./20261203060400_create_view_packets_open";
+import * as mCommittee1 from "./20261205040100_create_committee_members";
+import * as mCommittee2 from "./20261205040200_add_designs_dmc_quorum";
+import * as mCommittee3 from "./20261205040300_create_meeting_session_attendance";
+import * as mCommittee4 from "./20261205040400_create_conflict_declarations";
+import * as mCommittee5 from "./20261205040500_create_committee_votes";
+import * as mCommittee6 from "./20261205040600_recommendations_committee_columns";
+import * as mCommittee7 from "./20261205040700_create_meeting_minutes";
+import * as mCommittee8 from "./20261205040800_meeting_minutes_refuse_approved_update";
+import * as mCommittee9 from "./20261205040900_meeting_minutes_refuse_approved_delete";
+import * as mCommittee10 from "./20261205041000_create_view_meeting_minutes_open";
+import * as mCommittee11 from "./20261205041100_create_recommendation_letters";
+import * as mCommittee12 from "./20261205041200_email_messages_letter_kind";
+import * as mCommittee13 from "./20261205041300_email_messages_letter_id";
+import * as mPending1 from "./20261205060100_add_pending_to_analysis_arm_counts";
+import * as mPending2 from "./20261205060200_add_outcome_pending_to_patient_outcomes";
+import * as mApiTokens from "./20261205070000_create_api_tokens";
+import * as mSignaturesOpen from "./20261205080000_create_view_signatures_open";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
 const migrations: Array<[string, Migration]> = [
@@ -82,6 +99,23 @@ const migrations: Array<[string, Migration]> = [
   ["20261203060300_create_view_audit_events_open", mBlind3],
   ["20261203060400_create_view_packets_open", mBlind4],
   ["20261205030100_create_review_cache", mReviewCache],
+  ["20261205040100_create_committee_members", mCommittee1],
+  ["20261205040200_add_designs_dmc_quorum", mCommittee2],
+  ["20261205040300_create_meeting_session_attendance", mCommittee3],
+  ["20261205040400_create_conflict_declarations", mCommittee4],
+  ["20261205040500_create_committee_votes", mCommittee5],
+  ["20261205040600_recommendations_committee_columns", mCommittee6],
+  ["20261205040700_create_meeting_minutes", mCommittee7],
+  ["20261205040800_meeting_minutes_refuse_approved_update", mCommittee8],
+  ["20261205040900_meeting_minutes_refuse_approved_delete", mCommittee9],
+  ["20261205041000_create_view_meeting_minutes_open", mCommittee10],
+  ["20261205041100_create_recommendation_letters", mCommittee11],
+  ["20261205041200_email_messages_letter_kind", mCommittee12],
+  ["20261205041300_email_messages_letter_id", mCommittee13],
+  ["20261205060100_add_pending_to_analysis_arm_counts", mPending1],
+  ["20261205060200_add_outcome_pending_to_patient_outcomes", mPending2],
+  ["20261205070000_create_api_tokens", mApiTokens],
+  ["20261205080000_create_view_signatures_open", mSignaturesOpen],
 ];
 
 export const migrationSource: Knex.MigrationSource<[string, Migration]> = {

@@ -1,3 +1,4 @@
+import type { ArmCounts } from "@/lib/domain";
 import "server-only";
 /**
  * CLOSED data: arm-level counts, patient-level outcomes, rationales, the closed-session agenda.
@@ -46,8 +47,12 @@ export async function fetchArmAtLook(trialId: number, analysisId: number, armId:
     .first(["a.status", "a.look_number", "a.cutoff_date", "d.spec", "r.id as arm_id", "r.label as arm_label", "r.arm_role", "c.enrolled", "c.treated", "c.evaluable", "c.responders", "c.toxicities"]);
 }
 
-/** treated and toxicities are both numbers (a design with a safety rule) or both null. */
-export type ArmCountsInput = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
+export type ArmCountsInput = ArmCounts;
+
+/** The one conversion from a stored counts row to the domain record. */
+export function armCountsOf(row: Pick<ArmCountRow, "arm_id" | "enrolled" | "treated" | "evaluable" | "responders" | "toxicities"> & { pending?: number | null }): ArmCounts {
+  return { armId: row.arm_id, enrolled: row.enrolled, treated: row.treated, evaluable: row.evaluable, responders: row.responders, toxicities: row.toxicities, pending: row.pending ?? 0 };
+}
 
 /** Replaces the counts of an analysis (all arms at once). */
 export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCountsInput[]): Promise<void> {
@@ -60,6 +65,7 @@ export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCo
         enrolled: c.enrolled,
         treated: c.treated,
         evaluable: c.evaluable,
+        pending: c.pending ?? 0,
         responders: c.responders,
         toxicities: c.toxicities,
       })),

@@ -50,7 +50,7 @@ export type OpenRecommendation = {
 export async function fetchRecommendationsOpen(trialId: number, tx: Tx = db): Promise<OpenRecommendation[]> {
   return tx("recommendations as r")
     .join("analyses as a", "a.id", "r.analysis_id")
-    .join("signatures as s", "s.id", "r.signature_id")
+    .join("signatures_open as s", "s.id", "r.signature_id")
     .where("r.trial_id", trialId)
     .select(
       "r.id",
@@ -74,4 +74,18 @@ export async function fetchDesignVersions(trialId: number, tx: Tx = db): Promise
     .where({ trial_id: trialId })
     .select("id", "version", "status", "locked_at as lockedAt", "amendment_reason as amendmentReason")
     .orderBy("version", "desc");
+}
+
+/** The committee's letter to the sponsor, latest version per meeting (open: no data, no votes). */
+export type OpenLetter = { id: number; meetingId: number; lookNumber: number; version: number; contentHash: string; signerName: string; createdAt: Date };
+
+export async function fetchLatestLettersOfTrial(trialId: number, tx: Tx = db): Promise<OpenLetter[]> {
+  return tx("recommendation_letters as l")
+    .join("signatures_open as s", "s.id", "l.signature_id")
+    .join("meetings as m", "m.id", "l.meeting_id")
+    .join("analyses as a", "a.id", "m.analysis_id")
+    .where("l.trial_id", trialId)
+    .whereNotExists(tx("recommendation_letters as n").whereRaw("n.meeting_id = l.meeting_id AND n.version > l.version"))
+    .select("l.id", "l.meeting_id as meetingId", "a.look_number as lookNumber", "l.version", "l.content_hash as contentHash", "s.signer_name as signerName", "l.created_at as createdAt")
+    .orderBy("l.id", "desc");
 }

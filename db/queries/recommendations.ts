@@ -7,8 +7,7 @@ import "server-only";
  * corrects_id names the row it corrects.
  */
 import { db, type Tx } from "../knex";
-import type { AnalysisOpenRow, RecommendationDecision } from "../types";
-import { ANALYSIS_OPEN_COLUMNS } from "./open-status";
+import type { RecommendationDecision } from "../types";
 
 export { RECOMMENDATION_DECISIONS } from "@/lib/domain";
 
@@ -76,11 +75,6 @@ export async function fetchRecommendationClosed(id: number, tx: Tx = db): Promis
   return r ? withFlag(r) : undefined;
 }
 
-/** The analysis row locked for the duration of a recording transaction, so two signers queue. */
-export async function fetchAnalysisForUpdate(tx: Tx, analysisId: number): Promise<AnalysisOpenRow | undefined> {
-  return tx("analyses").where({ id: analysisId }).forUpdate().first(ANALYSIS_OPEN_COLUMNS);
-}
-
 /**
  * Ids of the recommendations of an analysis, made on its review version in force, that no later
  * entry corrects (normally at most one). Recommendations of an earlier review version are superseded.
@@ -104,6 +98,10 @@ export type NewRecommendation = {
   createdBy: number;
   createdAt: Date;
   reviewVersion: number;
+  /** A committee's recommendation: the meeting, the tally of the votes, the dissent (closed). */
+  meetingId?: number | null;
+  tally?: unknown;
+  dissent?: string | null;
 };
 
 export async function insertRecommendation(tx: Tx, r: NewRecommendation): Promise<number> {
@@ -117,6 +115,9 @@ export async function insertRecommendation(tx: Tx, r: NewRecommendation): Promis
     created_by: r.createdBy,
     created_at: r.createdAt,
     review_version: r.reviewVersion,
+    meeting_id: r.meetingId ?? null,
+    tally_json: r.tally === undefined || r.tally === null ? null : JSON.stringify(r.tally),
+    dissent: r.dissent ?? null,
   });
   return id;
 }

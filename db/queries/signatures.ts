@@ -2,6 +2,7 @@ import "server-only";
 import type { Tx } from "../knex";
 import type { SignatureRow } from "../types";
 import { CURRENT_HASH_SCHEME, keyedHash } from "../keyed-hash";
+import { canonicalJson } from "@/lib/canonical-json";
 
 /**
  * Keyed hash of the exact record content being signed (stable key order), binding the signature
@@ -12,19 +13,18 @@ export function recordHash(record: unknown, key?: string): string {
   return keyedHash("signature-record", stableStringify(record), key);
 }
 
-export function stableStringify(v: unknown): string {
-  if (v === null || typeof v !== "object") return JSON.stringify(v ?? null);
-  if (v instanceof Date) return JSON.stringify(v.toISOString());
-  if (Array.isArray(v)) return `[${v.map(stableStringify).join(",")}]`;
-  const o = v as Record<string, unknown>;
-  return `{${Object.keys(o)
-    .filter((k) => o[k] !== undefined)
-    .sort()
-    .map((k) => `${JSON.stringify(k)}:${stableStringify(o[k])}`)
-    .join(",")}}`;
-}
+/** The signed record's text: the one canonical JSON (kept under this name for the attack tests). */
+export const stableStringify = canonicalJson;
 
-export type SignatureMeaning = "design approved" | "analysis locked" | "recommendation recorded" | "review reopened for correction";
+export type SignatureMeaning =
+  | "design approved"
+  | "analysis locked"
+  | "recommendation recorded"
+  | "review reopened for correction"
+  | "conflict of interest declared"
+  | "vote cast"
+  | "minutes approved"
+  | "recommendation letter signed";
 
 export async function insertSignature(
   tx: Tx,

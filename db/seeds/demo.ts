@@ -13,6 +13,8 @@ import { insertDesignVersion, markDesignLocked } from "../queries/designs";
 import { insertSignature } from "../queries/signatures";
 import { createPlannedLooks } from "../queries/analyses";
 import { replaceArmCounts } from "../queries/closed";
+import { insertCommitteeMember } from "../queries/committee";
+import { insertMeeting } from "../queries/meetings";
 import { expandLooks } from "@/lib/stats/looks";
 import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import type { TrialRole } from "../types";
@@ -22,6 +24,7 @@ export const DEMO_ACCOUNTS = [
   { key: "statistician", name: "Ines Okafor-Lind", email: "statistician@cairn.example", password: "demo-stat-pass", isAdmin: false },
   { key: "dmc", name: "Dr Rafael Quintero-Vale", email: "dmc@cairn.example", password: "demo-dmc-pass", isAdmin: false },
   { key: "dmc2", name: "Dr Hanne Sorvik", email: "dmc2@cairn.example", password: "demo-dmc2-pass", isAdmin: false },
+  { key: "dmc3", name: "Dr Kwame Ashdown-Ries", email: "dmc3@cairn.example", password: "demo-dmc3-pass", isAdmin: false },
   { key: "sponsor", name: "Mara Vell", email: "sponsor@cairn.example", password: "demo-sponsor-pass", isAdmin: false },
   { key: "coordinator", name: "Tomas Brandt-Oye", email: "coordinator@cairn.example", password: "demo-coord-pass", isAdmin: false },
 ] as const;
@@ -140,7 +143,14 @@ export async function seedDemo(): Promise<void> {
         const mid = await insertMembership(tx, { trialId, userId: ids[key], role });
         await appendAudit(tx, { actorUserId: ids.admin, actorEmail: "demo-seed", trialId, action: "role_assigned", entityType: "trial_membership", entityId: mid, visibility: "open", newValues: { userId: ids[key], role } });
       }
+      if (t.code === "CRN-305") {
+        // The two-arm trial has a committee of three: a third DMC member sits on it only.
+        const mid = await insertMembership(tx, { trialId, userId: ids.dmc3, role: "dmc_member" });
+        await appendAudit(tx, { actorUserId: ids.admin, actorEmail: "demo-seed", trialId, action: "role_assigned", entityType: "trial_membership", entityId: mid, visibility: "open", newValues: { userId: ids.dmc3, role: "dmc_member" } });
+      }
       const design = await insertDesignVersion(tx, { trialId, spec: t.design, createdBy: ids.statistician, amendmentReason: null });
+      // The charter's quorum of the two-arm trial's committee: two voting members present.
+      if (t.code === "CRN-305") await tx("designs").where({ id: design.id }).update({ dmc_quorum: 2 });
       const sig = await insertSignature(tx, {
         userId: ids.statistician,
         signerName: DEMO_ACCOUNTS[1].name,
@@ -185,6 +195,27 @@ export async function seedDemo(): Promise<void> {
       }
       await tx("trials").where({ id: trialId }).update({ status: "active", first_patient_on: t.code === "CRN-201" ? "2026-03-02" : "2026-04-13" });
     }
+    // The two-arm trial's DMC: a chair and two voting members, and the independent statistician (non-voting).
+    const t2 = await tx("trials").where({ code: "CRN-305" }).first();
+    for (const [key, role] of [["dmc", "chair"], ["dmc2", "voting"], ["dmc3", "voting"], ["statistician", "statistician"]] as const) {
+      const cid = await insertCommitteeMember(tx, { trialId: t2.id, userId: ids[key], role, createdBy: ids.admin });
+      await appendAudit(tx, { actorUserId: ids.admin, actorEmail: "demo-seed", trialId: t2.id, action: "committee_member_added", entityType: "committee_member", entityId: cid, visibility: "open", newValues: { userId: ids[key], role } });
+    }
+    // The committee met on look 1 of CRN-305 (a past date: the meeting is ready for attendance,
+    // declarations, votes and minutes, none of which the seed records).
+    const t2look1 = await tx("analyses").where({ trial_id: t2.id, look_number: 1 }).first();
+    const t2meeting = await insertMeeting(tx, {
+      trialId: t2.id,
+      analysisId: t2look1.id,
+      scheduledAt: new Date("2026-09-15T12:00:00Z"),
+      timeZone: "Europe/Oslo",
+      openAgenda: "1. Accrual and data timeliness\n2. Questions from the sponsor",
+      closedAgenda: "3. Closed results of look 1\n4. The committee's vote",
+      reminderDaysBefore: 3,
+      createdBy: ids.coordinator,
+      attendeeUserIds: [ids.dmc, ids.dmc2, ids.dmc3, ids.statistician, ids.sponsor, ids.coordinator],
+    });
+    await appendAudit(tx, { actorUserId: ids.coordinator, actorEmail: "demo-seed", trialId: t2.id, action: "meeting_scheduled", entityType: "meeting", entityId: t2meeting, visibility: "open", newValues: { lookNumber: 1, scheduledAt: "2026-09-15T12:00:00.000Z", timeZone: "Europe/Oslo" } });
     // The first look of the single-arm trial has been reviewed and a recommendation recorded.
     const t1 = await tx("trials").where({ code: "CRN-201" }).first();
     const look1 = await tx("analyses").where({ trial_id: t1.id, look_number: 1 }).first();

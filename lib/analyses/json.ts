@@ -27,6 +27,8 @@ export function patientJson(p: PatientOutcomeGridRow) {
     arm: p.arm_label,
     enrolmentDate: p.enrolled_on,
     evaluable: Boolean(p.evaluable),
+    /** Will be evaluable, response not yet known at the cut-off. */
+    pending: Boolean(p.outcome_pending),
     responder: flag(p.responder),
     treated: flag(p.treated),
     toxicity: flag(p.toxicity),

@@ -14,9 +14,29 @@ describe("armCountsSchema: the rules of interim counts", () => {
       { armId: 12, enrolled: 22, evaluable: 20, responders: 5, toxicities: null },
     ]);
     expect(r).toEqual([
-      { armId: 11, enrolled: 21, treated: null, evaluable: 20, responders: 9, toxicities: null },
-      { armId: 12, enrolled: 22, treated: null, evaluable: 20, responders: 5, toxicities: null },
+      { armId: 11, enrolled: 21, treated: null, evaluable: 20, pending: 0, responders: 9, toxicities: null },
+      { armId: 12, enrolled: 22, treated: null, evaluable: 20, pending: 0, responders: 5, toxicities: null },
     ]);
+  });
+  it("pending (response not yet known) is optional, 0 when empty, and evaluable + pending may not exceed enrolled or the design's maximum", () => {
+    const ok = armCountsSchema(two).parse([
+      { armId: 11, enrolled: 21, evaluable: 18, pending: "3", responders: 9, toxicities: null },
+      { armId: 12, enrolled: 22, evaluable: 20, pending: "", responders: 5, toxicities: null },
+    ]);
+    expect(ok.map((c) => c.pending)).toEqual([3, 0]);
+    const bad = armCountsSchema(two).safeParse([
+      { armId: 11, enrolled: 21, evaluable: 18, pending: 4, responders: 9, toxicities: null },
+      { armId: 12, enrolled: 22, evaluable: 20, pending: -1, responders: 5, toxicities: null },
+    ]);
+    expect(paths(bad)).toEqual({
+      "0.pending": "Evaluable (18) plus pending (4) cannot exceed enrolled (21): a pending patient is enrolled and not yet evaluable.",
+      "1.pending": "The number pending (response not yet known) cannot be negative.",
+    });
+    const max = armCountsSchema({ ...two, maxPerArm: 20 }).safeParse([
+      { armId: 11, enrolled: 20, evaluable: 18, pending: 2, responders: 9, toxicities: null },
+      { armId: 12, enrolled: 20, evaluable: 19, pending: 1, responders: 5, toxicities: null },
+    ]);
+    expect(max.success).toBe(true);
   });
   it("responders <= evaluable <= enrolled, each reported on its own field", () => {
     const r = armCountsSchema(two).safeParse([
@@ -54,7 +74,7 @@ describe("armCountsSchema: the rules of interim counts", () => {
   });
   it("finding 1: toxicities are bounded by treated, not by evaluable for response (8 of 21 treated, 15 evaluable is valid)", () => {
     expect(armCountsSchema(one).parse([{ armId: 5, enrolled: 21, treated: 21, evaluable: 15, responders: 4, toxicities: 8 }])).toEqual([
-      { armId: 5, enrolled: 21, treated: 21, evaluable: 15, responders: 4, toxicities: 8 },
+      { armId: 5, enrolled: 21, treated: 21, evaluable: 15, pending: 0, responders: 4, toxicities: 8 },
     ]);
   });
   it("finding 3: enrolled above the design's maximum sample size is refused; exactly at it is accepted", () => {

@@ -2,16 +2,15 @@
  * Request schemas for interim data entry, shared by the route handlers (authoritative) and the
  * browser forms (instant feedback). Pure: no server imports.
  */
+import type { ArmCounts } from "@/lib/domain";
+import { reasonSchema, rowVersionSchema, signingPasswordSchema } from "@/lib/schema-pieces";
 import { z } from "zod";
 import { isIsoDate } from "@/lib/csv/patient-outcomes";
 
 /** The largest count accepted for one arm at one look; far above any phase II trial. */
 export const MAX_ARM_COUNT = 100_000;
 
-export const rowVersionSchema = z.coerce
-  .number({ message: "The version of the look you edited is missing; reload the page." })
-  .int("The version of the look you edited is missing; reload the page.")
-  .min(1, "The version of the look you edited is missing; reload the page.");
+export { rowVersionSchema };
 
 export const cutoffDateSchema = z
   .string({ message: "Enter the data cut-off date." })
@@ -45,7 +44,7 @@ const absentWithoutSafety = (what: string) =>
   z.preprocess((v) => (v === "" || v === undefined ? null : v), z.null({ message: `This design has no safety rule, so ${what} are not recorded.` }));
 
 /** One arm's counts, for the stored-row check at lock as well as for input. */
-export type ArmCountsShape = { enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
+export type ArmCountsShape = Omit<ArmCounts, "armId">;
 
 /**
  * The within-look rules, shared by input validation and the lock-time check: responders <=
@@ -57,6 +56,11 @@ export function withinLookProblems(c: ArmCountsShape, maxPerArm: number | null |
   if (maxPerArm !== null && maxPerArm !== undefined && c.enrolled > maxPerArm)
     out.push({ path: "enrolled", message: `Enrolled (${c.enrolled}) is above the locked design's maximum sample size for an arm (${maxPerArm}), which the design cannot analyse. If the trial has over-enrolled, amend the design first.` });
   if (c.evaluable > c.enrolled) out.push({ path: "evaluable", message: `Evaluable for response (${c.evaluable}) cannot exceed enrolled (${c.enrolled}).` });
+  const pending = c.pending ?? 0;
+  if (pending > 0 && c.evaluable + pending > c.enrolled)
+    out.push({ path: "pending", message: `Evaluable (${c.evaluable}) plus pending (${pending}) cannot exceed enrolled (${c.enrolled}): a pending patient is enrolled and not yet evaluable.` });
+  if (pending > 0 && maxPerArm !== null && maxPerArm !== undefined && c.evaluable + pending > maxPerArm)
+    out.push({ path: "pending", message: `Evaluable (${c.evaluable}) plus pending (${pending}) is above the locked design's maximum sample size for an arm (${maxPerArm}).` });
   if (c.responders > c.evaluable) out.push({ path: "responders", message: `Responders (${c.responders}) cannot exceed evaluable for response (${c.evaluable}).` });
   if (c.treated !== null && c.treated > c.enrolled) out.push({ path: "treated", message: `Treated (${c.treated}) cannot exceed enrolled (${c.enrolled}).` });
   if (c.toxicities !== null && c.treated !== null && c.toxicities > c.treated)
@@ -75,11 +79,13 @@ export function armCountsSchema(ctx: CountsContext) {
       enrolled: countCell("the number enrolled"),
       treated: ctx.safetyRule ? countCell("the number treated (evaluable for toxicity)") : absentWithoutSafety("treated counts"),
       evaluable: countCell("the number evaluable for response"),
+      // Enrolled, will be evaluable, response not yet known at the cut-off; optional (empty or absent: 0).
+      pending: z.preprocess((v) => (v === undefined || v === null || (typeof v === "string" && v.trim() === "") ? 0 : v), countCell("the number pending (response not yet known)")),
       responders: countCell("the number of responders"),
       toxicities: ctx.safetyRule ? countCell("the number with toxicity") : absentWithoutSafety("toxicities"),
     })
     .superRefine((c, z2) => {
-      for (const p of withinLookProblems({ ...c, treated: c.treated ?? null, toxicities: c.toxicities ?? null }, ctx.maxPerArm))
+      for (const p of withinLookProblems({ ...c, treated: c.treated ?? null, toxicities: c.toxicities ?? null, pending: c.pending }, ctx.maxPerArm))
         z2.addIssue({ code: "custom", path: [p.path], message: p.message });
     });
   return z.array(arm).superRefine((rows, z2) => {
@@ -104,27 +110,19 @@ export const openLookSchema = z.object({ rowVersion: rowVersionSchema, cutoffDat
 
 export const lockAnalysisSchema = z.object({
   rowVersion: rowVersionSchema,
-  password: z.string({ message: "Enter your password to sign." }).min(1, "Enter your password to sign.").max(200, "That password is too long."),
+  password: signingPasswordSchema,
 });
 
 export const reopenAnalysisSchema = z.object({
   rowVersion: rowVersionSchema,
-  reason: z
-    .string({ message: "Give the reason for the correction." })
-    .trim()
-    .min(10, "Give the reason for the correction (at least 10 characters).")
-    .max(1000, "The reason can be at most 1000 characters."),
+  reason: reasonSchema("the correction"),
   /** Needed only to reopen a reviewed look: that correction is signed (the password is asked again). */
-  password: z.string().min(1, "Enter your password to sign.").max(200, "That password is too long.").optional(),
+  password: signingPasswordSchema.optional(),
 });
 
 export const switchToCountLevelSchema = z.object({
   rowVersion: rowVersionSchema,
-  reason: z
-    .string({ message: "Give the reason for switching to count-level entry." })
-    .trim()
-    .min(10, "Give the reason for switching to count-level entry (at least 10 characters).")
-    .max(1000, "The reason can be at most 1000 characters."),
+  reason: reasonSchema("switching to count-level entry"),
 });
 
 export const uploadConfirmQuerySchema = z.object({

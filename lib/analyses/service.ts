@@ -21,6 +21,7 @@ import { db, writeTransaction, type ClosedReader, type Tx } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { fetchAnalysisForUpdate, fetchNeighbourCutoffs, updateAnalysisOpenFields, type AnalysisLockedRow } from "@/db/queries/analyses";
 import {
+  armCountsOf,
   countPatientOutcomes,
   deleteCachedReviews,
   deletePatientOutcomes,
@@ -171,6 +172,7 @@ export async function saveArmCounts(actor: PublicUser, trialId: number, analysis
     evaluable: c.evaluable,
     responders: c.responders,
     toxicities: c.toxicities ?? null,
+    pending: c.pending ?? 0,
   }));
   return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
@@ -201,8 +203,11 @@ export async function saveArmCounts(actor: PublicUser, trialId: number, analysis
   });
 }
 
-function plainCounts(c: { arm_id: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null }) {
-  return { armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities };
+/** Pending appears only when some are pending, so records signed before the column existed read the same. */
+function plainCounts(c: { arm_id: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending?: number }) {
+  // Pending only when there are some, so a record signed before pending counts existed reads the same.
+  const { pending, ...rest } = armCountsOf(c);
+  return pending ? { ...rest, pending } : rest;
 }
 
 function armRefs(arms: ArmRow[]): ArmRef[] {
@@ -215,7 +220,7 @@ export type UploadPreview =
       ok: true;
       rowCount: number;
       includedRows: number;
-      counts: Array<{ armId: number; armLabel: string; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null }>;
+      counts: Array<{ armId: number; armLabel: string; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null; pending: number }>;
       cutoffDate: string;
       excluded: ExcludedRows;
     }
@@ -296,6 +301,7 @@ export async function confirmPatientUpload(actor: PublicUser, trialId: number, a
         arm_id: r.armId,
         enrolled_on: r.enrolledOn,
         evaluable: r.evaluable,
+        outcome_pending: r.pending,
         responder: r.responder,
         treated: r.treated,
         toxicity: r.toxicity,
@@ -344,7 +350,7 @@ export async function lockAnalysis(actor: PublicUser, trialId: number, analysisI
     refuseProblems(
       countsProblems(
         ctx,
-        counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
+        counts.map(armCountsOf),
         await fetchNeighbourLockedCounts(trialId, a.look_number, tx),
       ),
       `Look ${a.look_number} was not locked`,

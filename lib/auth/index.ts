@@ -14,6 +14,7 @@ import { allows, isUnblinded, type Capability, type Principal } from "./permissi
 import type { Knex } from "knex";
 import { asClosedConnection, blindDb, db, type ClosedConnection } from "@/db/knex";
 import { HttpError, forbiddenError, noteCallerClearance, notFoundError, unauthorized } from "@/lib/http";
+import { authenticateApiToken, bearerToken } from "./api-tokens";
 
 export { allows, isUnblinded, type Capability } from "./permissions";
 
@@ -65,10 +66,26 @@ export async function mayCreateTrial(u: PublicUser): Promise<boolean> {
 }
 
 /**
+ * `bearer`: the request, for the few route handlers a machine client may call with a personal API
+ * token (`Authorization: Bearer cairn_pat_...`, lib/auth/api-tokens.ts). When it carries one, the
+ * token alone decides (its owner, its one trial, its one role; every use audited) and the session
+ * cookie is not read. Routes that do not pass it never accept a token: signatures stay interactive.
+ */
+export type TrialAccessOptions = { bearer?: Request };
+
+/**
  * Trial-level check: 404 when the trial does not exist or the user is not on it (so its existence
  * is not revealed), 403 when on it without the capability.
  */
-export async function requireTrialAccess(trialId: number, cap: Capability): Promise<TrialAccess> {
+export async function requireTrialAccess(trialId: number, cap: Capability, options: TrialAccessOptions = {}): Promise<TrialAccess> {
+  if (options.bearer) {
+    const presented = bearerToken(options.bearer);
+    if (presented !== null)
+      return authenticateApiToken(presented, validTrialId(trialId), cap, { method: options.bearer.method, path: new URL(options.bearer.url).pathname }, (grant) =>
+        // The token's one role, never the account's administrator flag or its other roles.
+        decideTrialAccess(grant.user, { user: grant.user, sessionVersion: 0, trial: grant.trial, roles: grant.roles }, cap, { tokenScoped: true }),
+      );
+  }
   const claims = await sessionClaims();
   if (!claims) throw unauthorized();
   const facts = await fetchAccessFacts(claims.userId, validTrialId(trialId));
@@ -84,9 +101,9 @@ export async function checkTrialAccess(user: PublicUser, trialId: number, cap: C
 // 0 matches no trial, so a malformed id answers 404 like a missing one.
 const validTrialId = (trialId: number) => (Number.isInteger(trialId) && trialId > 0 ? trialId : 0);
 
-function decideTrialAccess(user: PublicUser, { trial, roles }: AccessFacts, cap: Capability): TrialAccess {
+function decideTrialAccess(user: PublicUser, { trial, roles }: AccessFacts, cap: Capability, how: { tokenScoped?: boolean } = {}): TrialAccess {
   if (!trial) throw notFoundError("That trial");
-  const principal: Principal = { isAdmin: user.isAdmin, roles };
+  const principal: Principal = { isAdmin: how.tokenScoped ? false : user.isAdmin, roles };
   if (roles.length === 0 && !user.isAdmin) throw notFoundError("That trial");
   if (!allows(principal, cap)) throw forbiddenError(describe(cap));
   const unblinded = isUnblinded(principal);
@@ -136,6 +153,7 @@ function describe(cap: Capability): string {
     enterData: "entering interim data",
     recordRecommendation: "recording a recommendation",
     manageMeetings: "managing DMC meetings",
+    manageCommittee: "changing the committee (an administrator's act)",
     viewAuditOpen: "viewing the audit trail",
     viewAuditClosed: "viewing closed audit entries",
   };

@@ -12,6 +12,7 @@ export type Capability =
   | "enterData" // enter or upload interim data, lock an analysis
   | "recordRecommendation"
   | "manageMeetings" // schedule meetings, send packets
+  | "manageCommittee" // who sits on the DMC and who chairs it (an administrator's act)
   | "viewAuditOpen"
   | "viewAuditClosed";
 
@@ -25,7 +26,7 @@ const BY_ROLE: Record<TrialRole, readonly Capability[]> = {
 };
 
 /** Being administrator never unblinds: it adds only blinded capabilities. */
-const ADMIN: readonly Capability[] = ["viewOpen", "editDesign", "viewAuditOpen"];
+const ADMIN: readonly Capability[] = ["viewOpen", "editDesign", "viewAuditOpen", "manageCommittee"];
 
 export function allows(p: Principal, cap: Capability): boolean {
   if (p.isAdmin && ADMIN.includes(cap)) return true;

@@ -1,3 +1,4 @@
+import { signingPasswordSchema } from "@/lib/schema-pieces";
 import "server-only";
 /**
  * Electronic signatures (21 CFR Part 11 style): signing asks for the password again, and the
@@ -9,7 +10,6 @@ import "server-only";
  * address), so a stolen session cannot be used to guess the password offline-fast, and every wrong
  * password is audited as an open row.
  */
-import { z } from "zod";
 import { fetchUserById } from "@/db/queries/users";
 import { recordAuditEvent } from "@/db/audit";
 import type { PublicUser } from "@/db/types";
@@ -19,10 +19,7 @@ import { requestAddress } from "./client-address";
 import { tooManyAttemptsMessage } from "./rate-limit";
 import { clearPairFailures, recordSignInFailure, signInWaitMs } from "./sign-in-throttle";
 
-export const signingPasswordSchema = z
-  .string({ message: "Enter your password to sign." })
-  .min(1, "Enter your password to sign.")
-  .max(200, "That password is too long.");
+export { signingPasswordSchema };
 
 /**
  * Re-checks the signer's password; throws a 422 with a clear message when it is wrong, and a 429

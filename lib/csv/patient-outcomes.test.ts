@@ -49,12 +49,12 @@ describe("parsePatientCsv: a valid file", () => {
     if (!r.ok) return;
     expect(r.rowCount).toBe(6);
     expect(r.rows.map((x) => x.armId)).toEqual([11, 12, 11, 12, 12, 11]);
-    expect(r.rows[3]).toEqual({ subjectId: "S-004", armId: 12, enrolledOn: "2026-06-01", evaluable: false, responder: null, treated: null, toxicity: false, sourceLine: 5 });
+    expect(r.rows[3]).toEqual({ subjectId: "S-004", armId: 12, enrolledOn: "2026-06-01", evaluable: false, pending: false, responder: null, treated: null, toxicity: false, sourceLine: 5 });
     // Experimental: S-001 (R), S-003 (NR), S-006 (NR, on the cut-off day) -> 3 enrolled, 3 evaluable, 1 responder.
     // Control: S-002 (NR), S-004 (not evaluable), S-005 (R) -> 3 enrolled, 2 evaluable, 1 responder.
     expect(r.counts).toEqual([
-      { armId: 11, enrolled: 3, treated: null, evaluable: 3, responders: 1, toxicities: null },
-      { armId: 12, enrolled: 3, treated: null, evaluable: 2, responders: 1, toxicities: null },
+      { armId: 11, enrolled: 3, treated: null, evaluable: 3, responders: 1, toxicities: null, pending: 0 },
+      { armId: 12, enrolled: 3, treated: null, evaluable: 2, responders: 1, toxicities: null, pending: 0 },
     ]);
   });
 
@@ -62,7 +62,7 @@ describe("parsePatientCsv: a valid file", () => {
     const text = "\uFEFFsite;subject_id;arm;enrolment_date;evaluable;response;toxicity\r\n" + '"Site 1; north";S-1;"TLM-417 400 mg";2026-01-05;yes;yes;yes\r\n' + "Site 2;S-2;single;2026-01-06;yes;no;no\r\n";
     const r = parsePatientCsv(decodeCsvBytes(enc(text)), ONE_ARM_SAFETY);
     expect(r.ok).toBe(true);
-    if (r.ok) expect(r.counts).toEqual([{ armId: 5, enrolled: 2, treated: 2, evaluable: 2, responders: 1, toxicities: 1 }]);
+    if (r.ok) expect(r.counts).toEqual([{ armId: 5, enrolled: 2, treated: 2, evaluable: 2, responders: 1, toxicities: 1, pending: 0 }]);
   });
 
   it("numbers lines as an editor does, even after a quoted field that spans two lines", () => {
@@ -103,7 +103,7 @@ describe("parsePatientCsv: each kind of bad row is reported with its line, colum
     expectIssue(csv("S-1,single,2026-01-05,yes,no,"), ONE_ARM_SAFETY, { line: 2, column: "toxicity", message: /safety rule/ });
   });
   it("a bad flag, an empty subject, a formula-like subject", () => {
-    expectIssue(csv("S-1,control,2026-01-05,perhaps,no,"), TWO_ARMS, { line: 2, column: "evaluable", message: /Evaluable must be yes or no/ });
+    expectIssue(csv("S-1,control,2026-01-05,perhaps,no,"), TWO_ARMS, { line: 2, column: "evaluable", message: /Evaluable must be yes, no or pending/ });
     expectIssue(csv(",control,2026-01-05,yes,no,"), TWO_ARMS, { line: 2, column: "subject_id", message: /empty/ });
     expectIssue(csv("=cmd(),control,2026-01-05,yes,no,"), TWO_ARMS, { line: 2, column: "subject_id", message: /start with a letter or digit/ });
   });
@@ -149,8 +149,8 @@ describe("finding 6: rows dated after the cut-off are left out of the look and l
     });
     // Counted by hand: experimental S-3 (responder), control S-1 (non-responder).
     expect(r.counts).toEqual([
-      { armId: 11, enrolled: 1, treated: null, evaluable: 1, responders: 1, toxicities: null },
-      { armId: 12, enrolled: 1, treated: null, evaluable: 1, responders: 0, toxicities: null },
+      { armId: 11, enrolled: 1, treated: null, evaluable: 1, responders: 1, toxicities: null, pending: 0 },
+      { armId: 12, enrolled: 1, treated: null, evaluable: 1, responders: 0, toxicities: null, pending: 0 },
     ]);
   });
   it("a bad row before the cut-off still fails the file, and the report of excluded rows comes with it", () => {
@@ -176,12 +176,12 @@ describe("finding 1: treated (evaluable for toxicity) is its own denominator", (
     expect(r.ok).toBe(true);
     if (!r.ok) return;
     // By hand: 4 enrolled, 3 treated (P-1..P-3), 2 with toxicity (P-1, P-2), 1 evaluable for response (P-1), 1 responder.
-    expect(r.counts).toEqual([{ armId: 5, enrolled: 4, treated: 3, evaluable: 1, responders: 1, toxicities: 2 }]);
+    expect(r.counts).toEqual([{ armId: 5, enrolled: 4, treated: 3, evaluable: 1, responders: 1, toxicities: 2, pending: 0 }]);
     expect(r.rows.map((x) => x.treated)).toEqual([true, true, true, false]);
   });
   it("without a treated column every patient enrolled by the cut-off counts as treated", () => {
     const r = parsePatientCsv(csv("P-1,single,2026-01-05,yes,no,yes", "P-2,single,2026-01-06,no,,no"), ONE_ARM_SAFETY);
-    expect(r.ok && r.counts).toEqual([{ armId: 5, enrolled: 2, treated: 2, evaluable: 1, responders: 0, toxicities: 1 }]);
+    expect(r.ok && r.counts).toEqual([{ armId: 5, enrolled: 2, treated: 2, evaluable: 1, responders: 0, toxicities: 1, pending: 0 }]);
   });
   it("a treated patient needs a toxicity outcome; an untreated one must have none; the flag is required under a safety rule", () => {
     expectIssue(tcsv("P-1,single,2026-01-05,yes,no,,yes"), ONE_ARM_SAFETY, { line: 2, column: "toxicity", message: /treated but the toxicity outcome is empty/ });
@@ -264,9 +264,39 @@ describe("properties (fast-check): any valid file round-trips and its counts obe
 
   it("deriveArmCounts leaves out patients enrolled after the cut-off", () => {
     const rows: PatientRecord[] = [
-      { subjectId: "A", armId: 5, enrolledOn: "2026-10-31", evaluable: true, responder: true, treated: true, toxicity: true, sourceLine: 2 },
-      { subjectId: "B", armId: 5, enrolledOn: "2026-11-01", evaluable: true, responder: true, treated: true, toxicity: true, sourceLine: 3 },
+      { subjectId: "A", armId: 5, enrolledOn: "2026-10-31", evaluable: true, pending: false, responder: true, treated: true, toxicity: true, sourceLine: 2 },
+      { subjectId: "B", armId: 5, enrolledOn: "2026-11-01", evaluable: true, pending: false, responder: true, treated: true, toxicity: true, sourceLine: 3 },
     ];
-    expect(deriveArmCounts(rows, ONE_ARM_SAFETY)).toEqual([{ armId: 5, enrolled: 1, treated: 1, evaluable: 1, responders: 1, toxicities: 1 }]);
+    expect(deriveArmCounts(rows, ONE_ARM_SAFETY)).toEqual([{ armId: 5, enrolled: 1, treated: 1, evaluable: 1, responders: 1, toxicities: 1, pending: 0 }]);
+  });
+});
+
+describe("parsePatientCsv: pending outcomes (evaluable = pending)", () => {
+  it("counts a patient whose response is not yet known as pending, not as evaluable, and keeps the row", () => {
+    const r = parsePatientCsv(
+      csv(
+        "S-001,experimental,2026-05-02,yes,yes,",
+        "S-002,experimental,2026-05-03,pending,,",
+        "S-003,experimental,2026-05-04,PENDING,,",
+        "S-004,control,2026-05-05,pending,,",
+        "S-005,control,2026-05-06,no,,",
+        "S-006,control,2026-05-07,yes,no,",
+      ),
+      TWO_ARMS,
+    );
+    expect(r.ok).toBe(true);
+    if (!r.ok) return;
+    // By hand: experimental 3 enrolled, 1 evaluable (1 responder), 2 pending; control 3 enrolled, 1 evaluable, 1 pending, 1 not evaluable.
+    expect(r.counts).toEqual([
+      { armId: 11, enrolled: 3, treated: null, evaluable: 1, responders: 1, toxicities: null, pending: 2 },
+      { armId: 12, enrolled: 3, treated: null, evaluable: 1, responders: 0, toxicities: null, pending: 1 },
+    ]);
+    expect(r.rows.filter((x) => x.pending).map((x) => x.subjectId)).toEqual(["S-002", "S-003", "S-004"]);
+    expect(r.rows.find((x) => x.subjectId === "S-002")).toMatchObject({ evaluable: false, pending: true, responder: null });
+  });
+
+  it("refuses a response recorded for a pending patient, and an unknown evaluable value, naming the line", () => {
+    expectIssue(csv("S-001,experimental,2026-05-02,pending,yes,"), TWO_ARMS, { line: 2, column: "response", message: /evaluable says pending/ });
+    expectIssue(csv("S-001,experimental,2026-05-02,later,,"), TWO_ARMS, { line: 2, column: "evaluable", message: /yes, no or pending/ });
   });
 });

@@ -17,6 +17,7 @@
  * Line numbers are those of the file as a text editor shows them (header = line 1), counted from
  * the start of each record, so a quoted field that spans lines does not shift later numbers.
  */
+import type { ArmCounts } from "@/lib/domain";
 import Papa from "papaparse";
 import { z } from "zod";
 
@@ -52,7 +53,13 @@ export type PatientRecord = {
   armId: number;
   enrolledOn: string;
   evaluable: boolean;
-  /** null exactly when the patient is not evaluable. */
+  /**
+   * Will be evaluable, response not yet known at the cut-off: the evaluable cell says "pending" and
+   * the response cell is empty. Counted apart (a future patient for the predictive probability), not
+   * as evaluable. Always false for an evaluable or not-evaluable patient.
+   */
+  pending: boolean;
+  /** null exactly when the patient is not evaluable (or pending). */
   responder: boolean | null;
   /** Evaluable for toxicity; null when the design has no safety rule (toxicity is not counted). */
   treated: boolean | null;
@@ -62,7 +69,7 @@ export type PatientRecord = {
 };
 
 /** treated and toxicities are numbers exactly when the design has a safety rule. */
-export type DerivedArmCounts = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
+export type DerivedArmCounts = ArmCounts & { pending: number };
 
 /** Rows enrolled after the cut-off, left out of the look: how many, and which (at most MAX_REPORTED_ISSUES listed). */
 export type ExcludedRows = { count: number; cutoffDate: string; rows: Array<{ line: number; subjectId: string; enrolmentDate: string }> };
@@ -98,6 +105,8 @@ export function tooLargeMessage(bytes: number): string {
 const FLAG_TRUE = new Set(["yes", "y", "1", "true"]);
 const FLAG_FALSE = new Set(["no", "n", "0", "false"]);
 const FLAG_HINT = "use yes/no, 1/0 or true/false";
+/** The evaluable cell's third value: evaluable later, response not yet known at the cut-off. */
+export const PENDING_VALUE = "pending";
 
 /** A yes/no cell; empty becomes null so the cross-field rules can say what is missing. */
 function flagSchema(what: string) {
@@ -131,7 +140,11 @@ const rawRowSchema = z.object({
     .trim()
     .min(1, "The enrolment date is empty.")
     .refine(isIsoDate, { message: "The enrolment date is not a valid date written YYYY-MM-DD." }),
-  evaluable: flagSchema("Evaluable"),
+  evaluable: z
+    .string()
+    .transform((s) => s.trim().toLowerCase())
+    .refine((s) => s === "" || s === PENDING_VALUE || FLAG_TRUE.has(s) || FLAG_FALSE.has(s), { message: `Evaluable must be yes, no or ${PENDING_VALUE} (${FLAG_HINT}; ${PENDING_VALUE}: the response is not yet known at the cut-off).` })
+    .transform((s): boolean | "pending" | null => (s === "" ? null : s === PENDING_VALUE ? "pending" : FLAG_TRUE.has(s))),
   response: flagSchema("Response"),
   toxicity: flagSchema("Toxicity"),
   treated: flagSchema("Treated"),
@@ -238,6 +251,8 @@ export function parsePatientCsv(text: string, ctx: PatientCsvContext): PatientCs
         message: `Unknown arm "${r.arm}". This trial's arms are ${ctx.arms.map((a) => `"${a.label}" (${a.role})`).join(" and ")}.`,
       });
     if (r.evaluable === null) rowIssues.push({ line: rec.line, column: "evaluable", message: `The evaluable flag is empty (${FLAG_HINT}).` });
+    if (r.evaluable === "pending" && r.response !== null)
+      rowIssues.push({ line: rec.line, column: "response", message: `The response is recorded but evaluable says ${PENDING_VALUE}: leave response empty until it is known, or mark the patient evaluable.` });
     if (r.evaluable === false && r.response !== null)
       rowIssues.push({ line: rec.line, column: "response", message: "A response is recorded for a patient who is not evaluable: leave response empty or correct the evaluable flag." });
     if (r.evaluable === true && r.response === null)
@@ -269,7 +284,8 @@ export function parsePatientCsv(text: string, ctx: PatientCsvContext): PatientCs
       armId: arm!.id,
       enrolledOn: r.enrolment_date,
       evaluable: r.evaluable === true,
-      responder: r.evaluable ? r.response : null,
+      pending: r.evaluable === "pending",
+      responder: r.evaluable === true ? r.response : null,
       treated: ctx.safetyRule ? treated === true : null,
       toxicity: r.toxicity,
       sourceLine: rec.line,
@@ -313,6 +329,7 @@ export function deriveArmCounts(rows: PatientRecord[], ctx: PatientCsvContext): 
       enrolled: mine.length,
       treated: ctx.safetyRule ? mine.filter((r) => r.treated === true).length : null,
       evaluable: mine.filter((r) => r.evaluable).length,
+      pending: mine.filter((r) => r.pending).length,
       responders: mine.filter((r) => r.evaluable && r.responder === true).length,
       toxicities: ctx.safetyRule ? mine.filter((r) => r.treated === true && r.toxicity === true).length : null,
     };

@@ -3,23 +3,20 @@
  * calibrations). The design itself is parsed by `parseDesignForTrial` so that its issues carry
  * design paths ("rule.thetaT"), which the form shows next to the field.
  */
+import { reasonSchema, rowVersionSchema } from "@/lib/schema-pieces";
 import { z } from "zod";
 import { singleArmDesignSchema, twoArmDesignSchema } from "@/lib/stats/design-schema";
 import type { Design, TwoArmDesign } from "@/lib/stats/types";
 import { expandLooks } from "@/lib/stats/looks";
 
-const rowVersion = z.number({ message: "rowVersion must be a number." }).int("rowVersion must be a whole number.").positive("rowVersion must be positive.");
+const rowVersion = rowVersionSchema;
 
 export const specBodySchema = z.object({ spec: z.unknown() });
 export const updateDraftBodySchema = z.object({ spec: z.unknown(), rowVersion });
 /** The lock body; the password is then checked with lib/auth/signature (signingPasswordSchema, confirmSigner). */
 export const lockBodySchema = z.object({ password: z.unknown(), rowVersion });
 export const amendBodySchema = z.object({
-  reason: z
-    .string({ message: "Give the reason for the amendment." })
-    .trim()
-    .min(5, "Give the reason for the amendment (at least 5 characters).")
-    .max(2000, "The reason can be at most 2000 characters."),
+  reason: reasonSchema("the amendment", 5, 2000),
 });
 
 /** A design checked against the trial's arm count; ZodError (422) with design paths otherwise. */

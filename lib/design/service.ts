@@ -30,6 +30,7 @@ import { expandLooks } from "@/lib/stats/looks";
 import type { Design } from "@/lib/stats/types";
 import { amendBodySchema, parseDesignForTrial } from "./api-schemas";
 import { armsFor, type NewTrialInput } from "./trial-schema";
+import { setDraftDesignQuorum } from "@/db/queries/committee";
 
 function need(access: TrialAccess, cap: "editDesign" | "lockDesign"): void {
   if (!allows(access.principal, cap)) throw forbiddenError(cap === "lockDesign" ? "locking the design" : "editing the design");
@@ -38,8 +39,9 @@ function need(access: TrialAccess, cap: "editDesign" | "lockDesign"): void {
 const STATUS_WORDS = { draft: "a draft", locked: "the locked charter version", superseded: "a superseded version" } as const;
 
 /** The exact content a design signature is bound to (the same shape the demo seed signs). */
-export function designSignedRecord(trialId: number, version: number, spec: Design) {
-  return { trialId, version, spec };
+export function designSignedRecord(trialId: number, version: number, spec: Design, dmcQuorum: number | null = null) {
+  // The DMC's quorum is part of the charter version when one is written (records without one hash as before).
+  return dmcQuorum === null ? { trialId, version, spec } : { trialId, version, spec, dmcQuorum };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -185,7 +187,7 @@ export async function lockDesign(access: TrialAccess, designId: number, rowVersi
       });
     const superseded = await fetchLockedDesignIds(tx, trial.id);
     await supersedeLockedDesigns(tx, trial.id);
-    const record = designSignedRecord(trial.id, current.version, current.spec);
+    const record = designSignedRecord(trial.id, current.version, current.spec, current.dmc_quorum ?? null);
     const sig = await insertSignature(tx, {
       userId: user.id,
       signerName: user.name,
@@ -238,6 +240,8 @@ export async function amendDesign(access: TrialAccess, designId: number, reasonI
     const source = await fetchDesignForUpdate(tx, designId);
     if (!source || source.status !== "locked") throw conflict("Only the locked charter version can be amended.");
     const created = await insertDesignVersion(tx, { trialId: trial.id, spec: source.spec, createdBy: user.id, amendmentReason: reason });
+    // The amendment starts from the charter's quorum too (changed, if at all, on the committee page).
+    if (source.dmc_quorum != null) await setDraftDesignQuorum(tx, created.id, source.dmc_quorum);
     await appendAudit(tx, {
       actorUserId: user.id,
       actorEmail: user.email,

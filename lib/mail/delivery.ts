@@ -10,6 +10,7 @@ import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { claimEmail, fetchDueEmailIds, fetchEmail, markEmailAttemptFailed, markEmailSent } from "@/db/queries/emails";
 import { fetchPacketPdf } from "@/db/queries/packets";
+import { fetchLetterById } from "@/db/queries/committee";
 import { fetchTrial } from "@/db/queries/trials";
 import { mailFrom, mailTransport } from "./transport";
 
@@ -40,6 +41,13 @@ export async function attemptDelivery(id: number, policy: RetryPolicy = DEFAULT_
       if (!packet || packet.audience !== "open") throw new Error("the open packet to attach is missing");
       const trial = msg.trial_id === null ? undefined : await fetchTrial(msg.trial_id);
       attachments.push({ filename: `${trial?.code ?? "trial"}-open-report-v${packet.version}.pdf`, content: Buffer.from(packet.pdf), contentType: "application/pdf" });
+    }
+    if (msg.kind === "recommendation_letter") {
+      // The committee's letter to the sponsor: open by construction (lib/committee/letter.ts).
+      const letter = msg.letter_id ? await fetchLetterById(msg.letter_id) : undefined;
+      if (!letter) throw new Error("the recommendation letter to attach is missing");
+      const trial = msg.trial_id === null ? undefined : await fetchTrial(msg.trial_id);
+      attachments.push({ filename: `${trial?.code ?? "trial"}-dmc-recommendation-letter-v${letter.version}.pdf`, content: Buffer.from(letter.pdf), contentType: "application/pdf" });
     }
     const info = await mailTransport().sendMail({
       from: mailFrom(),

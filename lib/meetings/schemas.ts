@@ -1,3 +1,4 @@
+import { rowVersionSchema } from "@/lib/schema-pieces";
 import { z } from "zod";
 import { isKnownTimeZone } from "@/lib/packets/meeting-time";
 
@@ -29,7 +30,7 @@ export function scheduleFormValues(form: FormData) {
 }
 
 export const meetingRefSchema = z.object({ trialId: id("Unknown trial."), meetingId: id("Unknown meeting.") });
-export const attendanceSchema = meetingRefSchema.extend({ rowVersion: z.coerce.number().int().positive(), attendedIds: z.array(id("That attendee is not valid.")).max(100) });
+export const attendanceSchema = meetingRefSchema.extend({ rowVersion: rowVersionSchema, attendedIds: z.array(id("That attendee is not valid.")).max(100) });
 export const emailRefSchema = z.object({ trialId: id("Unknown trial."), emailId: id("Unknown message.") });
 
 export type MeetingFormState = { ok?: string; error?: string; fieldErrors?: Record<string, string[] | undefined>; meetingId?: number };

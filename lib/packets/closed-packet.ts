@@ -6,14 +6,12 @@ import "server-only";
  */
 import type { PublicUser, TrialRow } from "@/db/types";
 import type { ClosedConnection } from "@/db/knex";
-import { fetchLookSchedule } from "@/db/queries/open-status";
 import { fetchAnalysisLockSigner } from "@/db/queries/packets";
-import { fetchDesign } from "@/db/queries/designs";
-import { fetchArms } from "@/db/queries/trials";
-import { fetchArmCountsForTrial, fetchClosedAgenda } from "@/db/queries/closed";
+import { fetchClosedAgenda } from "@/db/queries/closed";
+import { loadReviewInput } from "@/lib/review/load-review";
 import { monitoringRuleLabel } from "@/lib/stats/labels";
 import { StatsDomainError } from "@/lib/stats/validate";
-import { computeReview, reproducibilityRecord, type ReviewInput } from "@/lib/review/compute-review";
+import { computeReview, reproducibilityRecord } from "@/lib/review/compute-review";
 import { buildClosedPacket } from "./build";
 import type { PacketDocument } from "./document";
 import { loadOpenPacketInput, type MeetingPacketInput } from "./open-packet";
@@ -30,24 +28,10 @@ async function buildClosedDocument(trial: TrialRow, open: MeetingPacketInput, cl
   const reviewed = open.looks.find((l) => l.lookNumber === open.meeting.lookNumber);
   if (!lock || !reviewed || (reviewed.status !== "locked" && reviewed.status !== "reviewed"))
     return `the analysis for look ${open.meeting.lookNumber} is not locked yet; the closed report is made from locked data only`;
-  const design = await fetchDesign(lock.designId);
-  if (!design) return "the analysis has no design";
-  const [arms, counts, schedule, closedAgenda] = await Promise.all([fetchArms(trial.id), fetchArmCountsForTrial(trial.id, closed), fetchLookSchedule(trial.id), fetchClosedAgenda(open.meetingId, closed)]);
-  const lockedLooks = schedule.filter((l) => l.status === "locked" || l.status === "reviewed");
-  const input: ReviewInput = {
-    design: design.spec,
-    arms: arms.map((a) => ({ id: a.id, label: a.label, role: a.arm_role })),
-    looks: lockedLooks.map((l) => ({
-      analysisId: l.id,
-      lookNumber: l.look_number,
-      cutoffDate: l.cutoff_date,
-      counts: counts
-        .filter((c) => c.analysis_id === l.id)
-        .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
-    })),
-    analysisId: open.analysisId,
-    generatedAt: now.toISOString(),
-  };
+  // The same review input the closed review screen reads (locked looks up to this one, planned
+  // sizes, pending counts), so the packet can never show a different computation.
+  const [{ input, designVersion }, closedAgenda] = await Promise.all([loadReviewInput(trial, open.analysisId, closed, now), fetchClosedAgenda(open.meetingId, closed)]);
+  const spec = input.design;
   try {
     const review = computeReview(input);
     return buildClosedPacket(open, {
@@ -55,13 +39,13 @@ async function buildClosedDocument(trial: TrialRow, open: MeetingPacketInput, cl
       record: reproducibilityRecord(input, review),
       closedAgenda,
       design: {
-        id: design.id,
-        version: design.version,
-        lockedAt: design.locked_at ? new Date(design.locked_at) : null,
+        id: designVersion.id,
+        version: designVersion.version,
+        lockedAt: designVersion.lockedAt ? new Date(designVersion.lockedAt) : null,
         ruleLabel:
-          design.spec.rule.kind === "predictive"
-            ? `Predictive probability (Lee & Liu 2008): success if P > ${design.spec.rule.thetaT} at the end; futility if PP < ${design.spec.rule.futilityThreshold}${design.spec.rule.efficacyStopping ? `; efficacy if PP > ${design.spec.rule.efficacyThreshold}` : "; no efficacy stopping"}`
-            : `${monitoringRuleLabel(design.spec.rule.kind, design.spec.arms)}: futility if P < ${design.spec.rule.futilityThreshold}${design.spec.rule.efficacyStopping ? `; efficacy if P > ${design.spec.rule.efficacyThreshold}` : "; no efficacy stopping"}; success if P > ${design.spec.rule.thetaT} at the end`,
+          spec.rule.kind === "predictive"
+            ? `Predictive probability (Lee & Liu 2008): success if P > ${spec.rule.thetaT} at the end; futility if PP < ${spec.rule.futilityThreshold}${spec.rule.efficacyStopping ? `; efficacy if PP > ${spec.rule.efficacyThreshold}` : "; no efficacy stopping"}`
+            : `${monitoringRuleLabel(spec.rule.kind, spec.arms)}: futility if P < ${spec.rule.futilityThreshold}${spec.rule.efficacyStopping ? `; efficacy if P > ${spec.rule.efficacyThreshold}` : "; no efficacy stopping"}; success if P > ${spec.rule.thetaT} at the end`,
       },
       lock: { signedBy: lock.signerName, lockedAt: lock.lockedAt ? new Date(lock.lockedAt) : null },
     });

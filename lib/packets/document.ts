@@ -4,6 +4,7 @@
  * the content hash covers, so the same data always gives the same hash whatever the PDF library
  * writes into its file header.
  */
+import { canonicalJson } from "@/lib/canonical-json";
 import { createHash } from "node:crypto";
 
 export type PacketAudience = "open" | "closed";
@@ -44,21 +45,6 @@ export type PacketDocument = {
   caution: string;
   sections: PacketSection[];
 };
-
-/** JSON with object keys sorted, so equal content always serialises to the same text. */
-export function canonicalJson(v: unknown): string {
-  if (v === null || v === undefined) return "null";
-  if (typeof v === "number") return Number.isFinite(v) ? JSON.stringify(v) : "null";
-  if (typeof v !== "object") return JSON.stringify(v);
-  if (v instanceof Date) return JSON.stringify(v.toISOString());
-  if (Array.isArray(v)) return `[${v.map(canonicalJson).join(",")}]`;
-  const o = v as Record<string, unknown>;
-  return `{${Object.keys(o)
-    .filter((k) => o[k] !== undefined)
-    .sort()
-    .map((k) => `${JSON.stringify(k)}:${canonicalJson(o[k])}`)
-    .join(",")}}`;
-}
 
 /** SHA-256 (hex) of the packet's canonical content and the engine version that computed it. */
 export function packetContentHash(doc: PacketDocument, engineVersion: string): string {

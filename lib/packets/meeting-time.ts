@@ -1,9 +1,10 @@
 /**
- * Meeting times: stored as a UTC instant plus the IANA time zone the organiser chose. Converting a
- * wall-clock time in a zone to UTC uses Intl (the runtime's time-zone database), so clock changes
- * are handled by the same data the browser and the operating system use.
+ * Meeting times: stored as a UTC instant plus the IANA time zone the organiser chose. Zone
+ * arithmetic is @date-fns/tz's (TZDate, tzOffset), over the runtime's time-zone database, so clock
+ * changes are handled by the same data the browser and the operating system use.
  */
 import { format } from "date-fns";
+import { TZDate, tzOffset } from "@date-fns/tz";
 
 /** True when the runtime knows this IANA time-zone name. */
 export function isKnownTimeZone(tz: string): boolean {
@@ -22,27 +23,16 @@ export function timeZoneChoices(): string[] {
   return ["UTC", ...all.filter((z) => z !== "UTC")];
 }
 
-type Wall = { year: number; month: number; day: number; hour: number; minute: number };
+const WALL = "yyyy-MM-dd'T'HH:mm";
 
-function wallIn(instant: number, tz: string): Wall {
-  const parts = new Intl.DateTimeFormat("en-US", {
-    timeZone: tz,
-    hourCycle: "h23",
-    year: "numeric",
-    month: "2-digit",
-    day: "2-digit",
-    hour: "2-digit",
-    minute: "2-digit",
-  }).formatToParts(new Date(instant));
-  const get = (t: string) => Number(parts.find((p) => p.type === t)?.value);
-  return { year: get("year"), month: get("month"), day: get("day"), hour: get("hour") % 24, minute: get("minute") };
+/** The wall-clock time ("2026-12-10T15:00") of an instant in a zone. */
+function wallIn(instant: number, tz: string): string {
+  return format(new TZDate(instant, tz), WALL);
 }
 
 /** Offset of the zone from UTC at an instant, in minutes (east positive). */
 export function zoneOffsetMinutes(instant: number, tz: string): number {
-  const w = wallIn(instant, tz);
-  const asUtc = Date.UTC(w.year, w.month - 1, w.day, w.hour, w.minute);
-  return Math.round((asUtc - Math.floor(instant / 60000) * 60000) / 60000);
+  return tzOffset(tz, new Date(instant));
 }
 
 export type ZonedParse = { ok: true; utc: Date } | { ok: false; error: string };
@@ -63,10 +53,7 @@ export function zonedWallTimeToUtc(local: string, tz: string): ZonedParse {
   // Offsets on either side of the wall time; try both and keep those that map back to the wall time.
   const candidates = [...new Set([zoneOffsetMinutes(naive - 86400000, tz), zoneOffsetMinutes(naive, tz), zoneOffsetMinutes(naive + 86400000, tz)])]
     .map((off) => naive - off * 60000)
-    .filter((t) => {
-      const w = wallIn(t, tz);
-      return w.year === year && w.month === month && w.day === day && w.hour === hour && w.minute === minute;
-    })
+    .filter((t) => wallIn(t, tz) === local)
     .sort((a, b) => a - b);
   if (candidates.length === 0) return { ok: false, error: `${local.replace("T", " ")} does not exist in ${tz} (the clocks change then). Choose another time.` };
   return { ok: true, utc: new Date(candidates[0]) };
@@ -74,9 +61,7 @@ export function zonedWallTimeToUtc(local: string, tz: string): ZonedParse {
 
 /** The wall-clock value for a datetime-local input showing `utc` in `tz`. */
 export function utcToZonedInputValue(utc: Date, tz: string): string {
-  const w = wallIn(utc.getTime(), tz);
-  const p = (n: number) => String(n).padStart(2, "0");
-  return `${w.year}-${p(w.month)}-${p(w.day)}T${p(w.hour)}:${p(w.minute)}`;
+  return wallIn(utc.getTime(), tz);
 }
 
 function offsetLabel(minutes: number): string {
@@ -87,7 +72,5 @@ function offsetLabel(minutes: number): string {
 
 /** "Thursday 10 December 2026, 15:00 Europe/Oslo (UTC+01:00)". */
 export function formatMeetingTime(utc: Date, tz: string): string {
-  const w = wallIn(utc.getTime(), tz);
-  const wall = new Date(w.year, w.month - 1, w.day, w.hour, w.minute);
-  return `${format(wall, "EEEE d MMMM yyyy, HH:mm")} ${tz} (${offsetLabel(zoneOffsetMinutes(utc.getTime(), tz))})`;
+  return `${format(new TZDate(utc.getTime(), tz), "EEEE d MMMM yyyy, HH:mm")} ${tz} (${offsetLabel(zoneOffsetMinutes(utc.getTime(), tz))})`;
 }

@@ -8,9 +8,9 @@ import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
 
 const ROOT = path.resolve(__dirname, "../..");
-const FORBIDDEN = ["analysis_arm_counts", "patient_outcomes", "rationale", "review_cache"];
+const FORBIDDEN = ["analysis_arm_counts", "patient_outcomes", "rationale", "committee_votes", "tally_json", "review_cache"];
 /** Modules that hold closed data by design; reaching one from blinded code is itself a failure. */
-const CLOSED_MODULES = ["db/queries/closed.ts", "db/queries/recommendations.ts", "lib/review/load-review.ts", "lib/review/compute-review.ts", "lib/review/review-cache.ts"];
+const CLOSED_MODULES = ["db/queries/closed.ts", "db/queries/recommendations.ts", "db/queries/committee-closed.ts", "lib/committee/votes.ts", "lib/review/load-review.ts", "lib/review/compute-review.ts", "lib/review/review-cache.ts"];
 
 /** Entry points every blinded role (sponsor, coordinator, administrator without an unblinded role) reaches. */
 const BLINDED_ENTRY_POINTS = [
@@ -31,6 +31,14 @@ const BLINDED_ENTRY_POINTS = [
   "app/trials/[trialId]/meetings/[meetingId]/page.tsx",
   "app/trials/[trialId]/meetings/actions.ts",
   "lib/packets/open-packet.ts",
+  // The committee's open side: its make-up, a meeting's sessions, declarations, open minutes and the
+  // letter to the sponsor (the letter's content is built from open facts only).
+  "app/trials/[trialId]/committee/page.tsx",
+  "app/trials/[trialId]/committee/actions.ts",
+  "app/trials/[trialId]/meetings/[meetingId]/committee/page.tsx",
+  "app/trials/[trialId]/meetings/[meetingId]/committee/actions.ts",
+  "app/api/trials/[trialId]/meetings/[meetingId]/letter/route.ts",
+  "lib/committee/letter.ts",
 ];
 
 function stripComments(src: string): string {
@@ -101,6 +109,7 @@ describe("blinded code cannot reach closed data", () => {
   it("the open status page reads only the open queries", () => {
     const files = importClosure("app/trials/[trialId]/page.tsx").filter((f) => f.startsWith("db/queries/"));
     expect(files).toContain("db/queries/open-status.ts");
-    for (const f of files) expect(["db/queries/open-status.ts", "db/queries/users.ts", "db/queries/memberships.ts", "db/queries/trials.ts"]).toContain(f);
+    // lib/auth's own reads (accounts, roles, trials, API tokens) hold no arm-level data.
+    for (const f of files) expect(["db/queries/open-status.ts", "db/queries/users.ts", "db/queries/memberships.ts", "db/queries/trials.ts", "db/queries/api-tokens.ts"]).toContain(f);
   });
 });

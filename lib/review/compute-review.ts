@@ -6,6 +6,7 @@
  * CLOSED output: arm-level counts, posteriors, predictive probabilities and boundary positions.
  * Only code that has passed requireTrialAccess(..., "viewClosed") may call this.
  */
+import type { ArmCounts } from "@/lib/domain";
 import type { Design, LookDecision, MixtureBeta, MonitoringRule, PriorSpec, SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { resolvePrior, mixtureSurvival } from "@/lib/stats/priors";
 import { posteriorMixture, predictiveProbabilitySingleArm, predictiveProbabilityTwoArm, singleArmFinalSuccess } from "@/lib/stats/predictive";
@@ -36,7 +37,8 @@ export type ReviewArm = { id: number; label: string; role: ArmRole };
  * `evaluable` (evaluable for response) for responders, `treated` (evaluable for toxicity) for
  * toxicities; treated and toxicities are null when the design records no toxicity.
  */
-export type ReviewArmCounts = { armId: number; enrolled: number; treated: number | null; evaluable: number; responders: number; toxicities: number | null };
+/** Pending patients are part of the future (lib/stats/pending.ts). */
+export type ReviewArmCounts = ArmCounts;
 
 /** plannedN: the planned look size this analysis was scheduled at (the evaluable count may differ). */
 export type ReviewLook = { analysisId: number; lookNumber: number; cutoffDate: string | null; plannedN?: number | null; counts: ReviewArmCounts[] };
@@ -68,6 +70,8 @@ export type ArmReview = {
   treated: number | null;
   /** Patients evaluable for response: the response posterior's denominator. */
   evaluable: number;
+  /** Enrolled, response not yet known at the cut-off: future patients for the predictive probability. */
+  pending: number;
   responders: number;
   toxicities: number | null;
   prior: MixtureBeta;
@@ -321,6 +325,7 @@ function armReview(arm: ReviewArm, c: ReviewArmCounts, priorSpec: PriorSpec, p0:
     enrolled: c.enrolled,
     treated: c.treated,
     evaluable: c.evaluable,
+    pending: c.pending ?? 0,
     responders: c.responders,
     toxicities: c.toxicities,
     prior,

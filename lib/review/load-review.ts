@@ -4,7 +4,7 @@ import "server-only";
  * passed requireTrialAccess(..., "viewClosed") (or authorizePage with it) first.
  */
 import { fetchAnalysesOpen } from "@/db/queries/analyses";
-import { fetchArmAtLook, fetchArmCountsForTrial } from "@/db/queries/closed";
+import { armCountsOf, fetchArmAtLook, fetchArmCountsForTrial } from "@/db/queries/closed";
 import type { ClosedReader } from "@/db/knex";
 import { fetchDesign, parseStoredDesign } from "@/db/queries/designs";
 import { fetchRecommendationsClosed, fetchReviewSignatures } from "@/db/queries/recommendations";
@@ -43,7 +43,7 @@ export async function loadReviewInput(trial: TrialRow, analysisId: number, close
     plannedN: l.planned_n,
     counts: counts
       .filter((c) => c.analysis_id === l.id)
-      .map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities })),
+      .map(armCountsOf),
   }));
   return {
     analysis,

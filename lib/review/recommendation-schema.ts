@@ -1,4 +1,5 @@
 /** The one schema for recording a recommendation, shared by the server action and the route handler. */
+import { signingPasswordSchema } from "@/lib/schema-pieces";
 import { z } from "zod";
 
 import { RECOMMENDATION_DECISIONS } from "@/lib/domain";
@@ -17,7 +18,14 @@ export const recommendationSchema = z.object({
     .union([z.literal("").transform(() => null), z.null(), z.coerce.number().int("Not a valid entry.").positive("Not a valid entry.").max(2_147_483_647)])
     .optional()
     .transform((v) => v ?? null),
-  password: z.string({ message: "Enter your password to sign." }).min(1, "Enter your password to sign.").max(200, "That password is too long."),
+  /** The meeting at which the committee decided; required when the trial has a committee. */
+  meetingId: z
+    .union([z.literal("").transform(() => null), z.null(), z.coerce.number().int("Not a valid meeting.").positive("Not a valid meeting.").max(2_147_483_647)])
+    .optional()
+    .transform((v) => v ?? null),
+  /** Closed: the minority view, when the committee's vote was not unanimous. */
+  dissent: z.string().trim().max(4000, "Keep the dissent under 4000 characters.").optional().transform((v) => (v ? v : null)),
+  password: signingPasswordSchema,
 });
 
 export type RecommendationInput = z.infer<typeof recommendationSchema>;
@@ -25,5 +33,5 @@ export type RecommendationInput = z.infer<typeof recommendationSchema>;
 export type RecommendationFormState = {
   ok?: string;
   error?: string;
-  fieldErrors?: Partial<Record<"decision" | "rationale" | "correctsId" | "password", string[]>>;
+  fieldErrors?: Partial<Record<"decision" | "rationale" | "correctsId" | "meetingId" | "dissent" | "password", string[]>>;
 };

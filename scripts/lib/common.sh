@@ -37,6 +37,11 @@ ensure_mariadb_installed() {
   export PATH="$PATH:/usr/sbin"
 }
 
+# Rscript (Debian's r-base-core) runs the closed review's reproduction scripts in the integration tests.
+ensure_rscript_installed() {
+  if ! command -v Rscript >/dev/null 2>&1; then apt_install r-base-core; fi
+}
+
 ensure_node_modules() {
   local stamp="$ROOT/node_modules/.cairn-lock-stamp"
   if [ ! -f "$stamp" ] || ! cmp -s "$ROOT/package-lock.json" "$stamp"; then
@@ -130,17 +135,22 @@ SQL
 }
 
 # Table-level grants, renewed after every migration: full DML everywhere except the audit trail,
-# signatures and recommendations, which the application may only read and append to, and users,
-# which it may not delete.
+# signatures, recommendations and the committee's signed records (votes, declarations, letters),
+# which the application may only read and append to, and users, which it may not delete.
 grant_app_privileges() {
   local db="$1" tables t
+  local views v
   tables=$(mysql_root -N -e "SELECT table_name FROM information_schema.tables WHERE table_schema='$db' AND table_type='BASE TABLE'")
+  views=$(mysql_root -N -e "SELECT table_name FROM information_schema.tables WHERE table_schema='$db' AND table_type='VIEW'")
   {
+    # The *_open views are what blinded reads go through; open queries shared by every role join
+    # them (signatures_open), so the application's account reads them too.
+    for v in $views; do echo "GRANT SELECT ON \`$db\`.\`$v\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';"; done
     for t in $tables; do
       case "$t" in
         # Append-only: the application may read and add, never change or remove. The REVOKE removes
         # UPDATE/DELETE granted before this rule; the GRANT before it ensures REVOKE finds a grant row.
-        audit_events|signatures|recommendations)
+        audit_events|signatures|recommendations|committee_votes|conflict_declarations|recommendation_letters)
           echo "GRANT SELECT, INSERT ON \`$db\`.\`$t\` TO '$CAIRN_DB_APP_USER'@'127.0.0.1';"
           echo "REVOKE UPDATE, DELETE ON \`$db\`.\`$t\` FROM '$CAIRN_DB_APP_USER'@'127.0.0.1';" ;;
         # Accounts are deactivated, never deleted.

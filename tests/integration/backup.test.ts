@@ -60,11 +60,13 @@ describe("backup and restore", () => {
     expect(copy.ok).toBe(true);
   });
 
-  it("the restored copy still refuses changes to the audit trail, signatures and recommendations (triggers came along)", async () => {
+  it("the restored copy still refuses changes to the audit trail, signatures, recommendations and approved minutes (triggers came along)", async () => {
     const [rows] = await restored.raw("SELECT trigger_name AS t FROM information_schema.triggers WHERE trigger_schema = 'cairn_restored' ORDER BY 1");
     expect((rows as { t: string }[]).map((r) => r.t)).toEqual([
       "audit_events_refuse_delete",
       "audit_events_refuse_update",
+      "meeting_minutes_refuse_approved_delete",
+      "meeting_minutes_refuse_approved_update",
       "recommendations_refuse_delete",
       "recommendations_refuse_update",
       "signatures_refuse_delete",

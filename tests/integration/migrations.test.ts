@@ -55,6 +55,23 @@ const EXPECTED: Record<string, string[]> = {
   "20261203060300_create_view_audit_events_open": ["view audit_events_open"],
   "20261203060400_create_view_packets_open": ["view packets_open"],
   "20261205030100_create_review_cache": ["table review_cache"],
+  "20261205040100_create_committee_members": ["table committee_members"],
+  "20261205040200_add_designs_dmc_quorum": ["column designs.dmc_quorum"],
+  "20261205040300_create_meeting_session_attendance": ["table meeting_session_attendance"],
+  "20261205040400_create_conflict_declarations": ["table conflict_declarations"],
+  "20261205040500_create_committee_votes": ["table committee_votes"],
+  "20261205040600_recommendations_committee_columns": ["column recommendations.meeting_id", "column recommendations.tally_json", "column recommendations.dissent", "index recommendations.recommendations_meeting_id_foreign"],
+  "20261205040700_create_meeting_minutes": ["table meeting_minutes"],
+  "20261205040800_meeting_minutes_refuse_approved_update": ["trigger meeting_minutes_refuse_approved_update"],
+  "20261205040900_meeting_minutes_refuse_approved_delete": ["trigger meeting_minutes_refuse_approved_delete"],
+  "20261205041000_create_view_meeting_minutes_open": ["view meeting_minutes_open"],
+  "20261205041100_create_recommendation_letters": ["table recommendation_letters"],
+  "20261205041200_email_messages_letter_kind": ["changed column email_messages.kind"],
+  "20261205041300_email_messages_letter_id": ["column email_messages.letter_id", "index email_messages.email_messages_letter_id_foreign"],
+  "20261205060100_add_pending_to_analysis_arm_counts": ["column analysis_arm_counts.pending"],
+  "20261205060200_add_outcome_pending_to_patient_outcomes": ["column patient_outcomes.outcome_pending"],
+  "20261205070000_create_api_tokens": ["table api_tokens"],
+  "20261205080000_create_view_signatures_open": ["view signatures_open"],
 };
 
 const ALL_TABLES = Object.values(EXPECTED)
@@ -94,6 +111,13 @@ const FIXTURES: Record<string, Record<string, unknown>[]> = {
   sign_in_failures: [{ id: 1, scope: "account", subject: SIGNER.email, failed_at: "2026-12-01 08:00:00.000" }],
   review_cache: [{ id: 1, analysis_id: 1, review_version: 1, engine_version: "test", input_sha256: H("e"), review_json: "{}", created_at: "2026-12-05 03:00:00.000" }],
   password_links: [{ id: 1, user_id: 1, token_sha256: H("d"), expires_at: "2026-12-02 09:00:00.000", used_at: null, revoked_at: null, issued_by: 1, created_at: "2026-12-01 09:00:00.000" }],
+  api_tokens: [{ id: 1, user_id: 1, trial_id: 1, role: "unblinded_statistician", label: "nightly export", token_sha256: H("e"), expires_at: "2027-01-01 09:00:00.000", revoked_at: null, created_at: "2026-12-01 09:00:00.000" }],
+  committee_members: [{ id: 1, trial_id: 1, user_id: 1, member_role: "chair", chair_of_trial_id: 1, created_by: 1, created_at: "2026-12-01 10:00:00.000" }],
+  meeting_session_attendance: [{ id: 1, meeting_id: 1, user_id: 1, session: "closed", attended: 1, recorded_by: 1, recorded_at: "2026-12-01 10:01:00.000" }],
+  conflict_declarations: [{ id: 1, meeting_id: 1, user_id: 1, has_conflict: 0, statement: null, signature_id: 1, created_at: "2026-12-01 10:02:00.000" }],
+  committee_votes: [{ id: 1, meeting_id: 1, analysis_id: 1, user_id: 1, decision: "continue", comment: "Invented comment", signature_id: 1, created_at: "2026-12-01 10:03:00.000" }],
+  meeting_minutes: [{ id: 1, meeting_id: 1, session: "open", version: 1, body: "Invented minutes", created_by: 1, created_at: "2026-12-01 10:04:00.000", updated_at: "2026-12-01 10:04:00.000" }],
+  recommendation_letters: [{ id: 1, trial_id: 1, meeting_id: 1, recommendation_id: 1, version: 1, content_hash: H("e"), page_count: 1, byte_size: 5, pdf: Buffer.from("%PDF-"), signature_id: 1, created_by: 1, created_at: "2026-12-01 10:05:00.000" }],
 };
 
 async function rows<T>(sql: string): Promise<T[]> {

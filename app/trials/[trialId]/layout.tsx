@@ -13,6 +13,7 @@ export default async function TrialLayout({ children, params }: { children: Reac
   if (allows(principal, "enterData")) tabs.push({ href: `${base}/analyses`, label: "Interim data" });
   if (unblinded) tabs.push({ href: `${base}/review`, label: "Closed review" });
   if (allows(principal, "manageMeetings")) tabs.push({ href: `${base}/meetings`, label: "Meetings" });
+  tabs.push({ href: `${base}/committee`, label: "Committee" });
   tabs.push({ href: `${base}/audit`, label: "Audit trail" });
   return (
     <div className="flex flex-col gap-4">

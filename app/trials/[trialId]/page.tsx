@@ -1,7 +1,8 @@
 import type { Metadata } from "next";
 import { authorizePage } from "@/lib/auth";
 import { parseId } from "@/lib/route-params";
-import { fetchLookSchedule, fetchRecommendationsOpen } from "@/db/queries/open-status";
+import { fetchLatestLettersOfTrial, fetchLookSchedule, fetchRecommendationsOpen } from "@/db/queries/open-status";
+
 import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
 import { AccrualChart } from "@/components/review/accrual-chart";
@@ -21,7 +22,7 @@ const isoDay = (d: Date | string) => new Date(d).toISOString().slice(0, 10);
 export default async function TrialOverviewPage({ params }: { params: Promise<{ trialId: string }> }) {
   const trialId = parseId((await params).trialId);
   const { trial } = await authorizePage(trialId, "viewOpen");
-  const [looks, recommendations] = await Promise.all([fetchLookSchedule(trial.id), fetchRecommendationsOpen(trial.id)]);
+  const [looks, recommendations, letters] = await Promise.all([fetchLookSchedule(trial.id), fetchRecommendationsOpen(trial.id), fetchLatestLettersOfTrial(trial.id)]);
   const latest = recommendations[0];
   const happened = looks.filter((l) => l.status === "locked" || l.status === "reviewed");
   const accrual = looks.filter((l) => l.cutoff_date && l.enrolled_total !== null).map((l) => ({ date: l.cutoff_date as string, enrolled: l.enrolled_total as number, look: l.look_number }));
@@ -49,6 +50,13 @@ export default async function TrialOverviewPage({ params }: { params: Promise<{ 
                 <Badge tone="amber">superseded</Badge> The look was reopened for a correction after this recommendation; a new review is due.
               </p>
             ) : null}
+            {letters.filter((l) => l.lookNumber === latest.lookNumber).slice(0, 1).map((l) => (
+              <p key={l.id} className="mt-1 text-sm">
+                <a href={`/api/trials/${trial.id}/meetings/${l.meetingId}/letter?version=${l.version}`} data-testid="recommendation-letter-link" download>
+                  The committee&apos;s letter to the sponsor (PDF, version {l.version}, signed by {l.signerName})
+                </a>
+              </p>
+            ))}
           </div>
         ) : (
           <p className="text-sm text-stone-600">No recommendation has been recorded yet.</p>

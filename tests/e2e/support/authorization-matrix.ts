@@ -85,6 +85,9 @@ const action = (file: string, name: string, path: string, expect: Expect, form: 
 const A = "/api/trials/{trial}";
 const LOOK = `${A}/analyses/{analysis}`;
 const MEETINGS = "app/trials/[trialId]/meetings/actions.ts";
+const COMMITTEE = "app/trials/[trialId]/committee/actions.ts";
+const MEETING_COMMITTEE = "app/trials/[trialId]/meetings/[meetingId]/committee/actions.ts";
+const CLOSED_SESSION = "app/trials/[trialId]/meetings/[meetingId]/closed-session/actions.ts";
 /** A calibration id no job has: the allowed roles reach the lookup (404), the others are refused first. */
 const NO_JOB = "2147480000";
 
@@ -103,6 +106,10 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   page("/trials/{trial}/audit", everyone(307)),
   page("/trials/{trial}/meetings", everyone(307)),
   page("/trials/{trial}/meetings/{meeting}", everyone(307)),
+  page("/trials/{trial}/committee", everyone(307)),
+  page("/trials/{trial}/meetings/{meeting}/committee", everyone(307)),
+  // Votes, comments, the tally and the closed minutes: DMC and unblinded statistician only.
+  page("/trials/{trial}/meetings/{meeting}/closed-session", unblindedOnly(307)),
   page("/admin", on({ admin: 200 }, 403, 307, 403)),
   page("/admin/mail", on({ admin: 200 }, 403, 307, 403)),
   // A caught message that does not exist: the administrator reaches the lookup (404), others are refused.
@@ -126,12 +133,17 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   get(`${LOOK}/patients`, unblindedOnly(401)),
   get(`${LOOK}/review`, unblindedOnly(401)),
   get(`${LOOK}/review/export`, unblindedOnly(401)),
+  get(`${LOOK}/review/r-script`, unblindedOnly(401)),
   get(`${LOOK}/interval?arm={arm}&lo=0.2&hi=0.4`, unblindedOnly(401)),
+  get(`${LOOK}/what-if?patients=1&responders=0&patientsT=1&respondersT=0&patientsC=1&respondersC=0`, unblindedOnly(401)),
   get(`${LOOK}/recommendations`, unblindedOnly(401)),
   get(`${A}/audit`, everyone(401)),
   get(`${A}/calibrations/${NO_JOB}`, writers(EDIT_DESIGN, 404)),
   get(`${A}/meetings/{meeting}/packets/{packetOpen}`, everyone(401)),
   get(`${A}/meetings/{meeting}/packets/{packetClosed}`, unblindedOnly(401)),
+  // The fixture's meeting has no letter yet: everyone on the trial reaches the lookup (404).
+  get(`${A}/meetings/{meeting}/letter`, everyone(401, 404)),
+  get(`${A}/meetings/{meeting}/closed-session`, unblindedOnly(401)),
 
   // Trial-scoped writes (invalid bodies: nothing changes for anyone)
   write("POST", `${A}/designs`, writers(EDIT_DESIGN)),
@@ -161,6 +173,8 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   action("app/admin/actions.ts", "deactivateAccount", "/admin", on({ admin: "invalid" }, "refused", 307, "refused")),
   action("app/admin/actions.ts", "reactivateAccount", "/admin", on({ admin: "invalid" }, "refused", 307, "refused")),
   action("app/account/actions.ts", "changePassword", "/account", on({}, "invalid", 307, "invalid")),
+  action("app/account/actions.ts", "createApiTokenAction", "/account", on({}, "invalid", 307, "invalid")),
+  action("app/account/actions.ts", "revokeApiTokenAction", "/account", on({}, "invalid", 307, "invalid")),
   // Public: an empty form has no token, so it is refused as invalid for everyone and changes nothing.
   action("app/set-password/actions.ts", "setPassword", "/set-password", on({}, "invalid", "invalid", "invalid")),
   action("app/trials/new/actions.ts", "createTrialAction", "/trials/new", on({ admin: "invalid", statistician: "invalid" }, "refused", 307, "refused")),
@@ -175,6 +189,21 @@ export const AUTHORIZATION_MATRIX: MatrixRow[] = [
   action(MEETINGS, "saveAttendance", "/trials/{trial}/meetings", actionFor(MANAGE_MEETINGS), { trialId: "{trial}" }),
   action(MEETINGS, "cancelMeeting", "/trials/{trial}/meetings", actionFor(MANAGE_MEETINGS), { trialId: "{trial}" }),
   action(MEETINGS, "retryFailedEmail", "/trials/{trial}/meetings", actionFor(MANAGE_MEETINGS), { trialId: "{trial}" }),
+  // The committee: its make-up is the administrator's; the chair-only and voting-member checks come
+  // after the form is read, so an empty form is invalid for every DMC member.
+  action(COMMITTEE, "addCommitteeMemberAction", "/trials/{trial}/committee", actionFor(["admin"]), { trialId: "{trial}" }),
+  action(COMMITTEE, "changeCommitteeChairAction", "/trials/{trial}/committee", actionFor(["admin"]), { trialId: "{trial}" }),
+  action(COMMITTEE, "setCharterQuorumAction", "/trials/{trial}/committee", actionFor(EDIT_DESIGN), { trialId: "{trial}" }),
+  action(MEETING_COMMITTEE, "recordOpenAttendanceAction", "/trials/{trial}/committee", actionFor(MANAGE_MEETINGS), { trialId: "{trial}" }),
+  action(MEETING_COMMITTEE, "recordClosedAttendanceAction", "/trials/{trial}/committee", actionFor(["statistician", "dmc"]), { trialId: "{trial}" }),
+  action(MEETING_COMMITTEE, "declareConflictsAction", "/trials/{trial}/committee", actionFor(["dmc"]), { trialId: "{trial}" }),
+  action(MEETING_COMMITTEE, "saveOpenMinutesAction", "/trials/{trial}/committee", actionFor(["statistician", "dmc", "coordinator"]), { trialId: "{trial}" }),
+  action(MEETING_COMMITTEE, "saveClosedMinutesAction", "/trials/{trial}/committee", actionFor(["statistician", "dmc"]), { trialId: "{trial}" }),
+  action(MEETING_COMMITTEE, "approveMinutesAction", "/trials/{trial}/committee", actionFor(["dmc"]), { trialId: "{trial}" }),
+  action(MEETING_COMMITTEE, "signLetterAction", "/trials/{trial}/committee", actionFor(["dmc"]), { trialId: "{trial}" }),
+  action(MEETING_COMMITTEE, "sendLetterAction", "/trials/{trial}/committee", actionFor(["dmc"]), { trialId: "{trial}" }),
+  action(CLOSED_SESSION, "castVoteAction", "/trials/{trial}/committee", actionFor(["dmc"]), { trialId: "{trial}" }),
+  action(CLOSED_SESSION, "recordCommitteeRecommendationAction", "/trials/{trial}/committee", actionFor(["dmc"]), { trialId: "{trial}" }),
 ];
 
 /** What a refused action's form state says (lib/http.ts, lib/auth, app/trials/new/actions.ts). */

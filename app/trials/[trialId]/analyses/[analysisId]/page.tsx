@@ -5,7 +5,7 @@ import { authorizePage, closedConnection } from "@/lib/auth";
 import { parseId } from "@/lib/route-params";
 import { HttpError } from "@/lib/http";
 import { ANALYSIS_STATUS_LABELS, formatRate } from "@/lib/format";
-import { fetchArmCounts, fetchPatientOutcomeGrid } from "@/db/queries/closed";
+import { armCountsOf, fetchArmCounts, fetchPatientOutcomeGrid } from "@/db/queries/closed";
 import { fetchLockSignature } from "@/db/queries/analyses";
 import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
@@ -39,7 +39,7 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
     fetchPatientOutcomeGrid(a.id, closedConnection(access)),
     a.status === "locked" || a.status === "reviewed" ? fetchLockSignature(a.id) : Promise.resolve(undefined),
   ]);
-  const countValues = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities }));
+  const countValues = counts.map(armCountsOf);
   const patientLevel = patients.length > 0;
   const arms = look.arms.map((x) => ({ id: x.id, label: x.label, role: x.arm_role }));
   return (

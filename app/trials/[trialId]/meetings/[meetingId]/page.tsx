@@ -18,7 +18,7 @@ import { cancelMeeting, generateOpenPacketAction, retryFailedEmail, saveAttendan
 
 export const metadata: Metadata = { title: "DMC meeting" };
 
-const KIND_LABELS: Record<EmailKind, string> = { packet_open: "Open report (attached)", packet_closed_notice: "Closed report (link)", meeting_reminder: "Reminder", password_link: "Set-password link", password_changed: "Password changed" };
+const KIND_LABELS: Record<EmailKind, string> = { packet_open: "Open report (attached)", packet_closed_notice: "Closed report (link)", meeting_reminder: "Reminder", password_link: "Set-password link", password_changed: "Password changed", recommendation_letter: "Recommendation letter (attached)" };
 const STATUS_TONES = { queued: "amber", sending: "amber", sent: "lichen", failed: "berry" } as const;
 
 /** A UTC time stamp, independent of the server's own time zone. */
@@ -71,6 +71,10 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
             <dt className="text-stone-500">Recommendation made</dt>
             <dd>{recommendation ? `${DECISION_LABELS[recommendation.decision]} (signed by ${recommendation.signerName})${recommendation.superseded ? ", superseded: the look was reopened for a correction" : ""}` : "none recorded for this look"}</dd>
           </dl>
+          <p className="mt-3 text-sm">
+            <Link href={`/trials/${trial.id}/meetings/${meeting.id}/committee`} data-testid="committee-meeting-link">Committee: sessions, declarations, minutes and the letter to the sponsor</Link>
+            {unblinded ? <> · <Link href={`/trials/${trial.id}/meetings/${meeting.id}/closed-session`}>Closed session: votes and the committee&apos;s recommendation</Link></> : null}
+          </p>
           <h3 className="mt-4 text-sm font-semibold">Open session agenda</h3>
           <p className="whitespace-pre-wrap text-sm text-stone-700">{meeting.open_agenda || "None entered."}</p>
           {unblinded ? (

@@ -6,6 +6,7 @@
  * closed connection, so a blinded request has nothing to read them with.
  */
 import { formId } from "@/lib/route-params";
+import { formError } from "@/lib/form-action";
 import { revalidatePath } from "next/cache";
 import { closedConnection, requireTrialAccess } from "@/lib/auth";
 import { HttpError, publicErrorMessage } from "@/lib/http";
@@ -23,8 +24,7 @@ export async function prepareClosedPacketAction(_prev: MeetingFormState, form: F
     access = await requireTrialAccess(trialId, "viewClosed");
     await requireTrialAccess(trialId, "manageMeetings");
   } catch (e) {
-    if (e instanceof HttpError) return { error: e.message };
-    throw e;
+    return formError(e);
   }
   const ref = closedPacketRefSchema.safeParse({ trialId: form.get("trialId"), analysisId: form.get("analysisId"), meetingId: form.get("meetingId") });
   if (!ref.success) return { error: "That meeting is not valid." };
@@ -39,6 +39,6 @@ export async function prepareClosedPacketAction(_prev: MeetingFormState, form: F
     return { ok: `Closed report: version ${r.version}${r.created ? " (new)" : " (unchanged)"}. Send it from the meeting page: DMC members get a link, never the content.` };
   } catch (e) {
     if (e instanceof HttpError || e instanceof StatsDomainError) return { error: publicErrorMessage(e, access.unblinded) };
-    throw e;
+    return formError(e);
   }
 }

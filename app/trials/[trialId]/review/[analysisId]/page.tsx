@@ -20,8 +20,12 @@ import { buttonClass } from "@/components/ui/button";
 import { DataGrid } from "@/components/grid/data-grid";
 import { BoundaryPlot, CumulativePlot, DifferencePlot, PredictiveOverLooksPlot, ToxicityPlot } from "@/components/review/review-charts";
 import { IntervalQuestion } from "@/components/review/interval-question";
+import { WhatItTakes } from "@/components/review/what-it-takes";
+import { WhatIf } from "@/components/review/what-if";
+import { whatItTakesPanel } from "@/lib/review/what-if";
 import { RecommendationForm } from "@/components/review/recommendation-form";
 import { recordRecommendationAction } from "./actions";
+import { fetchCommittee } from "@/db/queries/committee";
 import { ReopenReviewForm } from "@/components/review/reopen-review-form";
 import { ANALYSIS_STATUS_LABELS, DECISION_LABELS, formatBoundary, formatProbability, formatRate } from "@/lib/format";
 import type { Interval, HpdRegion } from "@/lib/review/posterior-summary";
@@ -78,6 +82,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
       .map(async (m) => ({ meeting: m, closedAgenda: await fetchClosedAgenda(m.id, closed), packets: await fetchPackets(m.id, ["closed"]) })),
   );
   const prepare = allows(principal, "manageMeetings");
+  const hasCommittee = (await fetchCommittee(trial.id, closed)).length > 0;
   // Recommendations of an earlier review version are superseded, never corrected.
   const current = recommendations.find((r) => r.correctedById === null && !r.superseded) ?? null;
   const nText = (o: { n: number; nControl: number | null }) => (o.nControl === null ? String(o.n) : `${o.n} / ${o.nControl}`);
@@ -105,9 +110,14 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
           </p>
           <h2 className="mt-1 text-xl font-semibold">Interim analysis, look {review.lookNumber}</h2>
         </div>
-        <a className={buttonClass("secondary")} href={`/api/trials/${trial.id}/analyses/${analysisId}/review/export`} download>
-          Download reproducibility record (JSON)
-        </a>
+        <div className="flex flex-wrap gap-2">
+          <a className={buttonClass("secondary")} href={`/api/trials/${trial.id}/analyses/${analysisId}/review/export`} download>
+            Download reproducibility record (JSON)
+          </a>
+          <a className={buttonClass("secondary")} href={`/api/trials/${trial.id}/analyses/${analysisId}/review/r-script`} download data-testid="r-script-download" title="A base-R script that recomputes this look's numbers and prints each next to Cairn's value">
+            Download R script
+          </a>
+        </div>
       </div>
 
       <Banner tone={decisionTone(review.decision)} title={decisionTitle(review.decision)}>
@@ -126,7 +136,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             <thead>
               <tr>
                 <th>Arm</th>
-                <th>Responders / evaluable</th>
+                <th>Responders / evaluable / pending</th>
                 <th>Mean</th>
                 <th>Median</th>
                 <th>SD</th>
@@ -141,7 +151,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
               {review.arms.map((a) => (
                 <tr key={a.armId}>
                   <td>{a.label}</td>
-                  <td className="tabular-nums">{`${a.responders} / ${a.evaluable}`}</td>
+                  <td className="tabular-nums" data-testid="arm-counts">{`${a.responders} / ${a.evaluable} / ${a.pending}`}</td>
                   <td>{formatRate(a.summary.mean)}</td>
                   <td>{formatRate(a.summary.median)}</td>
                   <td>{formatRate(a.summary.sd)}</td>
@@ -155,7 +165,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             </tbody>
           </table>
           <p className="mt-2 text-xs text-stone-500">
-            Clopper-Pearson (exact) and Wilson (score) are frequentist intervals, shown for comparison. {single && design.arms === "single" ? `p0 = ${formatRate(design.p0)}.` : ""}
+            Pending: enrolled by the cut-off, response not yet known; they count among the patients still to come in the predictive probability. Clopper-Pearson (exact) and Wilson (score) are frequentist intervals, shown for comparison. {single && design.arms === "single" ? `p0 = ${formatRate(design.p0)}.` : ""}
           </p>
         </Card>
 
@@ -242,6 +252,30 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
             })}
           />
         </Card>
+
+        {(() => {
+          let panel: ReturnType<typeof whatItTakesPanel>;
+          try {
+            panel = whatItTakesPanel(input);
+          } catch (e) {
+            if (!(e instanceof StatsDomainError)) throw e;
+            return (
+              <Card title="What it takes, and what if" className="lg:col-span-2">
+                <Banner tone="warning" title="What it takes cannot be computed from the stored counts">
+                  {e.message}.
+                </Banner>
+              </Card>
+            );
+          }
+          return (
+            <Card title="What it takes, and what if" className="lg:col-span-2">
+              <div className="flex flex-col gap-6" id="what-it-takes">
+                <WhatItTakes takes={panel.takes} pending={panel.pending} />
+                {panel.nextAhead ? <WhatIf trialId={trial.id} analysisId={analysisId} now={panel.now} rates={panel.rates} maxN={panel.maxN} nextAhead={panel.nextAhead} boundaries={review.boundaries} observedPath={review.observedPath} /> : null}
+              </div>
+            </Card>
+          );
+        })()}
 
         {review.safety ? (
           <Card title="Safety" className="lg:col-span-2">
@@ -357,7 +391,14 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
               <ReopenReviewForm trialId={trial.id} analysisId={analysisId} rowVersion={analysis.row_version} lookNumber={analysis.look_number} reviewVersion={analysis.review_version} signerName={user.name} />
             </div>
           ) : null}
-          {allows(principal, "recordRecommendation") ? (
+          {hasCommittee ? (
+            <p className="text-sm text-stone-600" data-testid="committee-records">
+              This trial has a data monitoring committee: its chair records the committee&apos;s recommendation in the closed session of the meeting, after the members have voted.
+              {meetings.map(({ meeting: m }) => (
+                <Link key={m.id} className="ml-1" href={`/trials/${trial.id}/meetings/${m.id}/closed-session`}>Closed session of the meeting on look {analysis.look_number}.</Link>
+              ))}
+            </p>
+          ) : allows(principal, "recordRecommendation") ? (
             <RecommendationForm trialId={trial.id} analysisId={analysisId} correctsId={current?.id ?? null} signerName={user.name} recordAction={recordRecommendationAction} />
           ) : (
             <p className="text-sm text-stone-600">Only a DMC member records the committee&apos;s recommendation.</p>

@@ -4,7 +4,7 @@ import { handle } from "@/lib/http";
 import { lookIds, type LookRouteParams } from "@/lib/route-params";
 import { loadLookContext } from "@/lib/analyses/service";
 import { lookJson } from "@/lib/analyses/json";
-import { fetchArmCounts, countPatientOutcomes } from "@/db/queries/closed";
+import { armCountsOf, fetchArmCounts, countPatientOutcomes } from "@/db/queries/closed";
 
 export const dynamic = "force-dynamic";
 
@@ -12,9 +12,9 @@ export const dynamic = "force-dynamic";
  * One look. Everyone on the trial gets its open fields; arm-level counts are selected only for
  * roles that may see closed data (viewClosed) or enter it (enterData).
  */
-export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
+export const GET = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  const access = await requireTrialAccess(trialId, "viewOpen");
+  const access = await requireTrialAccess(trialId, "viewOpen", { bearer: req });
   const look = await loadLookContext(trialId, analysisId);
   const body: Record<string, unknown> = {
     analysis: lookJson(look.analysis),
@@ -23,7 +23,7 @@ export const GET = handle(async (_req: Request, ctx: LookRouteParams) => {
   };
   if (allows(access.principal, "viewClosed") || allows(access.principal, "enterData")) {
     const [counts, patientRows] = await Promise.all([fetchArmCounts(analysisId, closedConnection(access)), countPatientOutcomes(analysisId, closedConnection(access))]);
-    body.counts = counts.map((c) => ({ armId: c.arm_id, enrolled: c.enrolled, treated: c.treated, evaluable: c.evaluable, responders: c.responders, toxicities: c.toxicities }));
+    body.counts = counts.map(armCountsOf);
     body.patientRows = patientRows;
     // patient: counts derived from the patient rows; count: typed in (no patient rows).
     body.dataLevel = patientRows > 0 ? "patient" : "count";

@@ -9,6 +9,7 @@ export const dynamic = "force-dynamic";
 /** Replaces the per-arm counts of an open look. Body: { rowVersion, cutoffDate, counts: [...], reason? }. */
 export const PUT = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  const { user } = await requireTrialAccess(trialId, "enterData");
+  // A data-capture export job may call this with a personal API token (README, "Machine clients").
+  const { user } = await requireTrialAccess(trialId, "enterData", { bearer: req });
   return NextResponse.json(await saveArmCounts(user, trialId, analysisId, await readJson(req)));
 });

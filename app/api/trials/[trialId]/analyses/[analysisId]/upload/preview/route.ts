@@ -13,7 +13,7 @@ export const dynamic = "force-dynamic";
  */
 export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  const access = await requireTrialAccess(trialId, "enterData");
+  const access = await requireTrialAccess(trialId, "enterData", { bearer: req });
   const bytes = await readCsvUpload(req);
   return NextResponse.json(await previewPatientUpload(trialId, analysisId, bytes, closedConnection(access)));
 });
