@@ -17,15 +17,21 @@ import {
   type SingleArmDesign,
   type TwoArmDesign,
 } from "../lib/stats/index";
+import * as reference from "../lib/stats/reference/operating-characteristics";
+import * as referenceBoundaries from "../lib/stats/reference/boundaries";
+import * as referenceCalibration from "../lib/stats/reference/calibration";
+import * as referenceCalibrationTwo from "../lib/stats/reference/calibration-two-arm";
+import { designPreview } from "../lib/design/preview";
 
-type Row = { name: string; median: number; target: number | null; runs: number };
+/** `reference`: median of the kept earlier implementation (lib/stats/reference) on the same case, same run. */
+type Row = { name: string; median: number; target: number | null; runs: number; reference?: number };
 const rows: Row[] = [];
 
 function check(ok: boolean, what: string): void {
   if (!ok) throw new Error(`benchmark check failed: ${what}`);
 }
 
-function bench(name: string, target: number | null, runs: number, fn: () => void): number {
+function medianOf(runs: number, fn: () => void): number {
   fn(); // warm-up: compile the hot paths before timing
   const times: number[] = [];
   for (let i = 0; i < runs; i++) {
@@ -34,9 +40,18 @@ function bench(name: string, target: number | null, runs: number, fn: () => void
     times.push(performance.now() - t0);
   }
   times.sort((a, b) => a - b);
-  const median = times[Math.floor(times.length / 2)];
+  return times[Math.floor(times.length / 2)];
+}
+
+function bench(name: string, target: number | null, runs: number, fn: () => void): number {
+  const median = medianOf(runs, fn);
   rows.push({ name, median, target, runs });
   return median;
+}
+
+/** The same case on the reference implementation (fewer runs: it is the slow one). */
+function benchReference(runs: number, fn: () => void): void {
+  rows[rows.length - 1].reference = medianOf(runs, fn);
 }
 
 // ---- posterior summaries incl. HPD, one arm ------------------------------------------------
@@ -55,12 +70,31 @@ const single200: SingleArmDesign = {
   safety: null,
 };
 let exact200 = 0;
-const exactMs = bench("boundaries + exact OC, 1 arm, Nmax 200, every patient from 10", 20, 21, () => {
+const sumsToOne = (oc: { looks: { pStopFutility: number; pStopEfficacy: number }[] }) => Math.abs(oc.looks.reduce((s, l) => s + l.pStopFutility + l.pStopEfficacy, 0) - 1) < 1e-12;
+const exactMs = bench("boundary table + exact OC at p0 and p1, 1 arm, Nmax 200, every patient from 10", 1, 201, () => {
   const b = singleArmBoundaries(single200);
-  const oc = exactOperatingCharacteristics(b.response, 0.3);
-  const total = oc.looks.reduce((s, l) => s + l.pStopFutility + l.pStopEfficacy, 0);
-  check(b.response.length === 191 && Math.abs(total - 1) < 1e-12, "single-arm OC sums to one");
-  exact200 = oc.pDeclareSuccess;
+  const at0 = exactOperatingCharacteristics(b.response, single200.p0);
+  const at1 = exactOperatingCharacteristics(b.response, single200.p1);
+  check(b.response.length === 191 && sumsToOne(at0) && sumsToOne(at1) && at1.pDeclareSuccess > at0.pDeclareSuccess, "single-arm OC sums to one");
+});
+benchReference(11, () => {
+  const b = referenceBoundaries.singleArmBoundaries(single200);
+  reference.exactOperatingCharacteristics(b.response, single200.p0);
+  reference.exactOperatingCharacteristics(b.response, single200.p1);
+});
+exact200 = exactOperatingCharacteristics(singleArmBoundaries(single200).response, 0.3).pDeclareSuccess;
+
+const single1000: SingleArmDesign = { ...single200, nMax: 1000 };
+bench("boundary table + exact OC at p0 and p1, 1 arm, Nmax 1000, every patient from 10", 50, 21, () => {
+  const b = singleArmBoundaries(single1000);
+  const at0 = exactOperatingCharacteristics(b.response, single1000.p0);
+  const at1 = exactOperatingCharacteristics(b.response, single1000.p1);
+  check(b.response.length === 991 && sumsToOne(at0) && sumsToOne(at1), "single-arm OC sums to one at Nmax 1000");
+});
+benchReference(1, () => {
+  const b = referenceBoundaries.singleArmBoundaries(single1000);
+  reference.exactOperatingCharacteristics(b.response, single1000.p0);
+  reference.exactOperatingCharacteristics(b.response, single1000.p1);
 });
 
 // ---- the same OC by Monte Carlo, 100,000 trials --------------------------------------------
@@ -83,12 +117,21 @@ const two100: TwoArmDesign = {
   rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.99 },
   safety: null,
 };
-bench("boundaries + exact OC, 2 arms, 100 per arm, look every 10 (final table included)", 500, 7, () => {
+const table100 = twoArmBoundaries(two100).response;
+bench("exact OC at one rate pair, 2 arms, 100 per arm, look every 10 (boundary table given)", 2, 101, () => {
+  const oc = exactTwoArmOperatingCharacteristics(table100, 0.5, 0.3);
+  check(sumsToOne(oc) && oc.pDeclareSuccess > 0.5, "two-arm OC sums to one");
+});
+benchReference(21, () => reference.exactTwoArmOperatingCharacteristics(table100, 0.5, 0.3));
+bench("boundaries + exact OC, 2 arms, 100 per arm, look every 10 (final table included)", 100, 7, () => {
   clearTwoArmFinalRuleCache();
   const b = twoArmBoundaries(two100);
   const oc = exactTwoArmOperatingCharacteristics(b.response, 0.5, 0.3);
-  const total = oc.looks.reduce((s, l) => s + l.pStopFutility + l.pStopEfficacy, 0);
-  check(Math.abs(total - 1) < 1e-12 && oc.pDeclareSuccess > 0.5, "two-arm OC sums to one");
+  check(sumsToOne(oc) && oc.pDeclareSuccess > 0.5, "two-arm OC sums to one");
+});
+benchReference(3, () => {
+  clearTwoArmFinalRuleCache();
+  reference.exactTwoArmOperatingCharacteristics(referenceBoundaries.twoArmBoundaries(two100).response, 0.5, 0.3);
 });
 
 // ---- calibration, 40 x 40 grid, single arm, Nmax 100, continuous monitoring ----------------
@@ -96,10 +139,11 @@ const calib: SingleArmDesign = { ...single200, nMax: 100, looks: { kind: "every"
 const grid = (lo: number, hi: number) => Array.from({ length: 40 }, (_, i) => lo + ((hi - lo) * i) / 39);
 const thetaTGrid = grid(0.8, 0.995);
 const thetaLGrid = grid(0, 0.3);
-bench("calibration 40 x 40 grid, 1 arm, Nmax 100, every patient", 2000, 7, () => {
+bench("calibration 40 x 40 grid, 1 arm, Nmax 100, every patient", 30, 21, () => {
   const r = calibrateSingleArm(calib, { thetaTGrid, thetaLGrid, typeIErrorLimit: 0.05, powerTarget: 0.8 });
   check(r.evaluated === 1600 && r.best.length > 0 && r.best[0].typeIError <= 0.05 && r.best[0].power >= 0.8, "calibration finds a feasible design");
 });
+benchReference(3, () => referenceCalibration.calibrateSingleArm(calib, { thetaTGrid, thetaLGrid, typeIErrorLimit: 0.05, powerTarget: 0.8 }));
 
 // ---- two-arm threshold search: 40 x 40 grid, 100 per arm, a look every 10 per arm ---------------
 // Type I error is the maximum over the 19 default control rates on the null boundary, power at (0.5, 0.3).
@@ -116,9 +160,16 @@ const calibTwo: TwoArmDesign = {
   safety: null,
 };
 const twoGrid = (from: number, step: number) => Array.from({ length: 40 }, (_, i) => Math.round((from + i * step) * 1e9) / 1e9);
-bench("two-arm threshold search 40 x 40 grid, 100 per arm, look every 10 per arm", 60_000, 1, () => {
-  const r = calibrateTwoArm(calibTwo, { thetaTGrid: twoGrid(0.8, 0.005), thetaLGrid: twoGrid(0, 0.005), typeIErrorLimit: 0.1, powerTarget: 0.8 });
+const twoOptions = { thetaTGrid: twoGrid(0.8, 0.005), thetaLGrid: twoGrid(0, 0.005), typeIErrorLimit: 0.1, powerTarget: 0.8 };
+// "Seconds, not minutes": 5 s on the 2-core machine.
+bench("two-arm threshold search 40 x 40 grid, 100 per arm, look every 10 per arm", 5000, 3, () => {
+  clearTwoArmFinalRuleCache();
+  const r = calibrateTwoArm(calibTwo, twoOptions);
   check(r.evaluated === 1600 && r.best.length > 0 && r.best[0].typeIError <= 0.1 && r.best[0].power >= 0.8, "two-arm search finds a feasible design");
+});
+benchReference(1, () => {
+  clearTwoArmFinalRuleCache();
+  referenceCalibrationTwo.calibrateTwoArm(calibTwo, twoOptions);
 });
 
 // ---- uncertain-standard rule and safety: boundaries + joint OC over 13 toxicity rates -----------
@@ -135,14 +186,22 @@ bench("uncertain standard + safety: boundaries + joint OC at 13 toxicity rates, 
   check(Math.abs(total - 1) < 1e-12 && ocs[12].pSafetyStop > ocs[0].pSafetyStop, "joint OC with safety sums to one");
 });
 
+// ---- design preview, Nmax 200, every patient: boundaries, OC at p0 / p1 and the 51-rate curve ---
+// The computation the design-preview route runs (in its worker thread); the route adds JSON and
+// loopback HTTP, measured by scripts/preview-round-trip.ts against a running server.
+bench("design preview computation, 1 arm, Nmax 200, every patient (boundaries, OC, curves)", 30, 21, () => {
+  const p = designPreview(single200);
+  check(p.arms === "single" && p.curve.length >= 51, "preview has its curve");
+});
+
 const pad = (s: string, n: number) => s + " ".repeat(Math.max(0, n - s.length));
 const w = Math.max(...rows.map((r) => r.name.length));
-console.log(`${pad("case", w)}  ${pad("median ms", 10)}  ${pad("target ms", 9)}  runs  verdict`);
+console.log(`${pad("case", w)}  ${pad("median ms", 10)}  ${pad("target ms", 9)}  runs  ${pad("verdict", 11)}  reference ms (earlier engine, same run)  speed-up`);
 for (const r of rows)
   console.log(
-    `${pad(r.name, w)}  ${pad(r.median.toFixed(3), 10)}  ${pad(r.target === null ? "-" : String(r.target), 9)}  ${pad(String(r.runs), 4)}  ${r.target === null ? "" : r.median < r.target ? "ok" : "OVER TARGET"}`,
+    `${pad(r.name, w)}  ${pad(r.median.toFixed(3), 10)}  ${pad(r.target === null ? "-" : String(r.target), 9)}  ${pad(String(r.runs), 4)}  ${pad(r.target === null ? "" : r.median < r.target ? "ok" : "OVER TARGET", 11)}  ${pad(r.reference === undefined ? "" : r.reference.toFixed(3), 38)}  ${r.reference === undefined ? "" : `${(r.reference / r.median).toFixed(1)}x`}`,
   );
-console.log(`Monte Carlo / exact time ratio (Nmax 200 single arm): ${(mcMs / exactMs).toFixed(1)}`);
+console.log(`Monte Carlo (one rate) / exact (table + two rates) time ratio, Nmax 200 single arm: ${(mcMs / exactMs).toFixed(1)}`);
 if (rows.some((r) => r.target !== null && r.median >= r.target)) process.exitCode = 1;
 
 async function benchPosteriorSummaries(): Promise<void> {

@@ -67,6 +67,10 @@ export const FREE_TEXT: Record<string, TextClass> = {
   "api_tokens.label": "open",
   "patient_outcomes.subject_id": "closed",
   "recommendations.rationale": "closed",
+  // The kept closed review of a locked look (arm-level results) and the hash of its closed inputs.
+  "review_cache.engine_version": "closed",
+  "review_cache.input_sha256": "closed",
+  "review_cache.review_json": "closed",
   // Counted from the closed votes, and the dissent is the committee's closed reasoning.
   "recommendations.tally_json": "closed",
   "recommendations.dissent": "closed",
@@ -128,6 +132,7 @@ export const BLINDED_READS: Record<string, "all" | "none" | readonly string[]> =
   api_tokens: "none",
   packets_open: "all",
   patient_outcomes: "none",
+  review_cache: "none",
   recommendation_letters: "all",
   recommendations: ["id", "trial_id", "analysis_id", "review_version", "decision", "corrects_id", "signature_id", "created_by", "created_at"],
   // Row-level: a vote's signature row is closed (it counts the votes); view signatures_open leaves those rows out.

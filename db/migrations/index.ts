@@ -39,6 +39,7 @@ import * as a9 from "./20261203050900_email_messages_account_kinds";
 import * as mBlind1 from "./20261203060100_audit_events_hash_scheme";
 import * as mBlind2 from "./20261203060200_signatures_hash_scheme";
 import * as mBlind3 from "./20261203060300_create_view_audit_events_open";
+import * as mReviewCache from "./20261205030100_create_review_cache";
 import * as mBlind4 from "./20261203060400_create_view_packets_open";
 import * as mCommittee1 from "./20261205040100_create_committee_members";
 import * as mCommittee2 from "./20261205040200_add_designs_dmc_quorum";
@@ -97,6 +98,7 @@ const migrations: Array<[string, Migration]> = [
   ["20261203060200_signatures_hash_scheme", mBlind2],
   ["20261203060300_create_view_audit_events_open", mBlind3],
   ["20261203060400_create_view_packets_open", mBlind4],
+  ["20261205030100_create_review_cache", mReviewCache],
   ["20261205040100_create_committee_members", mCommittee1],
   ["20261205040200_add_designs_dmc_quorum", mCommittee2],
   ["20261205040300_create_meeting_session_attendance", mCommittee3],

@@ -130,3 +130,30 @@ export async function fetchClosedAgenda(meetingId: number, tx: ClosedReader): Pr
   const r = await tx("meetings").where({ id: meetingId }).first("closed_agenda");
   return (r?.closed_agenda as string | undefined) ?? "";
 }
+
+/**
+ * The kept closed review of a locked look (review_cache): read and written only here, with a closed
+ * reader, like every other arm-level result. A row is served only for the exact key; a different
+ * input hash (corrected data) or engine version misses it.
+ */
+export type ReviewCacheKey = { analysisId: number; reviewVersion: number; engineVersion: string; inputSha256: string };
+
+export async function fetchCachedReviewJson(key: ReviewCacheKey, tx: ClosedReader): Promise<string | null> {
+  const row = await tx("review_cache")
+    .where({ analysis_id: key.analysisId, review_version: key.reviewVersion, engine_version: key.engineVersion, input_sha256: key.inputSha256 })
+    .first("review_json");
+  return row ? (row.review_json as string) : null;
+}
+
+/** Stores a computed review; a row already there for the key (a concurrent first read) is kept. */
+export async function storeCachedReviewJson(key: ReviewCacheKey, reviewJson: string, tx: ClosedReader): Promise<void> {
+  await tx("review_cache")
+    .insert({ analysis_id: key.analysisId, review_version: key.reviewVersion, engine_version: key.engineVersion, input_sha256: key.inputSha256, review_json: reviewJson, created_at: new Date() })
+    .onConflict(["analysis_id", "review_version", "engine_version", "input_sha256"])
+    .ignore();
+}
+
+/** Drops a look's kept reviews (when it is reopened for a correction, they describe data being replaced). */
+export async function deleteCachedReviews(analysisId: number, tx: Tx): Promise<void> {
+  await tx("review_cache").where({ analysis_id: analysisId }).delete();
+}

@@ -23,6 +23,7 @@ import { fetchAnalysisForUpdate, fetchNeighbourCutoffs, updateAnalysisOpenFields
 import {
   armCountsOf,
   countPatientOutcomes,
+  deleteCachedReviews,
   deletePatientOutcomes,
   fetchArmCounts,
   fetchNeighbourLockedCounts,
@@ -414,6 +415,8 @@ export async function reopenAnalysis(actor: PublicUser, trialId: number, analysi
           })
         : null;
     await bump(tx, a, { status: "open", locked_at: null, lock_signature_id: null, amendment_count: amendment, review_version: reviewVersion, ...(sig ? { reviewed_at: null } : {}) });
+    // The kept review describes the data about to be corrected (a relock gets a new input hash anyway).
+    await deleteCachedReviews(a.id, tx);
     const action = sig ? "review_reopened_for_correction" : "analysis_reopened_for_amendment";
     await appendAudit(tx, {
       ...actorFields(actor),

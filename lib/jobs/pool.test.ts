@@ -9,7 +9,9 @@ import { designPreview } from "@/lib/design/preview";
 import type { TwoArmDesign } from "@/lib/stats/types";
 import { runChunkedCalibration } from "./chunked-calibration";
 import { WORKER_NICENESS } from "./workers/lower-priority";
-import { closeWorkerPools, runCalibrationSlice, runDesignPreview, workerBundlePresent, workerTasksCompleted } from "./pool";
+import { closeWorkerPools, runCalibrationSlice, runDesignPreview, runReviewComputation, workerBundlePresent, workerTasksCompleted } from "./pool";
+import { computeReview } from "@/lib/review/compute-review";
+import { reviewFromJson } from "@/lib/review/review-json";
 import { smallDesign, smallGrid } from "@/lib/jobs/test-design";
 
 // Builds the worker bundles exactly as `npm run build` does, into a folder of this test's own,
@@ -72,6 +74,20 @@ describe("worker-thread pools", () => {
     };
     expect(await runDesignPreview({ design: two, labels: {} })).toEqual(designPreview(two, {}));
     expect(workerTasksCompleted("preview") - before).toBe(2);
+  });
+
+  it("the review thread returns the in-process closed review (as the JSON review_cache keeps)", async () => {
+    expect(workerBundlePresent("review")).toBe(true);
+    const before = workerTasksCompleted("review");
+    const input = {
+      design,
+      arms: [{ id: 1, label: "Invented arm", role: "single" as const }],
+      looks: [{ analysisId: 7, lookNumber: 1, cutoffDate: "2026-11-20", counts: [{ armId: 1, enrolled: 12, treated: null, evaluable: 12, responders: 5, toxicities: null }] }],
+      analysisId: 7,
+      generatedAt: "2026-12-04T22:00:00.000Z",
+    };
+    expect(reviewFromJson(await runReviewComputation({ input }))).toEqual(computeReview(input));
+    expect(workerTasksCompleted("review") - before).toBe(1);
   });
 
   it.runIf(process.platform === "linux")("statistics threads run at the lowest scheduling priority, the request thread at its own", async () => {

@@ -17,15 +17,16 @@ import type { CalibrationResult } from "@/lib/stats/calibration";
 import { designPreview, type DesignPreview } from "@/lib/design/preview";
 import { calibrateSlice, type CalibrationSliceTask } from "./workers/calibration.worker";
 import type { PreviewTask } from "./workers/preview.worker";
+import { computeReviewJson, type ReviewTask } from "./workers/review.worker";
 import { captureOutcome, unwrapOutcome, type WorkerOutcome } from "./workers/worker-errors";
 
-export type WorkerKind = "calibration" | "preview";
+export type WorkerKind = "calibration" | "preview" | "review";
 
 /**
  * Threads per pool. The build and demo machine has 2 cores: one calibration thread and one preview
  * thread leave the main thread a core's worth of time for requests most of the time.
  */
-const MAX_THREADS: Record<WorkerKind, number> = { calibration: 1, preview: 1 };
+const MAX_THREADS: Record<WorkerKind, number> = { calibration: 1, preview: 1, review: 1 };
 /** Idle threads exit after this long, so an idle server holds no extra memory. */
 const IDLE_TIMEOUT_MS = 60_000;
 
@@ -68,6 +69,11 @@ export function runCalibrationSlice(task: CalibrationSliceTask): Promise<Calibra
 
 export function runDesignPreview(task: PreviewTask): Promise<DesignPreview> {
   return runTask("preview", task, (t) => designPreview(t.design, t.labels));
+}
+
+/** The closed review of a locked look as JSON text (lib/review/review-cache.ts keeps it). */
+export function runReviewComputation(task: ReviewTask): Promise<string> {
+  return runTask("review", task, computeReviewJson);
 }
 
 /** Whether the worker bundle of a kind is in place (for tests and diagnostics). */

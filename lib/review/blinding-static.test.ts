@@ -8,9 +8,9 @@ import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
 
 const ROOT = path.resolve(__dirname, "../..");
-const FORBIDDEN = ["analysis_arm_counts", "patient_outcomes", "rationale", "committee_votes", "tally_json"];
+const FORBIDDEN = ["analysis_arm_counts", "patient_outcomes", "rationale", "committee_votes", "tally_json", "review_cache"];
 /** Modules that hold closed data by design; reaching one from blinded code is itself a failure. */
-const CLOSED_MODULES = ["db/queries/closed.ts", "db/queries/recommendations.ts", "db/queries/committee-closed.ts", "lib/committee/votes.ts", "lib/review/load-review.ts", "lib/review/compute-review.ts"];
+const CLOSED_MODULES = ["db/queries/closed.ts", "db/queries/recommendations.ts", "db/queries/committee-closed.ts", "lib/committee/votes.ts", "lib/review/load-review.ts", "lib/review/compute-review.ts", "lib/review/review-cache.ts"];
 
 /** Entry points every blinded role (sponsor, coordinator, administrator without an unblinded role) reaches. */
 const BLINDED_ENTRY_POINTS = [

@@ -11,7 +11,7 @@ import { fetchRecommendationsClosed, fetchReviewSignatures } from "@/db/queries/
 import { fetchArms } from "@/db/queries/trials";
 import type { AnalysisOpenRow, TrialRow } from "@/db/types";
 import { notFoundError, conflict } from "@/lib/http";
-import { armPosterior, computeReview, reproducibilityRecord, type ReviewInput, type ReviewLook } from "./compute-review";
+import { armPosterior, reproducibilityRecord, type ReviewInput, type ReviewLook } from "./compute-review";
 
 /** The design version a review is computed under (the one the look is on: locked looks keep theirs). */
 export type ReviewDesignVersion = { id: number; version: number; status: "draft" | "locked" | "superseded"; lockedAt: Date | null };
@@ -59,9 +59,11 @@ export async function loadReviewInput(trial: TrialRow, analysisId: number, close
   };
 }
 
+/** The review of a locked look: kept in review_cache after its first computation (lib/review/review-cache.ts). */
 export async function loadReview(trial: TrialRow, analysisId: number, closed: ClosedReader) {
   const ctx = await loadReviewInput(trial, analysisId, closed);
-  return { ...ctx, review: computeReview(ctx.input) };
+  const { cachedReview } = await import("./review-cache");
+  return { ...ctx, review: await cachedReview(ctx, closed) };
 }
 
 /**
@@ -74,7 +76,7 @@ export async function loadReproducibilityRecord(trial: TrialRow, analysisId: num
   const ctx = await loadReviewInput(trial, analysisId, closed);
   const [signatures, recommendations] = await Promise.all([fetchReviewSignatures(analysisId), fetchRecommendationsClosed(trial.id, analysisId)]);
   return {
-    ...reproducibilityRecord(ctx.input),
+    ...reproducibilityRecord(ctx.input, await (await import("./review-cache")).cachedReview(ctx, closed)),
     trial: { id: trial.id, code: trial.code },
     provenance: {
       designVersion: ctx.designVersion,

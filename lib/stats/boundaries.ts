@@ -17,8 +17,8 @@ import {
   posteriorMixture,
   singleArmFinalSuccess,
   singleArmPredictiveTable,
-  twoArmPredictiveTableAtLook,
 } from "./predictive";
+import { twoArmPredictiveTablesBackward } from "./backward";
 import {
   safetyProbabilityFromPosterior,
   singleArmMonitoringProbability,
@@ -153,11 +153,14 @@ export function twoArmBoundaries(design: TwoArmDesign): TwoArmBoundaries {
   const rule = design.rule;
   const finalRule = twoArmFinalRuleForDesign(design);
   const response: TwoArmBoundary[] = [];
-  for (const n of looks.slice(0, -1)) {
+  const interim = looks.slice(0, -1);
+  // One backward pass gives the PP tables of every interim look.
+  const ppTables = rule.kind === "predictive" ? twoArmPredictiveTablesBackward(priorT, priorC, interim, N, finalRule.minSuccessT) : null;
+  for (const [k, n] of interim.entries()) {
     const fut: (number | null)[] = [];
     const eff: (number | null)[] = [];
-    if (rule.kind === "predictive") {
-      const table = twoArmPredictiveTableAtLook(priorT, priorC, n, finalRule);
+    if (ppTables) {
+      const table = ppTables[k];
       for (let xC = 0; xC <= n; xC++) {
         const b = boundaryFromStatistics(n, table[xC], rule);
         fut.push(b.futilityMax);

@@ -5,27 +5,32 @@
  * least the target, the designs with the smallest expected per-arm sample size at the null point.
  *
  * What depends on what:
- * - the final success table (twoArmFinalRule) depends on thetaT only; the predictive tables of the
- *   interim looks (twoArmPredictiveTableAtLook) depend on the final table, so both are built once per
- *   distinct final table (many thetaT values share one) and cached across calls, so a job that splits
- *   one thetaT into several slices still builds them once;
+ * - the final success table depends on thetaT only: its walk (as twoArmFinalRule) reads the
+ *   difference integrals P(pT - pC > delta | xT, xC of N), each evaluated once per call and kept
+ *   (FinalProbabilities); the PP tables of all interim looks come from one backward pass
+ *   (twoArmPredictiveTablesBackward). Both are built once per distinct final table and cached
+ *   across calls, so a job that splits one thetaT into several slices still builds them once, and
+ *   thetaT values with the same final table share every grid point's result;
  * - the posterior-probability rules' interim statistic P(pT - pC > delta | xT, xC) depends on no
  *   threshold and is tabulated once per call;
- * - a (thetaL, thetaU) pair only cuts boundaries out of those tables, and the exact recursion over
- *   the joint (xT, xC) counts is then run once per rate pair, on the part of the square that is still
- *   enrolling (stopped counts are dropped, so later looks cost less).
+ * - a (thetaL, thetaU) pair only cuts boundaries out of those tables (by bisection: the statistic is
+ *   monotone in xT), and the exact recursion over the joint (xT, xC) counts (lib/stats/recursion.ts)
+ *   is then run once per rate pair, on the part of the square that is still enrolling.
  * The recursion is the same arithmetic as exactTwoArmOperatingCharacteristics (futility is checked
  * before efficacy at a count both would stop); calibration-two-arm.test.ts checks the best designs
  * against twoArmTypeIErrorAndPower on the chosen thresholds.
  */
 import type { MixtureBeta, TwoArmDesign } from "./types";
 import { binomialPmfs } from "./distributions";
-import { posteriorMixture, twoArmFinalRule, twoArmPredictiveTableAtLook, type TwoArmFinalRule } from "./predictive";
+import { posteriorMixture, requireDelta, type TwoArmFinalRule } from "./predictive";
 import { validateTwoArmDesign } from "./decision";
 import { probDifferenceExceeds } from "./difference";
 import { TWO_ARM_NULL_CONTROL_RATES } from "./operating-characteristics";
 import { requireProbability, StatsDomainError } from "./validate";
-import { exceedsThreshold, fallsBelowThreshold } from "./compare";
+import { exceedsThreshold } from "./compare";
+import { efficacyBottom, futilityTop, JointRecursion, type RecursionSummary } from "./recursion";
+import { twoArmPredictiveTablesBackward } from "./backward";
+import { monotoneThresholds } from "./predictive";
 import type { CalibratedDesign, CalibrationOptions, CalibrationResult } from "./calibration";
 
 export type TwoArmCalibrationOptions = CalibrationOptions & {
@@ -45,7 +50,8 @@ export type TwoArmCalibratedDesign = CalibratedDesign & {
 
 export type TwoArmCalibrationResult = Omit<CalibrationResult, "best"> & { best: TwoArmCalibratedDesign[] };
 
-type Summary = { declareSuccess: number; expectedSampleSize: number; earlyTermination: number; earlyFutility: number; earlyEfficacy: number };
+type Summary = RecursionSummary;
+type PointResult = { t1e: number; maxAt: number; alt: Summary; at0: Summary };
 
 /** pC + delta without binary noise; the same rounding as twoArmErrorRatesFromBoundaries. */
 const onNullBoundary = (pC: number, delta: number) => Math.round((pC + delta) * 1e12) / 1e12;
@@ -60,183 +66,52 @@ export function twoArmNullControlRates(design: Pick<TwoArmDesign, "delta" | "con
   return rates;
 }
 
-/**
- * Reusable buffers for the joint recursion: the square of counts (stride N + 1) and the enrolling
- * range of xT per control count.
- */
-class JointRecursion {
-  readonly S: number;
-  private cur: Float64Array;
-  private nxt: Float64Array;
-  private rows: Float64Array;
-  private lo: Int32Array;
-  private hi: Int32Array;
-  private nlo: Int32Array;
-  private nhi: Int32Array;
-  constructor(
-    private readonly looks: number[],
-    N: number,
-  ) {
-    this.S = N + 1;
-    const size = this.S * this.S;
-    this.cur = new Float64Array(size);
-    this.nxt = new Float64Array(size);
-    this.rows = new Float64Array(size);
-    this.lo = new Int32Array(this.S);
-    this.hi = new Int32Array(this.S);
-    this.nlo = new Int32Array(this.S);
-    this.nhi = new Int32Array(this.S);
-  }
+/** Per distinct final success table: the final boundary and (predictive rule) the interim PP tables. */
+type FinalTables = { key: string; finalRule: TwoArmFinalRule; interimStats: Float64Array[][] | null };
+const finalTablesCache = new Map<string, FinalTables>();
 
-  /**
-   * @param fMax - per look, per control count: largest xT that stops for futility (-1: none); final look: largest xT without success
-   * @param eMin - per look, per control count: smallest xT that stops for efficacy (n + 1: none); final look: smallest xT with success
-   * @param incT, incC - per look, the binomial increments of each arm since the previous look
-   */
-  run(fMax: Int32Array[], eMin: Int32Array[], incT: Float64Array[], incC: Float64Array[]): Summary {
-    const { S, looks, rows } = this;
-    let cur = this.cur;
-    let nxt = this.nxt;
-    let lo = this.lo;
-    let hi = this.hi;
-    let nlo = this.nlo;
-    let nhi = this.nhi;
-    cur[0] = 1;
-    lo[0] = 0;
-    hi[0] = 0;
-    let cLo = 0;
-    let cHi = 0;
-    let early = 0;
-    let earlyFut = 0;
-    let earlyEff = 0;
-    let eff = 0;
-    let en = 0;
-    const last = looks.length - 1;
-    for (let k = 0; k <= last; k++) {
-      const n = looks[k];
-      const it = incT[k];
-      const ic = incC[k];
-      const g = it.length - 1;
-      // Experimental increments along each enrolling row.
-      for (let xC = cLo; xC <= cHi; xC++) {
-        const a = lo[xC];
-        const b = hi[xC];
-        if (a > b) continue;
-        const base = xC * S;
-        rows.fill(0, base + a, base + b + g + 1);
-        for (let xT = a; xT <= b; xT++) {
-          const v = cur[base + xT];
-          if (v === 0) continue;
-          const d = base + xT;
-          for (let y = 0; y <= g; y++) rows[d + y] += v * it[y];
-        }
-      }
-      // New enrolling ranges: row xC' collects rows xC' - g .. xC'.
-      const ncLo = cLo;
-      const ncHi = cHi + g;
-      for (let x = ncLo; x <= ncHi; x++) {
-        let a = S;
-        let b = -1;
-        const from = x - g < cLo ? cLo : x - g;
-        const to = x < cHi ? x : cHi;
-        for (let xC = from; xC <= to; xC++) {
-          if (lo[xC] > hi[xC]) continue;
-          if (lo[xC] < a) a = lo[xC];
-          if (hi[xC] + g > b) b = hi[xC] + g;
-        }
-        nlo[x] = a;
-        nhi[x] = b;
-        if (a <= b) nxt.fill(0, x * S + a, x * S + b + 1);
-      }
-      // Control increments down the columns.
-      for (let xC = cLo; xC <= cHi; xC++) {
-        const a = lo[xC];
-        const b = hi[xC] + g;
-        if (lo[xC] > hi[xC]) continue;
-        const src = xC * S;
-        for (let y = 0; y <= g; y++) {
-          const c = ic[y];
-          if (c === 0) continue;
-          const dst = (xC + y) * S;
-          for (let xT = a; xT <= b; xT++) nxt[dst + xT] += rows[src + xT] * c;
-        }
-      }
-      const t = cur;
-      cur = nxt;
-      nxt = t;
-      let ti = lo;
-      lo = nlo;
-      nlo = ti;
-      ti = hi;
-      hi = nhi;
-      nhi = ti;
-      cLo = ncLo;
-      cHi = ncHi;
-      // Stops.
-      const fk = fMax[k];
-      const ek = eMin[k];
-      let fut = 0;
-      let ef = 0;
-      let rest = 0;
-      let first = -1;
-      let lastAlive = -1;
-      for (let xC = cLo; xC <= cHi; xC++) {
-        let a = lo[xC];
-        let b = hi[xC];
-        if (a > b) continue;
-        const base = xC * S;
-        const f = fk[xC];
-        const e = ek[xC] > f ? ek[xC] : f + 1;
-        const fTop = f < b ? f : b;
-        for (let xT = a; xT <= fTop; xT++) fut += cur[base + xT];
-        for (let xT = e > a ? e : a; xT <= b; xT++) ef += cur[base + xT];
-        if (f + 1 > a) a = f + 1;
-        if (e - 1 < b) b = e - 1;
-        lo[xC] = a;
-        hi[xC] = b;
-        if (a <= b) {
-          if (k === last) for (let xT = a; xT <= b; xT++) rest += cur[base + xT];
-          if (first < 0) first = xC;
-          lastAlive = xC;
-        }
-      }
-      if (k < last) {
-        early += fut + ef;
-        earlyFut += fut;
-        earlyEff += ef;
-        eff += ef;
-        en += n * (fut + ef);
-      } else {
-        eff += ef;
-        en += n * (fut + ef + rest);
-      }
-      if (first < 0) break;
-      cLo = first;
-      cHi = lastAlive;
-    }
-    // Leave the buffers as found for the next run (only [0] needs to be right; the rest is zeroed before use).
-    this.cur = cur;
-    this.nxt = nxt;
-    this.lo = lo;
-    this.hi = hi;
-    this.nlo = nlo;
-    this.nhi = nhi;
-    return { declareSuccess: eff, expectedSampleSize: en, earlyTermination: early, earlyFutility: earlyFut, earlyEfficacy: earlyEff };
+/**
+ * P(pT - pC > delta | xT, xC of N per arm), evaluated on demand and kept: the final tables of the
+ * thetaT values of one search walk nearby cells, and each cell is one difference integral.
+ */
+class FinalProbabilities {
+  private readonly values: Float64Array;
+  private readonly postT: MixtureBeta[];
+  private readonly postC: MixtureBeta[];
+  constructor(
+    priorT: MixtureBeta,
+    priorC: MixtureBeta,
+    private readonly N: number,
+    private readonly delta: number,
+  ) {
+    requireDelta(delta);
+    this.values = new Float64Array((N + 1) * (N + 1)).fill(NaN);
+    this.postT = Array.from({ length: N + 1 }, (_, x) => posteriorMixture(priorT, x, N));
+    this.postC = Array.from({ length: N + 1 }, (_, x) => posteriorMixture(priorC, x, N));
+  }
+  at(xT: number, xC: number): number {
+    const i = xC * (this.N + 1) + xT;
+    let v = this.values[i];
+    if (Number.isNaN(v)) this.values[i] = v = probDifferenceExceeds(this.postT[xT], this.postC[xC], this.delta);
+    return v;
+  }
+  /** The final rule at thetaT: the walk of twoArmFinalRule on the kept probabilities (same values, same table). */
+  rule(thetaT: number): TwoArmFinalRule {
+    requireProbability("thetaT", thetaT, { closed: true });
+    const minSuccessT = monotoneThresholds(this.N, this.N, (xT, xC) => exceedsThreshold(this.at(xT, xC), thetaT));
+    return { nMaxPerArm: this.N, delta: this.delta, thetaT, minSuccessT };
   }
 }
 
-/** Per distinct final success table: the final boundary and (predictive rule) the interim PP tables. */
-type FinalTables = { finalRule: TwoArmFinalRule; interimStats: Float64Array[][] | null };
-const finalTablesCache = new Map<string, FinalTables>();
-
-function finalTablesFor(priorT: MixtureBeta, priorC: MixtureBeta, design: TwoArmDesign, interim: number[], thetaT: number, predictive: boolean): FinalTables {
-  const finalRule = twoArmFinalRule(priorT, priorC, design.nMaxPerArm, design.delta, thetaT);
+function finalTablesFor(priorT: MixtureBeta, priorC: MixtureBeta, design: TwoArmDesign, interim: number[], finalRule: TwoArmFinalRule, predictive: boolean): FinalTables {
   const key = JSON.stringify([priorT, priorC, design.nMaxPerArm, design.delta, interim, predictive, Array.from(finalRule.minSuccessT)]);
   const hit = finalTablesCache.get(key);
   if (hit) return hit;
   const tables: FinalTables = {
+    key,
     finalRule,
-    interimStats: predictive ? interim.map((n) => twoArmPredictiveTableAtLook(priorT, priorC, n, finalRule)) : null,
+    // Every interim look's PP table in one backward pass.
+    interimStats: predictive ? twoArmPredictiveTablesBackward(priorT, priorC, interim, design.nMaxPerArm, finalRule.minSuccessT) : null,
   };
   if (finalTablesCache.size >= 8) finalTablesCache.delete(finalTablesCache.keys().next().value as string);
   finalTablesCache.set(key, tables);
@@ -311,8 +186,60 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
    */
   const boundsByU = Array.from({ length: nU }, () => new Float64Array(nR).fill(Infinity));
   const boundsPrevU = new Float64Array(nR).fill(Infinity);
+  /*
+   * The same holds along thetaT: a higher thetaT shrinks the final success set, so every PP (an
+   * average of final success indicators) can only fall, the futility sets grow and the efficacy
+   * sets shrink. So the values at the previous thetaT (same thetaL, thetaU) bound this point too.
+   * boundsByT[slot] holds them; boundsTFor is the thetaT they were computed at (NaN: none).
+   */
+  const boundsByT = Array.from({ length: nL * nU }, () => new Float64Array(nR).fill(Infinity));
+  const boundsTFor = new Float64Array(nL * nU).fill(NaN);
   const computed = new Uint8Array(nR);
   const rateOrder = Array.from({ length: nR }, (_, r) => r);
+
+  /** One grid point on the boundaries in fMax / eMin (futility rows already cut for thetaL). */
+  const searchPoint = (thetaT: number, iL: number, iU: number, thetaL: number, thetaU: number | null): PointResult => {
+    for (let k = 0; k < K - 1; k++) {
+      const table = stats[k];
+      const row = eMin[k];
+      for (let xC = 0; xC < table.length; xC++) row[xC] = thetaU !== null ? efficacyBottom(table[xC], thetaU) : table[xC].length;
+    }
+    const alt = recursion.run(fMax, eMin, altIncT, altIncC, false);
+    // Upper bounds on this point's null-boundary rates, from the previous thetaL (same thetaU) and the previous thetaU (same thetaL).
+    const fromL = iL > 0 && thetaL >= thetaLGrid[iL - 1] ? boundsByU[iU] : null;
+    const fromU = iU > 0 && thetaU !== null && thetaUGrid && thetaU >= thetaUGrid[iU - 1] ? boundsPrevU : null;
+    const slot = iL * nU + iU;
+    const fromT = thetaT >= boundsTFor[slot] ? boundsByT[slot] : null;
+    const bound = boundsByU[iU];
+    for (let r = 0; r < nR; r++) {
+      const b = Math.min(fromL ? fromL[r] : Infinity, fromU ? fromU[r] : Infinity, fromT ? fromT[r] : Infinity);
+      bound[r] = b;
+      computed[r] = 0;
+    }
+    const order = rateOrder.sort((u, v) => bound[v] - bound[u]);
+    let maxAt = -1;
+    const visit = (r: number) => {
+      atNull[r] = recursion.run(fMax, eMin, nullIncT[r], nullIncC[r], false);
+      computed[r] = 1;
+      bound[r] = atNull[r].declareSuccess;
+      const v = atNull[r].declareSuccess;
+      if (maxAt < 0 || v > atNull[maxAt].declareSuccess || (v === atNull[maxAt].declareSuccess && r < maxAt)) maxAt = r;
+    };
+    if (nullIndex >= 0) visit(nullIndex);
+    for (const r of order) {
+      if (computed[r]) continue;
+      // A rate whose bound cannot beat (or tie earlier than) the maximum so far cannot be the first maximum.
+      if (maxAt >= 0 && (bound[r] < atNull[maxAt].declareSuccess || (bound[r] === atNull[maxAt].declareSuccess && r > maxAt))) continue;
+      visit(r);
+    }
+    boundsPrevU.set(bound);
+    boundsByT[slot].set(bound);
+    boundsTFor[slot] = thetaT;
+    return { t1e: atNull[maxAt].declareSuccess, maxAt, alt, at0: atNull[nullIndex >= 0 ? nullIndex : maxAt] };
+  };
+  let stats: Float64Array[][] = [];
+  const resultsByTable = new Map<string, (PointResult | undefined)[]>();
+  const finalProbabilities = new FinalProbabilities(priorT, priorC, N, design.delta);
 
   const feasibleList: TwoArmCalibratedDesign[] = [];
   let evaluated = 0;
@@ -322,8 +249,12 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
 
   outer: for (let iT = 0; iT < nT; iT++) {
     const thetaT = thetaTGrid[iT];
-    const { finalRule, interimStats } = finalTablesFor(priorT, priorC, design, interim, thetaT, predictive);
-    const stats = (interimStats ?? posteriorStats) as Float64Array[][];
+    const { key, finalRule, interimStats } = finalTablesFor(priorT, priorC, design, interim, finalProbabilities.rule(thetaT), predictive);
+    stats = (interimStats ?? posteriorStats) as Float64Array[][];
+    // thetaT values with the same final table have the same boundaries at every (thetaL, thetaU),
+    // hence exactly the same results: computed once per table.
+    let shared = resultsByTable.get(key);
+    if (!shared) resultsByTable.set(key, (shared = new Array(nL * nU)));
     for (const b of boundsByU) b.fill(Infinity);
     for (let xC = 0; xC <= N; xC++) {
       fMax[K - 1][xC] = finalRule.minSuccessT[xC] - 1;
@@ -331,16 +262,7 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
     }
     for (let iL = 0; iL < nL; iL++) {
       const thetaL = thetaLGrid[iL];
-      for (let k = 0; k < K - 1; k++) {
-        const table = stats[k];
-        const row = fMax[k];
-        for (let xC = 0; xC < table.length; xC++) {
-          const s = table[xC];
-          let f = -1;
-          for (let x = 0; x < s.length; x++) if (fallsBelowThreshold(s[x], thetaL)) f = x;
-          row[xC] = f;
-        }
-      }
+      let haveFutility = false;
       for (let iU = 0; iU < nU; iU++) {
         done++;
         if (options.shouldCancel?.()) {
@@ -351,47 +273,24 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
         if (thetaU !== null && !(thetaU > thetaL)) {
           boundsByU[iU].fill(Infinity);
           boundsPrevU.fill(Infinity);
+          boundsTFor[iL * nU + iU] = NaN;
           continue;
         }
-        for (let k = 0; k < K - 1; k++) {
-          const table = stats[k];
-          const row = eMin[k];
-          for (let xC = 0; xC < table.length; xC++) {
-            const s = table[xC];
-            let e = s.length;
-            if (thetaU !== null) for (let x = s.length - 1; x >= 0; x--) if (exceedsThreshold(s[x], thetaU)) e = x;
-            row[xC] = e;
+        const slot = iL * nU + iU;
+        let result = shared[slot];
+        if (!result) {
+          if (!haveFutility) {
+            for (let k = 0; k < K - 1; k++) {
+              const table = stats[k];
+              const row = fMax[k];
+              // The statistic is non-decreasing in xT at each xC, so the futility set is a lower set.
+              for (let xC = 0; xC < table.length; xC++) row[xC] = futilityTop(table[xC], thetaL);
+            }
+            haveFutility = true;
           }
+          result = shared[slot] = searchPoint(thetaT, iL, iU, thetaL, thetaU);
         }
-        const alt = recursion.run(fMax, eMin, altIncT, altIncC);
-        // Upper bounds on this point's null-boundary rates, from the previous thetaL (same thetaU) and the previous thetaU (same thetaL).
-        const fromL = iL > 0 && thetaL >= thetaLGrid[iL - 1] ? boundsByU[iU] : null;
-        const fromU = iU > 0 && thetaU !== null && thetaUGrid && thetaU >= thetaUGrid[iU - 1] ? boundsPrevU : null;
-        const bound = boundsByU[iU];
-        for (let r = 0; r < nR; r++) {
-          const b = Math.min(fromL ? fromL[r] : Infinity, fromU ? fromU[r] : Infinity);
-          bound[r] = b;
-          computed[r] = 0;
-        }
-        const order = rateOrder.sort((u, v) => bound[v] - bound[u]);
-        let maxAt = -1;
-        const visit = (r: number) => {
-          atNull[r] = recursion.run(fMax, eMin, nullIncT[r], nullIncC[r]);
-          computed[r] = 1;
-          bound[r] = atNull[r].declareSuccess;
-          const v = atNull[r].declareSuccess;
-          if (maxAt < 0 || v > atNull[maxAt].declareSuccess || (v === atNull[maxAt].declareSuccess && r < maxAt)) maxAt = r;
-        };
-        if (nullIndex >= 0) visit(nullIndex);
-        for (const r of order) {
-          if (computed[r]) continue;
-          // A rate whose bound cannot beat (or tie earlier than) the maximum so far cannot be the first maximum.
-          if (maxAt >= 0 && (bound[r] < atNull[maxAt].declareSuccess || (bound[r] === atNull[maxAt].declareSuccess && r > maxAt))) continue;
-          visit(r);
-        }
-        boundsPrevU.set(bound);
-        const t1e = atNull[maxAt].declareSuccess;
-        const at0 = atNull[nullIndex >= 0 ? nullIndex : maxAt];
+        const { t1e, maxAt, alt, at0 } = result;
         const idx = (iT * nL + iL) * nU + iU;
         typeIError[idx] = t1e;
         power[idx] = alt.declareSuccess;

@@ -4,9 +4,10 @@
  * the designs with the smallest expected sample size under p0.
  *
  * Speed comes from what depends on what: the final success set, and hence the PP table, depends
- * on thetaT only, and many thetaT values share a success set (built once per distinct set); a
- * (thetaL, thetaU) pair only reads boundaries off that table, and the exact recursion costs
- * O(looks * nMax) per rate.
+ * on thetaT only, and many thetaT values share a success set (built once per distinct set, by the
+ * backward recursion in O(nMax^2)); a (thetaL, thetaU) pair only reads boundaries off that table
+ * (by bisection: the statistic is monotone in the count), and the exact forward recursion
+ * (lib/stats/recursion.ts) costs O(looks * nMax) per rate on the counts still enrolling.
  */
 import type { SingleArmDesign } from "./types";
 import { binomialPmfs } from "./distributions";
@@ -15,7 +16,8 @@ import { posteriorMixture, singleArmPredictiveTable } from "./predictive";
 import { validateSingleArmDesign } from "./decision";
 import { singleArmInterimStatistics } from "./boundaries";
 import { requireProbability, StatsDomainError } from "./validate";
-import { exceedsThreshold, fallsBelowThreshold } from "./compare";
+import { exceedsThreshold } from "./compare";
+import { efficacyBottom, futilityTop, singleArmForward, type RecursionSummary } from "./recursion";
 
 export type CalibrationOptions = {
   /** Final success thresholds to try, each in [0, 1]. */
@@ -71,70 +73,6 @@ export type CalibrationResult = {
   expectedSampleSizeNull: Float64Array;
 };
 
-type Summary = { declareSuccess: number; expectedSampleSize: number; earlyTermination: number; earlyFutility: number; earlyEfficacy: number };
-
-/**
- * Exact single-arm recursion on integer bounds (fMax = -1: none; eMin = n + 1: none), with the
- * binomial increments between looks precomputed. Same arithmetic as exactOperatingCharacteristics.
- */
-function recurse(looks: number[], fMax: Int32Array, eMin: Int32Array, incs: Float64Array[], a: Float64Array, b: Float64Array): Summary {
-  a[0] = 1;
-  let cur = a;
-  let nxt = b;
-  // Mass lives on [lo, hi]; boundaries remove the ends, so the support stays narrow.
-  let lo = 0;
-  let hi = 0;
-  let early = 0;
-  let earlyFut = 0;
-  let earlyEff = 0;
-  let eff = 0;
-  let en = 0;
-  const last = looks.length - 1;
-  for (let k = 0; k <= last; k++) {
-    const n = looks[k];
-    const inc = incs[k];
-    const gap = inc.length - 1;
-    const nlo = lo;
-    const nhi = hi + gap;
-    nxt.fill(0, nlo, nhi + 1);
-    for (let x = lo; x <= hi; x++) {
-      const w = cur[x];
-      if (w === 0) continue;
-      for (let y = 0; y <= gap; y++) nxt[x + y] += w * inc[y];
-    }
-    const t = cur;
-    cur = nxt;
-    nxt = t;
-    lo = nlo;
-    hi = nhi;
-    const f = fMax[k];
-    const e = eMin[k];
-    let fut = 0;
-    let ef = 0;
-    for (let x = lo; x <= f && x <= hi; x++) fut += cur[x];
-    for (let x = e < lo ? lo : e; x <= hi; x++) ef += cur[x];
-    if (f + 1 > lo) lo = f + 1;
-    if (e - 1 < hi) hi = e - 1;
-    if (k < last) {
-      early += fut + ef;
-      earlyFut += fut;
-      earlyEff += ef;
-      eff += ef;
-      en += n * (fut + ef);
-    } else {
-      let rest = 0;
-      for (let x = lo; x <= hi; x++) rest += cur[x];
-      en += n * (fut + ef + rest);
-      eff += ef;
-    }
-    if (lo > hi) {
-      // Every trial has stopped.
-      return { declareSuccess: eff, expectedSampleSize: en, earlyTermination: early, earlyFutility: earlyFut, earlyEfficacy: earlyEff };
-    }
-  }
-  return { declareSuccess: eff, expectedSampleSize: en, earlyTermination: early, earlyFutility: earlyFut, earlyEfficacy: earlyEff };
-}
-
 function requireGrid(name: string, g: number[]): void {
   if (!Array.isArray(g) || g.length === 0) throw new StatsDomainError(name, g, "must be a non-empty array of thresholds");
   g.forEach((v) => requireProbability(`${name}[]`, v, { closed: true }));
@@ -179,10 +117,10 @@ export function calibrateSingleArm(design: SingleArmDesign, options: Calibration
   const inc0 = incs(design.p0);
   const inc1 = incs(design.p1);
   const bufA = new Float64Array(nMax + 1);
-  const bufB = new Float64Array(nMax + 1);
   const fMax = new Int32Array(K);
   const eMin = new Int32Array(K);
   const statsBySuccess = new Map<number, Float64Array[]>();
+  const resultsBySuccess = new Map<number, ([RecursionSummary, RecursionSummary] | undefined)[]>();
 
   const feasibleList: CalibratedDesign[] = [];
   let evaluated = 0;
@@ -208,16 +146,13 @@ export function calibrateSingleArm(design: SingleArmDesign, options: Calibration
         statsBySuccess.set(successMin, stats);
       }
     }
+    let shared = resultsBySuccess.get(successMin);
+    if (!shared) resultsBySuccess.set(successMin, (shared = new Array(nL * nU)));
     fMax[K - 1] = successMin - 1;
     eMin[K - 1] = successMin;
     for (let iL = 0; iL < nL; iL++) {
       const thetaL = thetaLGrid[iL];
-      for (let k = 0; k < K - 1; k++) {
-        const s = (stats as Float64Array[])[k];
-        let f = -1;
-        for (let x = 0; x < s.length; x++) if (fallsBelowThreshold(s[x], thetaL)) f = x;
-        fMax[k] = f;
-      }
+      let haveFutility = false;
       for (let iU = 0; iU < nU; iU++) {
         done++;
         if (options.shouldCancel?.()) {
@@ -226,15 +161,25 @@ export function calibrateSingleArm(design: SingleArmDesign, options: Calibration
         }
         const thetaU = thetaUGrid ? thetaUGrid[iU] : null;
         if (thetaU !== null && !(thetaU > thetaL)) continue;
-        for (let k = 0; k < K - 1; k++) {
-          const s = (stats as Float64Array[])[k];
-          let e = s.length;
-          if (thetaU !== null) for (let x = s.length - 1; x >= 0; x--) if (exceedsThreshold(s[x], thetaU)) e = x;
-          // A count cannot both stop for futility and efficacy; thetaU > thetaL guarantees it for monotone statistics.
-          eMin[k] = e <= fMax[k] ? fMax[k] + 1 : e;
+        // thetaT values that share a success set share the PP table, hence every boundary and the
+        // recursion's result, exactly.
+        const slot = iL * nU + iU;
+        let both = shared[slot];
+        if (!both) {
+          if (!haveFutility) {
+            for (let k = 0; k < K - 1; k++) fMax[k] = futilityTop((stats as Float64Array[])[k], thetaL);
+            haveFutility = true;
+          }
+          for (let k = 0; k < K - 1; k++) {
+            const s = (stats as Float64Array[])[k];
+            const e = thetaU !== null ? efficacyBottom(s, thetaU) : s.length;
+            // A count cannot both stop for futility and efficacy; thetaU > thetaL guarantees it for monotone statistics.
+            eMin[k] = e <= fMax[k] ? fMax[k] + 1 : e;
+          }
+          both = [singleArmForward(looks, fMax, eMin, inc0, bufA, null), singleArmForward(looks, fMax, eMin, inc1, bufA, null)];
+          shared[slot] = both;
         }
-        const at0 = recurse(looks, fMax, eMin, inc0, bufA, bufB);
-        const at1 = recurse(looks, fMax, eMin, inc1, bufA, bufB);
+        const [at0, at1] = both;
         const idx = (iT * nL + iL) * nU + iU;
         typeIError[idx] = at0.declareSuccess;
         power[idx] = at1.declareSuccess;

@@ -23,6 +23,7 @@ import {
   type TwoArmBoundary,
 } from "./boundaries";
 import { requireCount, requireFinite, requireProbability, StatsDomainError } from "./validate";
+import { JointRecursion, lookArrays, singleArmForward } from "./recursion";
 
 export type LookOutcome = {
   n: number;
@@ -84,36 +85,26 @@ function validateBoundaries(boundaries: ResponseBoundary[]): void {
 export function exactOperatingCharacteristics(boundaries: ResponseBoundary[], p: number): OperatingCharacteristics {
   validateBoundaries(boundaries);
   requireProbability("p", p, { closed: true });
+  const K = boundaries.length;
+  const sizes = new Array<number>(K);
+  const fMax = new Int32Array(K);
+  const eMin = new Int32Array(K);
+  const incs: Float64Array[] = new Array(K);
   const incCache = new Map<number, Float64Array>();
-  let dist: Float64Array = new Float64Array([1]);
   let prev = 0;
-  const looks: LookOutcome[] = [];
-  for (const b of boundaries) {
+  boundaries.forEach((b, k) => {
+    sizes[k] = b.n;
+    fMax[k] = b.futilityMax ?? -1;
+    eMin[k] = b.efficacyMin ?? b.n + 1;
     const gap = b.n - prev;
     let inc = incCache.get(gap);
     if (!inc) incCache.set(gap, (inc = binomialPmfs(gap, p)));
-    dist = convolve(dist, inc);
+    incs[k] = inc;
     prev = b.n;
-    const fMax = b.futilityMax ?? -1;
-    const eMin = b.efficacyMin ?? b.n + 1;
-    let fut = 0;
-    let eff = 0;
-    let cont = 0;
-    for (let x = 0; x <= b.n; x++) {
-      if (x <= fMax) {
-        fut += dist[x];
-        dist[x] = 0;
-      } else if (x >= eMin) {
-        eff += dist[x];
-        dist[x] = 0;
-      } else if (b.final) {
-        // Final analysis: every remaining count is "no success" (the row's futilityMax normally covers it).
-        fut += dist[x];
-        dist[x] = 0;
-      } else cont += dist[x];
-    }
-    looks.push({ n: b.n, pStopFutility: fut, pStopEfficacy: eff, pContinue: b.final ? 0 : cont });
-  }
+  });
+  const out = lookArrays(K);
+  singleArmForward(sizes, fMax, eMin, incs, new Float64Array(prev + 1), out);
+  const looks: LookOutcome[] = sizes.map((n, k) => ({ n, pStopFutility: out.fut[k], pStopEfficacy: out.eff[k], pContinue: out.cont[k] }));
   return { p, ...summariseLooks(looks) };
 }
 
@@ -206,7 +197,8 @@ export type TwoArmOperatingCharacteristics = Omit<OperatingCharacteristics, "p">
 
 /**
  * Exact two-arm operating characteristics at true rates (pT, pC), by forward recursion over the
- * joint (xT, xC) state with equal per-arm looks. Sample sizes are per arm.
+ * joint (xT, xC) state with equal per-arm looks (lib/stats/recursion.ts, on the counts still
+ * enrolling). Sample sizes are per arm.
  * @param boundaries - from `twoArmBoundaries`: per look, per control count, the bounds on xT
  * @param pT, pC - true rates, each in [0, 1]
  */
@@ -215,68 +207,30 @@ export function exactTwoArmOperatingCharacteristics(boundaries: TwoArmBoundary[]
     throw new StatsDomainError("boundaries", boundaries, "must be a non-empty array of looks");
   requireProbability("pT", pT, { closed: true });
   requireProbability("pC", pC, { closed: true });
-  // dist[xC * (n + 1) + xT]
-  let dist: Float64Array = new Float64Array([1]);
+  const K = boundaries.length;
+  const sizes = new Array<number>(K);
+  const fMax: Int32Array[] = new Array(K);
+  const eMin: Int32Array[] = new Array(K);
+  const incT: Float64Array[] = new Array(K);
+  const incC: Float64Array[] = new Array(K);
   let prev = 0;
-  const looks: LookOutcome[] = [];
   boundaries.forEach((b, k) => {
     requireCount("boundary.n", b.n);
     if (b.n <= prev) throw new StatsDomainError("boundary.n", b.n, `must exceed the previous look ${prev}`);
     if (b.final !== (k === boundaries.length - 1)) throw new StatsDomainError("boundary.final", b.final, "must be true for the last look only");
     if (b.futilityMaxT.length !== b.n + 1 || b.efficacyMinT.length !== b.n + 1)
       throw new StatsDomainError("boundary.futilityMaxT", b.futilityMaxT.length, `must have one entry per control count 0..${b.n}`);
-    const n = b.n;
-    const gap = n - prev;
-    const incT = binomialPmfs(gap, pT);
-    const incC = binomialPmfs(gap, pC);
-    const w0 = prev + 1;
-    const w1 = n + 1;
-    // Separable convolution: experimental increments along rows, then control increments down columns.
-    const rows = new Float64Array(w0 * w1);
-    for (let xC = 0; xC < w0; xC++) {
-      const src = xC * w0;
-      const dst = xC * w1;
-      for (let xT = 0; xT < w0; xT++) {
-        const v = dist[src + xT];
-        if (v === 0) continue;
-        for (let y = 0; y <= gap; y++) rows[dst + xT + y] += v * incT[y];
-      }
-    }
-    const next = new Float64Array(w1 * w1);
-    for (let xC = 0; xC < w0; xC++) {
-      const src = xC * w1;
-      for (let y = 0; y <= gap; y++) {
-        const c = incC[y];
-        if (c === 0) continue;
-        const dst = (xC + y) * w1;
-        for (let xT = 0; xT < w1; xT++) next[dst + xT] += rows[src + xT] * c;
-      }
-    }
-    dist = next;
-    prev = n;
-    let fut = 0;
-    let eff = 0;
-    let cont = 0;
-    for (let xC = 0; xC <= n; xC++) {
-      const fMax = b.futilityMaxT[xC] ?? -1;
-      const eMin = b.efficacyMinT[xC] ?? n + 1;
-      const base = xC * w1;
-      for (let xT = 0; xT <= n; xT++) {
-        const v = dist[base + xT];
-        if (xT <= fMax) {
-          fut += v;
-          dist[base + xT] = 0;
-        } else if (xT >= eMin) {
-          eff += v;
-          dist[base + xT] = 0;
-        } else if (b.final) {
-          fut += v;
-          dist[base + xT] = 0;
-        } else cont += v;
-      }
-    }
-    looks.push({ n, pStopFutility: fut, pStopEfficacy: eff, pContinue: b.final ? 0 : cont });
+    sizes[k] = b.n;
+    fMax[k] = Int32Array.from(b.futilityMaxT, (v) => v ?? -1);
+    eMin[k] = Int32Array.from(b.efficacyMinT, (v) => v ?? b.n + 1);
+    incT[k] = binomialPmfs(b.n - prev, pT);
+    incC[k] = binomialPmfs(b.n - prev, pC);
+    prev = b.n;
   });
+  const recursion = new JointRecursion(sizes, prev);
+  recursion.run(fMax, eMin, incT, incC);
+  const out = recursion.out;
+  const looks: LookOutcome[] = sizes.map((n, k) => ({ n, pStopFutility: out.fut[k], pStopEfficacy: out.eff[k], pContinue: out.cont[k] }));
   return { pT, pC, ...summariseLooks(looks) };
 }
 
