@@ -9,7 +9,7 @@ import { useEffect, useRef, useState } from "react";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
 import { formatProbability, formatRate } from "@/lib/format";
 import type { Review } from "@/lib/review/compute-review";
-import { PosteriorDensityPlot } from "./review-charts";
+import { CumulativePlot, PosteriorDensityPlot } from "./review-charts";
 
 type Answer = { state: "idle" | "loading" } | { state: "answer"; probability: number; lo: number; hi: number; armId: number } | { state: "error"; message: string };
 
@@ -88,6 +88,7 @@ export function IntervalQuestion({ trialId, analysisId, review, defaultLo, defau
         )}
       </p>
       <PosteriorDensityPlot review={review} band={band} />
+      <CumulativePlot review={review} band={band} />
     </div>
   );
 }

@@ -87,19 +87,32 @@ export function PosteriorDensityPlot({ review, band }: { review: Pick<Review, "a
   );
 }
 
-export function CumulativePlot({ review }: { review: Pick<Review, "arms" | "reference"> }) {
-  const data = review.arms.map((arm, k) => ({ x: arm.curves.p, y: arm.curves.cdf, type: "scatter" as const, mode: "lines" as const, name: `${arm.label}: P(rate ≤ x)`, line: { color: ARM_COLOURS[k] ?? CAIRN_COLOURS.observed, width: 2 } }));
-  const shapes = review.reference.kind === "p0" ? [{ type: "line", x0: review.reference.value, x1: review.reference.value, yref: "paper", y0: 0, y1: 1, line: { color: CAIRN_COLOURS.futility, dash: "dash", width: 1.5 } }] : [];
+export function CumulativePlot({ review, band }: { review: Pick<Review, "arms" | "reference">; band?: { armId: number; lower: number; upper: number } | null }) {
+  const data: Record<string, unknown>[] = review.arms.map((arm, k) => ({ x: arm.curves.p, y: arm.curves.cdf, type: "scatter" as const, mode: "lines" as const, name: `${arm.label}: P(rate ≤ x)`, line: { color: ARM_COLOURS[k] ?? CAIRN_COLOURS.observed, width: 2 } }));
+  const shapes: Record<string, unknown>[] = review.reference.kind === "p0" ? [{ type: "line", x0: review.reference.value, x1: review.reference.value, yref: "paper", y0: 0, y1: 1, line: { color: CAIRN_COLOURS.futility, dash: "dash", width: 1.5 } }] : [];
+  // The asked interval: shaded across the plot, and the rise of the curve over it (which is the
+  // interval's probability) marked on the probability axis.
+  const askedArm = band ? review.arms.find((a) => a.armId === band.armId) : undefined;
+  let rise = "";
+  if (band && askedArm) {
+    const lowF = interpolateDensity(askedArm.curves.p, askedArm.curves.cdf, band.lower);
+    const highF = interpolateDensity(askedArm.curves.p, askedArm.curves.cdf, band.upper);
+    shapes.push({ type: "rect", x0: band.lower, x1: band.upper, yref: "paper", y0: 0, y1: 1, fillcolor: `${CAIRN_COLOURS.efficacy}22`, line: { width: 0 }, layer: "below" });
+    data.push({ x: [0, band.lower, band.lower], y: [lowF, lowF, 0], type: "scatter", mode: "lines", name: "", showlegend: false, hoverinfo: "skip", line: { color: CAIRN_COLOURS.efficacy, dash: "dot", width: 1 } });
+    data.push({ x: [0, band.upper, band.upper], y: [highF, highF, 0], type: "scatter", mode: "lines", name: "Asked interval", line: { color: CAIRN_COLOURS.efficacy, dash: "dot", width: 1 } });
+    rise = ` Shaded: the asked interval ${p3(band.lower)} to ${p3(band.upper)} for ${askedArm.label}; the curve rises from ${p3(lowF)} to ${p3(highF)} over it, the interval's probability.`;
+  }
   const summary =
     review.arms.map((a) => `${a.label}: median ${p3(a.summary.median)}, ${Math.round(a.summary.level * 100)}% equal-tailed interval ${interval(a.summary.equalTailed)}.`).join(" ") +
-    (review.reference.kind === "p0" ? ` Dashed line: p0 = ${review.reference.value}.` : "");
+    (review.reference.kind === "p0" ? ` Dashed line: p0 = ${review.reference.value}.` : "") +
+    rise;
   return (
     <CairnPlot
       title="Posterior cumulative distribution"
       summary={summary}
       numbers={curveTable("Response rate x", review.arms[0].curves.p, review.arms.map((a) => ({ header: `${a.label}: P(rate ≤ x)`, y: a.curves.cdf })))}
       fileName="posterior-cumulative"
-      data={data}
+      data={data as never}
       layout={{ xaxis: probabilityAxis(RATE_AXIS), yaxis: probabilityAxis("Cumulative probability (0 to 1)", {}, 0, 1, 0.2), shapes: shapes as never }}
     />
   );

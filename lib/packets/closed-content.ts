@@ -74,8 +74,9 @@ function boundaryChart(review: Review): PacketChart {
     xRange: [0, nMax],
     yRange: [0, nMax],
     series: [
-      { name: "Futility: stop at or below", kind: "line", colour: PACKET_COLOURS.futility, points: fut },
-      { name: "Efficacy (final: success) at or above", kind: "line", colour: PACKET_COLOURS.efficacy, points: eff },
+      // Steps, as on the screen: a boundary holds from one look to the next.
+      { name: "Futility: stop at or below", kind: "step", colour: PACKET_COLOURS.futility, points: fut },
+      { name: "Efficacy (final: success) at or above", kind: "step", colour: PACKET_COLOURS.efficacy, points: eff },
       { name: "Observed", kind: "line", colour: PACKET_COLOURS.observed, points: [[0, 0], ...obs] },
       { name: "Observed looks", kind: "points", colour: PACKET_COLOURS.observed, points: obs },
       // Boundaries at each look's actual evaluable count, where that differs from the plan.

@@ -18,7 +18,7 @@ import { Badge } from "@/components/ui/badge";
 import { Banner } from "@/components/ui/banner";
 import { buttonClass } from "@/components/ui/button";
 import { DataGrid } from "@/components/grid/data-grid";
-import { BoundaryPlot, CumulativePlot, DifferencePlot, PredictiveOverLooksPlot, ToxicityPlot } from "@/components/review/review-charts";
+import { BoundaryPlot, DifferencePlot, PredictiveOverLooksPlot, ToxicityPlot } from "@/components/review/review-charts";
 import { IntervalQuestion } from "@/components/review/interval-question";
 import { WhatItTakes } from "@/components/review/what-it-takes";
 import { WhatIf } from "@/components/review/what-if";
@@ -169,13 +169,9 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
           </p>
         </Card>
 
-        <Card title="Ask about an interval" className="lg:col-span-2">
+        <Card title="Ask about an interval (density and cumulative curve)" className="lg:col-span-2">
           <p className="mb-2 text-sm text-stone-600">How likely is the response rate between two values, given the data at this look?</p>
           <IntervalQuestion trialId={trial.id} analysisId={analysisId} review={{ arms: review.arms, reference: review.reference, credibleLevel: review.credibleLevel }} defaultLo={defaultLo} defaultHi={defaultHi} />
-        </Card>
-
-        <Card title="Cumulative distribution">
-          <CumulativePlot review={review} />
         </Card>
 
         {review.difference ? (
