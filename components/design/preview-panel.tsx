@@ -6,6 +6,7 @@
  */
 import { callApi, jsonInit } from "@/lib/api-client";
 import { useEffect, useRef, useState } from "react";
+import { SelectInput } from "@/components/ui/field";
 import type { ColDef } from "ag-grid-community";
 import { CairnPlot, CAIRN_COLOURS } from "@/components/charts/plot";
 import { cell, countAxis, densityAxis, probabilityAxis, sampleIndices } from "@/lib/charts/chart-numbers";
@@ -152,7 +153,10 @@ function TwoArmResult({ p, design }: { p: TwoArmPreview; design: Extract<Design,
     futility: formatBoundary(b.futilityMaxT),
     efficacy: formatBoundary(b.efficacyMinT),
   }));
+  // One look at a time by default: every look's two step lines overlaid do not read.
+  const [chartLook, setChartLook] = useState<number | "all">(p.looks[0]);
   const data: Plotly.Data[] = p.looks.flatMap((n, k) => {
+    if (chartLook !== "all" && chartLook !== n) return [];
     const own = p.boundaries.filter((b) => b.n === n);
     const final = k === p.looks.length - 1;
     const label = final ? `final (${n}/arm)` : `look ${k + 1} (${n}/arm)`;
@@ -185,8 +189,19 @@ function TwoArmResult({ p, design }: { p: TwoArmPreview; design: Extract<Design,
           Safety (experimental arm): stop if toxicities ≥ {p.safety.map((s) => `${formatBoundary(s.toxicityMin)} of ${s.n}`).join("; ")}.
         </p>
       ) : null}
+      <label className="flex items-center gap-2 text-sm">
+        <span>Boundary chart for</span>
+        <SelectInput className="w-56" value={String(chartLook)} onChange={(e) => setChartLook(e.target.value === "all" ? "all" : Number(e.target.value))} aria-label="Look shown in the boundary chart">
+          {p.looks.map((n, k) => (
+            <option key={n} value={n}>
+              {k === p.looks.length - 1 ? `Final analysis (${n} per arm)` : `Look ${k + 1} (${n} per arm)`}
+            </option>
+          ))}
+          <option value="all">All looks together</option>
+        </SelectInput>
+      </label>
       <CairnPlot
-        title="Experimental responders that stop, against control responders, by look"
+        title={`Experimental responders that stop, against control responders, ${chartLook === "all" ? "by look" : `at ${chartLook} per arm`}`}
         summary={`For each of ${p.looks.length} looks (${p.looks.join(", ")} evaluable patients per arm), the experimental responder counts that stop for futility (at or below) or efficacy (at or above), given the control arm's responders.`}
         numbers={{ columns: ["Look", "Evaluable patients per arm", "Control responders", "Futility: stop if experimental responders ≤", "Efficacy: stop if experimental responders ≥"], rows: rows.map((r) => [r.look, r.n, r.xC, r.futility, r.efficacy]) }}
         data={data}
