@@ -63,6 +63,8 @@ export const FREE_TEXT: Record<string, TextClass> = {
   // The hash of a signed lock record covers that look's counts.
   "signatures.record_hash": "closed",
   "signatures.hash_scheme": "open",
+  "scheduler_leases.name": "open",
+  "scheduler_leases.holder": "open",
   "sign_in_failures.subject": "secret",
   "trials.code": "open",
   "trials.title": "open",
@@ -104,6 +106,7 @@ export const BLINDED_READS: Record<string, "all" | "none" | readonly string[]> =
   patient_outcomes: "none",
   recommendations: ["id", "trial_id", "analysis_id", "review_version", "decision", "corrects_id", "signature_id", "created_by", "created_at"],
   signatures: ["id", "user_id", "signer_name", "signer_email", "meaning", "entity_type", "entity_id", "signed_at", "hash_scheme"],
+  scheduler_leases: "none",
   sign_in_failures: "none",
   trial_memberships: "all",
   trials: "all",

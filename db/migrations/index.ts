@@ -40,6 +40,7 @@ import * as mBlind1 from "./20261203060100_audit_events_hash_scheme";
 import * as mBlind2 from "./20261203060200_signatures_hash_scheme";
 import * as mBlind3 from "./20261203060300_create_view_audit_events_open";
 import * as mBlind4 from "./20261203060400_create_view_packets_open";
+import * as mWords1 from "./20261205050100_create_scheduler_leases";
 
 type Migration = { up: (k: Knex) => Promise<void>; down: (k: Knex) => Promise<void> };
 const migrations: Array<[string, Migration]> = [
@@ -80,6 +81,7 @@ const migrations: Array<[string, Migration]> = [
   ["20261203060200_signatures_hash_scheme", mBlind2],
   ["20261203060300_create_view_audit_events_open", mBlind3],
   ["20261203060400_create_view_packets_open", mBlind4],
+  ["20261205050100_create_scheduler_leases", mWords1],
 ];
 
 export const migrationSource: Knex.MigrationSource<[string, Migration]> = {

@@ -54,6 +54,7 @@ const EXPECTED: Record<string, string[]> = {
   "20261203060200_signatures_hash_scheme": ["column signatures.hash_scheme"],
   "20261203060300_create_view_audit_events_open": ["view audit_events_open"],
   "20261203060400_create_view_packets_open": ["view packets_open"],
+  "20261205050100_create_scheduler_leases": ["table scheduler_leases"],
 };
 
 const ALL_TABLES = Object.values(EXPECTED)
@@ -91,6 +92,7 @@ const FIXTURES: Record<string, Record<string, unknown>[]> = {
   email_messages: [{ id: 1, trial_id: 1, meeting_id: 1, packet_id: 1, to_user_id: 1, to_address: SIGNER.email, subject: "Invented subject", kind: "packet_open", body_text: "Invented body", created_by: 1, created_at: "2026-11-03 11:01:00.000" }],
   calibration_jobs: [{ id: "00000000-0000-4000-8000-000000000001", trial_id: 1, user_id: 1, total: 9, best_json: "[]", started_at: "2026-11-03 12:00:00.000", heartbeat_at: "2026-11-03 12:00:05.000" }],
   sign_in_failures: [{ id: 1, scope: "account", subject: SIGNER.email, failed_at: "2026-12-01 08:00:00.000" }],
+  scheduler_leases: [{ name: "mail", holder: "host-1:100:abc", expires_at: "2026-12-05 08:01:00.000", renewed_at: "2026-12-05 08:00:00.000" }],
   password_links: [{ id: 1, user_id: 1, token_sha256: H("d"), expires_at: "2026-12-02 09:00:00.000", used_at: null, revoked_at: null, issued_by: 1, created_at: "2026-12-01 09:00:00.000" }],
 };
 
