@@ -1,5 +1,5 @@
 "use client";
-import { useActionState } from "react";
+import { useActionState, useState } from "react";
 import { assignRole, createAccount, deactivateAccount, reactivateAccount, removeRole, sendPasswordLink } from "./actions";
 import type { FormState } from "./schemas";
 import { Button } from "@/components/ui/button";
@@ -77,13 +77,30 @@ export function AssignRoleForm({ users, trials }: { users: { id: number; label: 
   );
 }
 
+/**
+ * Removing a role asks first: the first click shows what will be removed and a confirm button; only
+ * that one posts. The server still refuses what must not happen (the last unblinded statistician).
+ */
 export function RemoveRoleButton({ membershipId, label }: { membershipId: number; label: string }) {
   const [state, action, pending] = useActionState(removeRole, initial);
+  const [asking, setAsking] = useState(false);
+  if (!asking) {
+    return (
+      <div className="flex flex-col gap-1">
+        <Button type="button" variant="quiet" aria-label={label} onClick={() => setAsking(true)}>Remove</Button>
+        {state.error ? <span role="alert" className="text-xs text-berry-700">{state.error}</span> : null}
+      </div>
+    );
+  }
   return (
-    <form action={action} className="flex items-center gap-2">
+    <form action={action} className="flex flex-col gap-2 rounded-card border border-berry-100 bg-berry-50 p-2" aria-label={`Confirm: ${label}`}>
       <input type="hidden" name="membershipId" value={membershipId} />
-      <Button type="submit" variant="quiet" aria-label={label} disabled={pending}>Remove</Button>
-      {state.error ? <span className="text-xs text-berry-700">{state.error}</span> : null}
+      <p className="text-xs text-stone-800">{label}? The person loses access that comes with this role at once.</p>
+      <div className="flex flex-wrap gap-2">
+        <Button type="submit" variant="danger" disabled={pending}>Yes, remove the role</Button>
+        <Button type="button" variant="quiet" onClick={() => setAsking(false)}>Keep it</Button>
+      </div>
+      {state.error ? <span role="alert" className="text-xs text-berry-700">{state.error}</span> : null}
     </form>
   );
 }
