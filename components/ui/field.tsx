@@ -8,7 +8,7 @@ export function Field({
   hint,
   children,
 }: {
-  label: string;
+  label: ReactNode;
   name: string;
   error?: string | string[];
   hint?: string;
@@ -27,6 +27,11 @@ export function Field({
       </p>
     </div>
   );
+}
+
+/** Published notation shown small beside a label in words (the words lead; the symbol is secondary). */
+export function Notation({ children }: { children: ReactNode }) {
+  return <span className="ml-1 text-xs font-normal text-stone-500">{children}</span>;
 }
 
 const INPUT = "rounded-md border border-stone-300 bg-white px-3 py-2 text-sm text-stone-900 placeholder:text-stone-400 focus:border-lichen-600 aria-[invalid=true]:border-berry-600";

@@ -12,6 +12,7 @@ import { fetchDesign } from "@/db/queries/designs";
 import { fetchArms } from "@/db/queries/trials";
 import { fetchArmCountsForTrial, fetchClosedAgenda } from "@/db/queries/closed";
 import { monitoringRuleLabel } from "@/lib/stats/labels";
+import { thresholdWord } from "@/lib/design/threshold-labels";
 import { StatsDomainError } from "@/lib/stats/validate";
 import { computeReview, reproducibilityRecord, type ReviewInput } from "@/lib/review/compute-review";
 import { buildClosedPacket } from "./build";
@@ -58,10 +59,7 @@ async function buildClosedDocument(trial: TrialRow, open: MeetingPacketInput, cl
         id: design.id,
         version: design.version,
         lockedAt: design.locked_at ? new Date(design.locked_at) : null,
-        ruleLabel:
-          design.spec.rule.kind === "predictive"
-            ? `Predictive probability (Lee & Liu 2008): success if P > ${design.spec.rule.thetaT} at the end; futility if PP < ${design.spec.rule.futilityThreshold}${design.spec.rule.efficacyStopping ? `; efficacy if PP > ${design.spec.rule.efficacyThreshold}` : "; no efficacy stopping"}`
-            : `${monitoringRuleLabel(design.spec.rule.kind, design.spec.arms)}: futility if P < ${design.spec.rule.futilityThreshold}${design.spec.rule.efficacyStopping ? `; efficacy if P > ${design.spec.rule.efficacyThreshold}` : "; no efficacy stopping"}; success if P > ${design.spec.rule.thetaT} at the end`,
+        ruleLabel: ruleWords(design.spec.rule, design.spec.arms),
       },
       lock: { signedBy: lock.signerName, lockedAt: lock.lockedAt ? new Date(lock.lockedAt) : null },
     });
@@ -83,4 +81,20 @@ export async function prepareClosedPacket(trial: TrialRow, meetingId: number, us
   const doc = await buildClosedDocument(trial, open, closed, now);
   if (typeof doc === "string") return { audience: "closed", skipped: doc };
   return storePacketIfChanged(trial, meetingId, doc, user, now);
+}
+
+/**
+ * The monitoring rule in Cairn's words, the published symbol in brackets after each threshold (the
+ * packet's method section may carry the notation), e.g. "Predictive probability (Lee & Liu 2008):
+ * final success bar (θT) 0.9; interim futility floor (θL) 0.05; no early-success stopping".
+ */
+export function ruleWords(rule: { kind: string; thetaT: number; futilityThreshold: number; efficacyStopping: boolean; efficacyThreshold: number | null }, arms: "single" | "two"): string {
+  const kind = rule.kind === "predictive" ? "predictive" : "posterior";
+  const w = (key: "thetaT" | "futilityThreshold" | "efficacyThreshold") => {
+    const t = thresholdWord(key, kind);
+    return `${t.word.toLowerCase()} (${t.symbol})`;
+  };
+  const head = rule.kind === "predictive" ? "Predictive probability (Lee & Liu 2008)" : monitoringRuleLabel(rule.kind as Parameters<typeof monitoringRuleLabel>[0], arms);
+  const early = rule.efficacyStopping ? `${w("efficacyThreshold")} ${rule.efficacyThreshold}` : "no early-success stopping";
+  return `${head}: ${w("thetaT")} ${rule.thetaT}; ${w("futilityThreshold")} ${rule.futilityThreshold}; ${early}`;
 }

@@ -116,7 +116,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
 
       {review.safety?.crossed ? (
         <Banner tone="danger" title="Safety boundary crossed">
-          P(toxicity rate &gt; {review.safety.limitLabel ?? formatRate(review.safety.qmax)}) = {formatProbability(review.safety.probAboveLimit)}, above the safety threshold {review.safety.thetaS}.
+          P(toxicity rate &gt; {review.safety.limitLabel ?? formatRate(review.safety.qmax)}) = {formatProbability(review.safety.probAboveLimit)}, above the toxicity alarm level {review.safety.thetaS}.
         </Banner>
       ) : null}
 
@@ -246,7 +246,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
         {review.safety ? (
           <Card title="Safety" className="lg:col-span-2">
             <p className="text-sm" data-testid="safety-summary">
-              {review.safety.toxicities} with toxicity among {review.safety.treated} treated patients (evaluable for toxicity). P(toxicity rate &gt; {review.safety.limitLabel ?? formatRate(review.safety.qmax)}) = <strong>{formatProbability(review.safety.probAboveLimit)}</strong> (safety threshold {review.safety.thetaS}):{" "}
+              {review.safety.toxicities} with toxicity among {review.safety.treated} treated patients (evaluable for toxicity). P(toxicity rate &gt; {review.safety.limitLabel ?? formatRate(review.safety.qmax)}) = <strong>{formatProbability(review.safety.probAboveLimit)}</strong> (toxicity alarm level {review.safety.thetaS}):{" "}
               {review.safety.crossed ? <Badge tone="berry">boundary crossed</Badge> : <Badge tone="lichen">boundary not crossed</Badge>}
             </p>
             <div className="grid gap-4 lg:grid-cols-2">
