@@ -4,7 +4,7 @@ import { changePassword } from "./actions";
 import type { PasswordFormState } from "./schemas";
 import { Button } from "@/components/ui/button";
 import { Field, TextInput } from "@/components/ui/field";
-import { Banner } from "@/components/ui/banner";
+import { FormErrorSummary } from "@/components/ui/form-error-summary";
 import { NewPasswordFields, PasswordSetNotice } from "@/components/account/password-fields";
 
 export function ChangePasswordForm() {
@@ -13,7 +13,7 @@ export function ChangePasswordForm() {
   if (state.ok) return <PasswordSetNotice message={state.ok} />;
   return (
     <form action={action} noValidate className="flex flex-col gap-3" aria-label="Change your password">
-      {state.error ? <Banner tone="danger">{state.error}</Banner> : null}
+      <FormErrorSummary error={state.error} fieldErrors={state.fieldErrors} />
       <Field label="Current password" name="currentPassword" error={fe.currentPassword}>
         <TextInput id="currentPassword" name="currentPassword" type="password" autoComplete="current-password" maxLength={200} invalid={!!fe.currentPassword} />
       </Field>

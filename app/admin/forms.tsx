@@ -5,13 +5,14 @@ import type { FormState } from "./schemas";
 import { Button } from "@/components/ui/button";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
 import { Banner } from "@/components/ui/banner";
+import { FormErrorSummary } from "@/components/ui/form-error-summary";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 
 const initial: FormState = {};
 
 function Outcome({ state }: { state: FormState }) {
   if (state.ok) return <Banner tone="success">{state.ok}</Banner>;
-  if (state.error) return <Banner tone="danger">{state.error}</Banner>;
+  if (state.error) return <FormErrorSummary error={state.error} fieldErrors={state.fieldErrors} />;
   return null;
 }
 

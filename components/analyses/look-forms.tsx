@@ -11,6 +11,7 @@ import { Banner } from "@/components/ui/banner";
 import { Field, TextArea, TextInput } from "@/components/ui/field";
 import { callApi, jsonInit, type ApiFailure } from "./api-client";
 import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
+import { fieldName } from "@/lib/form-errors";
 
 type FormState = { ok?: string; failure?: ApiFailure };
 const initial: FormState = {};
@@ -40,6 +41,13 @@ function Outcome({ state }: { state: FormState }) {
   return (
     <Banner tone="danger" title={f.status === 409 ? "Not saved: conflict" : "Not saved"}>
       <p>{f.error}</p>
+      {Object.keys(f.fieldErrors).length && !f.error.startsWith("Check ") ? (
+        <ul className="mt-1 list-disc pl-5" data-testid="form-error-summary">
+          {Object.entries(f.fieldErrors).map(([k, m]) => (
+            <li key={k}>{fieldName(k)}: {m}</li>
+          ))}
+        </ul>
+      ) : null}
       {f.status === 409 ? (
         <button type="button" className="mt-1 underline" onClick={() => window.location.reload()}>
           Reload this look

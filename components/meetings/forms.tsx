@@ -4,6 +4,7 @@ import { startTransition, useActionState, useEffect, useState } from "react";
 import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
+import { FormErrorSummary } from "@/components/ui/form-error-summary";
 import { Field, SelectInput, TextArea, TextInput } from "@/components/ui/field";
 import type { MeetingFormState } from "@/lib/meetings/schemas";
 
@@ -12,7 +13,7 @@ const initial: MeetingFormState = {};
 
 function Outcome({ state }: { state: MeetingFormState }) {
   if (state.ok) return <Banner tone="success">{state.ok}</Banner>;
-  if (state.error) return <Banner tone="danger">{state.error}</Banner>;
+  if (state.error) return <FormErrorSummary error={state.error} fieldErrors={state.fieldErrors} />;
   return null;
 }
 
