@@ -94,7 +94,7 @@ export function RemoveRoleButton({ membershipId, label }: { membershipId: number
     );
   }
   return (
-    <form action={action} className="flex flex-col gap-2 rounded-card border border-berry-100 bg-berry-50 p-2" aria-label={`Confirm: ${label}`}>
+    <form noValidate action={action} className="flex flex-col gap-2 rounded-card border border-berry-100 bg-berry-50 p-2" aria-label={`Confirm: ${label}`}>
       <input type="hidden" name="membershipId" value={membershipId} />
       <p className="text-xs text-stone-800">{label}? The person loses access that comes with this role at once.</p>
       <div className="flex flex-wrap gap-2">
@@ -117,18 +117,18 @@ export function AccountActions({ userId, name, isActive, isSelf }: { userId: num
     <div className="flex flex-col gap-1">
       <div className="flex flex-wrap items-center gap-2">
         {isActive ? (
-          <form action={linkAction}>
+          <form noValidate action={linkAction}>
             <input type="hidden" name="userId" value={userId} />
             <Button type="submit" variant="quiet" aria-label={`Send a new set-password link to ${name}`} disabled={linkPending}>New link</Button>
           </form>
         ) : null}
         {isSelf ? null : isActive ? (
-          <form action={offAction}>
+          <form noValidate action={offAction}>
             <input type="hidden" name="userId" value={userId} />
             <Button type="submit" variant="quiet" aria-label={`Deactivate ${name}`} disabled={offPending}>Deactivate</Button>
           </form>
         ) : (
-          <form action={onAction}>
+          <form noValidate action={onAction}>
             <input type="hidden" name="userId" value={userId} />
             <Button type="submit" variant="quiet" aria-label={`Reactivate ${name}`} disabled={onPending}>Reactivate</Button>
           </form>

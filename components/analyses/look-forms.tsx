@@ -67,7 +67,7 @@ export function OpenLookForm({ trialId, analysisId, rowVersion, lookNumber }: { 
   }, initial);
   const fe = state.failure?.fieldErrors ?? {};
   return (
-    <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Open this look for entry">
+    <form noValidate onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Open this look for entry">
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
       <Field label="Data cut-off date" name="cutoffDate" error={fe.cutoffDate} hint="Patients enrolled on or before this date belong to this look.">
@@ -203,7 +203,7 @@ export function LockForm({ trialId, analysisId, rowVersion, lookNumber, signerNa
   }, initial);
   const fe = state.failure?.fieldErrors ?? {};
   return (
-    <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Lock this look">
+    <form noValidate onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Lock this look">
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
       <p className="text-sm text-stone-700">
@@ -229,7 +229,7 @@ export function ReopenForm({ trialId, analysisId, rowVersion, lookNumber }: { tr
   }, initial);
   const fe = state.failure?.fieldErrors ?? {};
   return (
-    <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Correct this look">
+    <form noValidate onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Correct this look">
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
       <Field label="Reason for the correction" name="reason" error={fe.reason} hint={`Reopening records an amendment; the old values stay in the audit trail. ${CLOSED_FIELD_NOTE}`}>
@@ -256,7 +256,7 @@ export function SwitchToCountLevelForm({ trialId, analysisId, rowVersion, patien
   }, initial);
   const fe = state.failure?.fieldErrors ?? {};
   return (
-    <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Switch to count-level entry">
+    <form noValidate onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Switch to count-level entry">
       <Outcome state={state} />
       <p className="text-sm text-stone-700">
         This look is <strong>patient-level</strong>: its counts are derived from its {patientRows} uploaded patient rows and cannot be typed in. To correct them, upload a corrected file. To

@@ -244,7 +244,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
                 Signing records your name, the meaning “design approved” and the time, bound to version {selected.version} as saved (revision {selected.rowVersion}). A locked design cannot be edited; changes need an amendment with a reason.
               </p>
               {dirty ? <p className="mb-2 text-sm text-amber-700">Save your changes first: only the saved draft can be signed.</p> : null}
-              <form
+              <form noValidate
                 className="flex flex-col gap-3"
                 onSubmit={(e) => {
                   e.preventDefault();
@@ -265,7 +265,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
 
           {selected?.status === "locked" && canEdit && !draftExists ? (
             <Card title="Amend the charter version">
-              <form
+              <form noValidate
                 className="flex flex-col gap-3"
                 onSubmit={(e) => {
                   e.preventDefault();

@@ -32,7 +32,7 @@ export function ScheduleMeetingForm({ action, trialId, analyses, members, zones,
   }, [state.meetingId, trialId, router]);
   const fe = state.fieldErrors ?? {};
   return (
-    <form
+    <form noValidate
       action={formAction}
       // Submitted by hand so React does not reset the fields after a refused submission: the
       // organiser keeps what they typed and sees the messages next to it.
@@ -90,7 +90,7 @@ export function ScheduleMeetingForm({ action, trialId, analyses, members, zones,
 export function ActionButton({ action, fields, label, pendingLabel, variant = "primary", confirm }: { action: Action; fields: Record<string, string | number>; label: string; pendingLabel: string; variant?: "primary" | "secondary" | "danger" | "quiet"; confirm?: string }) {
   const [state, formAction, pending] = useActionState(action, initial);
   return (
-    <form
+    <form noValidate
       action={formAction}
       className="flex flex-col gap-2"
       onSubmit={(e) => {
@@ -107,7 +107,7 @@ export function ActionButton({ action, fields, label, pendingLabel, variant = "p
 export function AttendanceForm({ action, trialId, meetingId, rowVersion, attendees }: { action: Action; trialId: number; meetingId: number; rowVersion: number; attendees: { userId: number; label: string; attended: boolean | null }[] }) {
   const [state, formAction, pending] = useActionState(action, initial);
   return (
-    <form action={formAction} className="flex flex-col gap-2" aria-label="Record attendance">
+    <form noValidate action={formAction} className="flex flex-col gap-2" aria-label="Record attendance">
       <input type="hidden" name="trialId" value={trialId} />
       <input type="hidden" name="meetingId" value={meetingId} />
       <input type="hidden" name="rowVersion" value={rowVersion} />

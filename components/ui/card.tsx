@@ -2,14 +2,15 @@ import type { ReactNode } from "react";
 
 export function Card({ title, actions, children, className = "" }: { title?: ReactNode; actions?: ReactNode; children: ReactNode; className?: string }) {
   return (
-    <section className={`rounded-card border border-stone-200 bg-white p-5 shadow-[0_1px_0_rgba(0,0,0,0.03)] ${className}`}>
+    // min-w-0 and the scrolling body: a wide table scrolls inside its card, never the page (390 px phones).
+    <section className={`min-w-0 rounded-card border border-stone-200 bg-white p-4 shadow-[0_1px_0_rgba(0,0,0,0.03)] sm:p-5 ${className}`}>
       {title || actions ? (
-        <header className="mb-3 flex items-center justify-between gap-3">
+        <header className="mb-3 flex flex-wrap items-center justify-between gap-3">
           {title ? <h2 className="text-lg font-semibold text-stone-800">{title}</h2> : <span />}
           {actions}
         </header>
       ) : null}
-      {children}
+      <div className="min-w-0 overflow-x-auto">{children}</div>
     </section>
   );
 }
