@@ -195,10 +195,10 @@ function SafetyOcTable({ p, nullLabel, targetLabel }: { p: DesignPreview; nullLa
     { field: "futilityNull", headerName: `Early futility stop (${nullLabel})` },
     { field: "efficacyNull", headerName: `Early efficacy stop (${nullLabel})` },
     { field: "successNull", headerName: `Efficacy declared (${nullLabel})` },
-    { field: "enNull", headerName: `Expected N (${nullLabel})` },
+    { field: "enNull", headerName: `Average patients (${nullLabel})` },
     { field: "safetyTarget", headerName: `Safety stop (${targetLabel})` },
     { field: "successTarget", headerName: `Efficacy declared (${targetLabel})` },
-    { field: "enTarget", headerName: `Expected N (${targetLabel})` },
+    { field: "enTarget", headerName: `Average patients (${targetLabel})` },
   ];
   return (
     <>
