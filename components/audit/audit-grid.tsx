@@ -51,12 +51,12 @@ export function AuditGrid({ entries, openOnly, trialCode }: { entries: AuditEntr
 
   // Full words in the headers: the grid's columns are wide enough for them (no "#" or abbreviations).
   const columns: ColDef<Row>[] = [
-    { field: "id", headerName: "Entry", minWidth: 100, maxWidth: 110, sort: "desc" },
+    { field: "id", headerName: "Entry", minWidth: 120, sort: "desc" },
     { field: "when", headerName: "When", minWidth: 235 },
     { field: "who", headerName: "Who", minWidth: 200 },
     { field: "what", headerName: "What happened", minWidth: 220 },
     { field: "record", headerName: "Record", minWidth: 130 },
-    { field: "entityId", headerName: "Record number", minWidth: 160 },
+    { field: "entityId", headerName: "Record number", minWidth: 170, wrapHeaderText: true, autoHeaderHeight: true },
     { field: "visibilityWord", headerName: "Visibility", minWidth: 130 },
     { field: "reason", headerName: "Reason", minWidth: 160 },
     { field: "change", headerName: "Change (old → new)", minWidth: 360, wrapText: true, autoHeight: true },

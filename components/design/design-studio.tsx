@@ -219,7 +219,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
 
       {outcome ? <Banner tone={outcome.tone}>{outcome.text}</Banner> : null}
 
-      <div className="grid gap-4 xl:grid-cols-[minmax(0,5fr)_minmax(0,7fr)]">
+      <div className="grid grid-cols-1 gap-4 xl:grid-cols-[minmax(0,5fr)_minmax(0,7fr)]">
         <div className="flex flex-col gap-4">
           <Card title={selected ? `Version ${selected.version}${editable ? " (draft, editable)" : ""}` : "New design"}>
             {!editable ? (

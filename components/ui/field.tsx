@@ -34,7 +34,7 @@ export function Notation({ children }: { children: ReactNode }) {
   return <span className="ml-1 text-xs font-normal text-stone-500">{children}</span>;
 }
 
-const INPUT = "rounded-md border border-stone-300 bg-white px-3 py-2 text-sm text-stone-900 placeholder:text-stone-400 focus:border-lichen-600 aria-[invalid=true]:border-berry-600";
+const INPUT = "min-w-0 max-w-full rounded-md border border-stone-300 bg-white px-3 py-2 text-sm text-stone-900 placeholder:text-stone-400 focus:border-lichen-600 aria-[invalid=true]:border-berry-600";
 
 export function TextInput({ invalid, className = "", ...rest }: InputHTMLAttributes<HTMLInputElement> & { invalid?: boolean }) {
   return <input className={`${INPUT} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;

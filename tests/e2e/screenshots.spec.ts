@@ -59,6 +59,7 @@ test("design studio and threshold search, as the statistician uses them", async 
   await form.getByLabel("Trial code").fill(code);
   await form.getByLabel("Title").fill("TLM-417 in a second tumour type: a single-arm phase II study");
   await form.getByLabel("Sponsor").fill("Tallmoor Therapeutics (invented)");
+  await form.getByLabel("Arm label").fill("TLM-417 400 mg");
   await form.getByLabel("Endpoint", { exact: true }).fill("Objective response by week 16");
   await form.getByLabel("Target enrolment").fill("40");
   await form.getByRole("button", { name: "Create trial" }).click();

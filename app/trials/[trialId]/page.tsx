@@ -31,7 +31,7 @@ export default async function TrialOverviewPage({ params }: { params: Promise<{ 
   // Two arms: a look's planned size counts patients in each arm; accrual is pooled across arms.
   const perArm = trial.design_type === "two" ? " per arm" : "";
   return (
-    <div className="grid gap-4 lg:grid-cols-3">
+    <div className="grid grid-cols-1 gap-4 lg:grid-cols-3">
       <Card title="Accrual">
         <p className="text-3xl font-semibold tabular-nums" data-testid="accrual">
           {enrolled} <span className="text-base font-normal text-stone-500">of {trial.target_enrolment} planned{perArm ? " in all arms" : ""}</span>

@@ -57,7 +57,7 @@ export default async function MeetingsPage({ params }: { params: Promise<{ trial
   };
 
   return (
-    <div className="grid gap-4 lg:grid-cols-3">
+    <div className="grid grid-cols-1 gap-4 lg:grid-cols-3">
       <div className="flex flex-col gap-4 lg:col-span-2">
         <Card title="Upcoming meetings" actions={manage ? <ActionButton action={sendDueReminders} fields={{ trialId: trial.id }} label="Send due reminders" pendingLabel="Checking…" variant="secondary" /> : null}>
           {upcoming.length === 0 ? (

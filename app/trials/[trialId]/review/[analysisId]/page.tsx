@@ -120,7 +120,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
         </Banner>
       ) : null}
 
-      <div className="grid gap-4 lg:grid-cols-2">
+      <div className="grid grid-cols-1 gap-4 lg:grid-cols-2">
         <Card title="Posterior response rate" className="lg:col-span-2">
           <table className="cairn-table" aria-label="Posterior summaries">
             <thead>
@@ -249,7 +249,7 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
               {review.safety.toxicities} with toxicity among {review.safety.treated} treated patients (evaluable for toxicity). P(toxicity rate &gt; {review.safety.limitLabel ?? formatRate(review.safety.qmax)}) = <strong>{formatProbability(review.safety.probAboveLimit)}</strong> (toxicity alarm level {review.safety.thetaS}):{" "}
               {review.safety.crossed ? <Badge tone="berry">boundary crossed</Badge> : <Badge tone="lichen">boundary not crossed</Badge>}
             </p>
-            <div className="grid gap-4 lg:grid-cols-2">
+            <div className="grid grid-cols-1 gap-4 lg:grid-cols-2">
               <ToxicityPlot safety={review.safety} />
               <table className="cairn-table" aria-label="Safety boundary">
                 <thead>
