@@ -68,6 +68,8 @@ for (const who of Object.keys(ACCOUNTS) as AccountKey[]) {
     }
     await page.getByRole("link", { name: "CRN-201" }).click();
     await expect(page.getByTestId("caution")).toContainText("Decision support only");
+    // Meetings are reachable from a tab for everyone on the trial (blinded roles see the open part).
+    await expect(page.getByRole("navigation", { name: "Trial sections" }).getByRole("link", { name: "Meetings" })).toBeVisible();
     await page.getByRole("button", { name: "Sign out" }).click();
     await expect(page).toHaveURL(/\/signin$/);
     await page.goto("/trials");
