@@ -10,7 +10,8 @@ export function Card({ title, actions, children, className = "" }: { title?: Rea
           {actions}
         </header>
       ) : null}
-      <div className="min-w-0 overflow-x-auto">{children}</div>
+      {/* relative: an absolutely placed child (sr-only text in a table header) scrolls with the table instead of widening the page. */}
+      <div className="relative min-w-0 overflow-x-auto">{children}</div>
     </section>
   );
 }

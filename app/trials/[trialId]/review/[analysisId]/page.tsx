@@ -221,14 +221,14 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
           </table>
           <DataGrid
             label="Boundary table"
-            height={Math.min(420, 60 + 42 * review.boundaries.length)}
+            height={Math.min(450, 90 + 42 * review.boundaries.length)}
             csvFileName={`${trial.code}-look-${review.lookNumber}-boundaries.csv`}
             columns={[
-              { field: "look", headerName: "Planned look (n)" },
-              { field: "futility", headerName: "Futility: stop at or below" },
-              { field: "efficacy", headerName: "Efficacy / success: at or above" },
-              { field: "observed", headerName: "Observed responders" },
-              ...(single ? [] : [{ field: "control" as const, headerName: "Read at control responders" }]),
+              { field: "look", headerName: "Planned look (n)", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 },
+              { field: "futility", headerName: "Futility: stop at or below", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 },
+              { field: "efficacy", headerName: "Efficacy / success: at or above", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 },
+              { field: "observed", headerName: "Observed responders", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 },
+              ...(single ? [] : [{ field: "control" as const, headerName: "Read at control responders", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 }]),
             ]}
             rows={review.boundaries.map((b) => {
               const seen = review.observedBoundaries.find((o) => o.plannedN === b.n) ?? review.observedBoundaries.find((o) => o.plannedN === null && o.n === b.n);
