@@ -40,7 +40,6 @@ export function SignInForm({ returnTo = DEFAULT_RETURN_TO }: { returnTo?: string
     // browser's address bar but never reaches the server; carry it on if the target has none.
     const target = safeReturnTo(returnTo) ?? DEFAULT_RETURN_TO;
     const hash = !target.includes("#") && /^#[\w-]{1,64}$/.test(window.location.hash) ? window.location.hash : "";
-    // eslint-disable-next-line @next/next/no-location-assign-relative-destination -- deliberate: a client-side push would keep the signed-out header
     window.location.assign(target + hash);
   }
 
