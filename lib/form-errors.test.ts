@@ -37,7 +37,7 @@ describe("zod issues as sentences", () => {
 
   it("names fields in words and sums them up at the top", () => {
     expect(fieldName("cutoffDate")).toBe("Cutoff date");
-    expect(fieldName(["counts", 0, "responders"])).toBe("Counts 1 responders");
+    expect(fieldName(["counts", 0, "responders"])).toBe("Responders, row 1");
     expect(fieldName("cutoffDate", { cutoffDate: "Data cut-off date" })).toBe("Data cut-off date");
     const issues = issuesOf(z.object({ cutoffDate: z.string(), n: z.number().int() }), { n: 1.5 });
     expect(errorSummary(issues)).toBe("Check 2 fields: Cutoff date: Fill this in. N: Enter a whole number.");

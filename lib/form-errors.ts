@@ -56,16 +56,17 @@ export function issueSentence(issue: IssueLike): string {
   }
 }
 
-/** "cutoffDate" → "Cutoff date", "counts.0.responders" → "Counts 1 responders", "" → "The form". */
+/** "cutoffDate" → "Cutoff date", "counts.0.responders" → "Responders, row 1", "" → "The form". */
 export function fieldName(path: ReadonlyArray<PropertyKey> | string, labels: Record<string, string> = {}): string {
   const key = typeof path === "string" ? path : path.map(String).join(".");
   if (labels[key]) return labels[key];
   if (!key || key === "form") return "The form";
-  const words = key
-    .split(".")
-    .map((part) => (/^\d+$/.test(part) ? String(Number(part) + 1) : part.replace(/_/g, " ").replace(/([a-z0-9])([A-Z])/g, "$1 $2").toLowerCase()))
-    .join(" ");
-  return words[0].toUpperCase() + words.slice(1);
+  const parts = key.split(".");
+  const rows = parts.filter((p) => /^\d+$/.test(p)).map((p) => Number(p) + 1);
+  const last = [...parts].reverse().find((p) => !/^\d+$/.test(p)) ?? key;
+  const words = last.replace(/_/g, " ").replace(/([a-z0-9])([A-Z])/g, "$1 $2").toLowerCase();
+  const name = words[0].toUpperCase() + words.slice(1);
+  return rows.length ? `${name}, row ${rows.join(".")}` : name;
 }
 
 /**

@@ -22,7 +22,7 @@ async function createTrial(page: Page, opts: { code: string; designType: "single
   const form = page.getByRole("form", { name: "New trial" });
   // Nothing typed: field errors, nothing created.
   await form.getByRole("button", { name: "Create trial" }).click();
-  await expect(form.getByText("Enter a title.")).toBeVisible();
+  await expect(form.getByText("Enter a title.")).toHaveCount(2); // at the top of the form and beside the field
   await form.getByLabel("Trial code").fill(opts.code);
   await form.getByLabel("Title").fill(`Invented ${opts.designType === "two" ? "randomised" : "single-arm"} study ${opts.code}`);
   await form.getByLabel("Sponsor").fill("Brackenfold Biologics (invented)");

@@ -75,8 +75,8 @@ test("CRN-305 look 2 by hand: validation messages, then save and lock", async ({
   await cell("Standard care", "evaluable for response").fill("40");
   await cell("Standard care", "responders").fill("12");
   await form.getByRole("button", { name: "Save counts" }).click();
-  await expect(form.getByText("Responders (45) cannot exceed evaluable for response (40).")).toBeVisible();
-  await expect(form.getByText("Evaluable for response (40) cannot exceed enrolled (38).")).toBeVisible();
+  await expect(form.getByText("Responders (45) cannot exceed evaluable for response (40).")).toHaveCount(2); // at the top of the form and beside the field
+  await expect(form.getByText("Evaluable for response (40) cannot exceed enrolled (38).")).toHaveCount(2); // at the top of the form and beside the field
   await expect(page.getByRole("table", { name: "Recorded counts" })).toHaveCount(0);
   // Corrected; what was typed stays in the inputs.
   await expect(cell("Standard care", "responders")).toHaveValue("12");
@@ -199,7 +199,7 @@ test("CRN-201 look 3 by hand with toxicities (safety rule), locked; look 4 refus
   await form.getByLabel(`${arm}: treated (evaluable for toxicity)`).fill("31");
   await form.getByLabel(`${arm}: with toxicity`).fill("");
   await form.getByRole("button", { name: "Save counts" }).click();
-  await expect(form.getByText("Enter the number with toxicity as a whole number.")).toBeVisible();
+  await expect(form.getByText("Enter the number with toxicity as a whole number.")).toHaveCount(2); // at the top of the form and beside the field
   await form.getByLabel(`${arm}: with toxicity`).fill("4");
   await form.getByRole("button", { name: "Save counts" }).click();
   await expect(page.getByText("Counts saved (31 enrolled in total).")).toBeVisible();
