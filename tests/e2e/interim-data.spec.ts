@@ -49,6 +49,10 @@ async function lockWithPassword(page: Page, look: number) {
   await expect(page.getByTestId("lock-signature")).toContainText(`Signed by ${ACCOUNTS.statistician.name} (analysis locked)`);
   await expect(page.getByRole("form", { name: "Correct this look" })).toBeVisible();
   await expect(page.getByRole("form", { name: "Enter counts by hand" })).toHaveCount(0);
+  // A lasting confirmation, still there after a reload, with the way on to the look's closed review.
+  await page.reload();
+  await expect(page.getByTestId("lock-confirmation")).toContainText("Its counts are now the record of look");
+  await expect(page.getByTestId("lock-confirmation").getByRole("link", { name: /^Open the closed review of look \d+$/ })).toHaveAttribute("href", /\/trials\/\d+\/review\/\d+$/);
   void look;
 }
 
