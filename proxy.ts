@@ -1,6 +1,7 @@
 import { NextResponse, type NextRequest } from "next/server";
 import { readSessionToken } from "@/lib/auth/session-token";
 import { NO_STORE, newCspNonce, pageContentSecurityPolicy } from "@/lib/security-headers";
+import { signInPathFor } from "@/lib/auth/return-to";
 
 /**
  * First gate for pages only: no session means a redirect to sign-in. The real checks, role by
@@ -32,9 +33,11 @@ export async function proxy(req: NextRequest) {
   if (PUBLIC.some((p) => p.test(pathname))) return next();
   const token = await readSessionToken(req);
   if (token) return next();
+  // The page asked for rides along (validated again on arrival), so sign-in returns to it.
   const url = req.nextUrl.clone();
-  url.pathname = "/signin";
-  url.search = "";
+  const target = new URL(signInPathFor(pathname + req.nextUrl.search), url);
+  url.pathname = target.pathname;
+  url.search = target.search;
   return withPolicy(NextResponse.redirect(url), csp);
 }
 

@@ -36,7 +36,7 @@ export default async function RootLayout({ children }: { children: React.ReactNo
           Skip to content
         </a>
         <SiteHeader />
-        <main id="main" className="mx-auto max-w-7xl px-5 py-6">
+        <main id="main" className="mx-auto max-w-7xl px-3 py-6 sm:px-5">
           {children}
         </main>
       </body>

@@ -4,8 +4,10 @@ import { signIn } from "next-auth/react";
 import { Button } from "./ui/button";
 import { Field, TextInput } from "./ui/field";
 import { Banner } from "./ui/banner";
+import { DEFAULT_RETURN_TO, safeReturnTo } from "@/lib/auth/return-to";
 
-export function SignInForm() {
+/** `returnTo` is where the person was going (already checked by the page; checked again here). */
+export function SignInForm({ returnTo = DEFAULT_RETURN_TO }: { returnTo?: string }) {
   const [error, setError] = useState<string | null>(null);
   const [fieldErrors, setFieldErrors] = useState<{ email?: string; password?: string }>({});
   const [pending, setPending] = useState(false);
@@ -34,8 +36,11 @@ export function SignInForm() {
       return;
     }
     // A full navigation, so the header and every server component render with the new session.
-    // eslint-disable-next-line @next/next/no-location-assign-relative-destination -- deliberate: a client-side push would keep the signed-out header
-    window.location.assign("/trials");
+    // A link's fragment (#packets in a meeting e-mail) survives the redirect to sign-in in the
+    // browser's address bar but never reaches the server; carry it on if the target has none.
+    const target = safeReturnTo(returnTo) ?? DEFAULT_RETURN_TO;
+    const hash = !target.includes("#") && /^#[\w-]{1,64}$/.test(window.location.hash) ? window.location.hash : "";
+    window.location.assign(target + hash);
   }
 
   return (

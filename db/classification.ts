@@ -86,6 +86,8 @@ export const FREE_TEXT: Record<string, TextClass> = {
   // The hash of a signed lock record covers that look's counts.
   "signatures.record_hash": "closed",
   "signatures.hash_scheme": "open",
+  "scheduler_leases.name": "open",
+  "scheduler_leases.holder": "open",
   "sign_in_failures.subject": "secret",
   "trials.code": "open",
   "trials.title": "open",
@@ -138,6 +140,7 @@ export const BLINDED_READS: Record<string, "all" | "none" | readonly string[]> =
   // Row-level: a vote's signature row is closed (it counts the votes); view signatures_open leaves those rows out.
   signatures: "none",
   signatures_open: "all",
+  scheduler_leases: "none",
   sign_in_failures: "none",
   trial_memberships: "all",
   trials: "all",

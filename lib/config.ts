@@ -25,6 +25,15 @@ export const config = {
     from: process.env.MAIL_FROM ?? "Cairn <cairn@localhost>",
   }),
   mailCatcherDir: () => process.env.CAIRN_MAIL_DIR ?? ".data/mail",
+  /**
+   * How often (ms) each web process offers to run the mail scheduler (due reminders, mail retries);
+   * one process at a time runs it (lib/mail/scheduler.ts). 0 turns it off (scripts/send-reminders.ts
+   * and the meetings page's button still work).
+   */
+  mailSchedulerMs: () => {
+    const v = Number(process.env.CAIRN_MAIL_SCHEDULER_MS ?? 60_000);
+    return Number.isFinite(v) && v >= 0 ? Math.floor(v) : 60_000;
+  },
   /** Off by default: X-Forwarded-For is ignored unless Cairn runs behind one reverse proxy that sets it. */
   trustedProxy: () => ["1", "true", "yes", "on"].includes((process.env.CAIRN_TRUSTED_PROXY ?? "").toLowerCase()),
 };

@@ -13,7 +13,7 @@ describe("formError: the same rules as errorResponse, as form state", () => {
   it("turns a zod error into field errors keyed by path", () => {
     const parsed = z.object({ rationale: z.string().min(3, "Write at least 3 characters."), n: z.number() }).safeParse({ rationale: "x", n: "a" });
     const state = formError(parsed.error);
-    expect(state.error).toBe("Check the highlighted fields.");
+    expect(state.error).toBe("Check 2 fields: Rationale: Write at least 3 characters. N: Enter a number.");
     expect(state.fieldErrors?.rationale).toEqual(["Write at least 3 characters."]);
     expect(state.fieldErrors?.n?.length).toBe(1);
   });

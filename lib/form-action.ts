@@ -4,6 +4,7 @@ import { unstable_rethrow } from "next/navigation";
 import { ZodError } from "zod";
 import { callerIsUnblinded, HttpError, isDatabaseDown, publicErrorMessage } from "./http";
 import { StatsDomainError } from "./stats/validate";
+import { errorSummary, issueSentence } from "./form-errors";
 import { WriteNotSavedError } from "@/db/errors";
 
 /** What every server action answers a form with: a message, or an error with the fields it concerns. */
@@ -20,8 +21,8 @@ export function formError(e: unknown): FormState {
   if (e instanceof HttpError) return { error: e.message };
   if (e instanceof ZodError) {
     const fieldErrors: Record<string, string[]> = {};
-    for (const issue of e.issues) (fieldErrors[issue.path.join(".") || "form"] ??= []).push(issue.message);
-    return { error: "Check the highlighted fields.", fieldErrors };
+    for (const issue of e.issues) (fieldErrors[issue.path.join(".") || "form"] ??= []).push(issueSentence(issue));
+    return { error: errorSummary(e.issues), fieldErrors };
   }
   if (e instanceof StatsDomainError) return { error: publicErrorMessage(e, callerIsUnblinded()) };
   if (e instanceof WriteNotSavedError) return { error: e.message };

@@ -1,4 +1,5 @@
 import "server-only";
+import { errorSummary, issueSentence } from "./form-errors";
 import { randomUUID } from "node:crypto";
 import { AsyncLocalStorage } from "node:async_hooks";
 import { NextResponse } from "next/server";
@@ -66,8 +67,9 @@ export function errorResponse(e: unknown): NextResponse {
   if (e instanceof ZodError) {
     return NextResponse.json(
       {
-        error: "The request is not valid.",
-        issues: e.issues.map((i) => ({ path: i.path.join("."), message: i.message })),
+        // Sentences, never zod's programmer wording: the forms show these as they come.
+        error: errorSummary(e.issues),
+        issues: e.issues.map((i) => ({ path: i.path.join("."), message: issueSentence(i) })),
       },
       { status: 422 },
     );

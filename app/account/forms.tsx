@@ -5,6 +5,7 @@ import type { ApiTokenFormState, PasswordFormState, RevokeFormState } from "./sc
 import { Button } from "@/components/ui/button";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
 import { Banner } from "@/components/ui/banner";
+import { FormErrorSummary } from "@/components/ui/form-error-summary";
 import { NewPasswordFields, PasswordSetNotice } from "@/components/account/password-fields";
 import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
@@ -15,7 +16,7 @@ export function ChangePasswordForm() {
   return (
     <form action={action} noValidate className="flex flex-col gap-3" aria-label="Change your password">
       <FocusFirstInvalid after={state} />
-      {state.error ? <Banner tone="danger">{state.error}</Banner> : null}
+      <FormErrorSummary error={state.error} fieldErrors={state.fieldErrors} />
       <Field label="Current password" name="currentPassword" error={fe.currentPassword}>
         <TextInput id="currentPassword" name="currentPassword" type="password" autoComplete="current-password" maxLength={200} invalid={!!fe.currentPassword} />
       </Field>

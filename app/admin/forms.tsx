@@ -1,10 +1,11 @@
 "use client";
-import { useActionState } from "react";
+import { useActionState, useState } from "react";
 import { assignRole, createAccount, deactivateAccount, reactivateAccount, removeRole, sendPasswordLink } from "./actions";
 import type { FormState } from "./schemas";
 import { Button } from "@/components/ui/button";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
 import { Banner } from "@/components/ui/banner";
+import { FormErrorSummary } from "@/components/ui/form-error-summary";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
@@ -12,7 +13,7 @@ const initial: FormState = {};
 
 function Outcome({ state }: { state: FormState }) {
   if (state.ok) return <Banner tone="success">{state.ok}</Banner>;
-  if (state.error) return <Banner tone="danger">{state.error}</Banner>;
+  if (state.error) return <FormErrorSummary error={state.error} fieldErrors={state.fieldErrors} />;
   return null;
 }
 
@@ -80,13 +81,30 @@ export function AssignRoleForm({ users, trials }: { users: { id: number; label: 
   );
 }
 
+/**
+ * Removing a role asks first: the first click shows what will be removed and a confirm button; only
+ * that one posts. The server still refuses what must not happen (the last unblinded statistician).
+ */
 export function RemoveRoleButton({ membershipId, label }: { membershipId: number; label: string }) {
   const [state, action, pending] = useActionState(removeRole, initial);
+  const [asking, setAsking] = useState(false);
+  if (!asking) {
+    return (
+      <div className="flex flex-col gap-1">
+        <Button type="button" variant="quiet" aria-label={label} onClick={() => setAsking(true)}>Remove</Button>
+        {state.error ? <span role="alert" className="text-xs text-berry-700">{state.error}</span> : null}
+      </div>
+    );
+  }
   return (
-    <form action={action} className="flex items-center gap-2">
+    <form noValidate action={action} className="flex flex-col gap-2 rounded-card border border-berry-100 bg-berry-50 p-2" aria-label={`Confirm: ${label}`}>
       <input type="hidden" name="membershipId" value={membershipId} />
-      <Button type="submit" variant="quiet" aria-label={label} disabled={pending}>Remove</Button>
-      {state.error ? <span className="text-xs text-berry-700">{state.error}</span> : null}
+      <p className="text-xs text-stone-800">{label}? The person loses access that comes with this role at once.</p>
+      <div className="flex flex-wrap gap-2">
+        <Button type="submit" variant="danger" disabled={pending}>Yes, remove the role</Button>
+        <Button type="button" variant="quiet" onClick={() => setAsking(false)}>Keep it</Button>
+      </div>
+      {state.error ? <span role="alert" className="text-xs text-berry-700">{state.error}</span> : null}
     </form>
   );
 }
@@ -102,18 +120,18 @@ export function AccountActions({ userId, name, isActive, isSelf }: { userId: num
     <div className="flex flex-col gap-1">
       <div className="flex flex-wrap items-center gap-2">
         {isActive ? (
-          <form action={linkAction}>
+          <form noValidate action={linkAction}>
             <input type="hidden" name="userId" value={userId} />
             <Button type="submit" variant="quiet" aria-label={`New link: send ${name} a new set-password link`} disabled={linkPending}>New link</Button>
           </form>
         ) : null}
         {isSelf ? null : isActive ? (
-          <form action={offAction}>
+          <form noValidate action={offAction}>
             <input type="hidden" name="userId" value={userId} />
             <Button type="submit" variant="quiet" aria-label={`Deactivate ${name}`} disabled={offPending}>Deactivate</Button>
           </form>
         ) : (
-          <form action={onAction}>
+          <form noValidate action={onAction}>
             <input type="hidden" name="userId" value={userId} />
             <Button type="submit" variant="quiet" aria-label={`Reactivate ${name}`} disabled={onPending}>Reactivate</Button>
           </form>

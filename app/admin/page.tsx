@@ -19,7 +19,7 @@ export default async function AdminPage() {
         <h1>Administration</h1>
         <p className="text-sm text-stone-600">Accounts and who holds which role on which trial. Being administrator does not unblind you.</p>
       </div>
-      <div className="grid gap-4 lg:grid-cols-2">
+      <div className="grid grid-cols-1 gap-4 lg:grid-cols-2">
         <Card title="Create an account">
           <CreateAccountForm />
         </Card>

@@ -2,7 +2,7 @@
 import { useActionState, useEffect, useSyncExternalStore } from "react";
 import { setPassword, type SetPasswordState } from "./actions";
 import { Button } from "@/components/ui/button";
-import { Banner } from "@/components/ui/banner";
+import { FormErrorSummary } from "@/components/ui/form-error-summary";
 import { NewPasswordFields, PasswordSetNotice } from "@/components/account/password-fields";
 import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
@@ -30,7 +30,7 @@ export function SetPasswordForm() {
   return (
     <form action={action} noValidate className="flex flex-col gap-3" aria-label="Set your password">
       <FocusFirstInvalid after={state} />
-      {state.error ? <Banner tone="danger">{state.error}</Banner> : null}
+      <FormErrorSummary error={state.error} fieldErrors={state.fieldErrors} />
       <input type="hidden" name="token" value={token} />
       <NewPasswordFields errors={fe} hint="At least 12 characters. Only you know it; it also signs records in your name." />
       <Button type="submit" disabled={pending}>{pending ? "Saving…" : "Set password"}</Button>

@@ -13,6 +13,7 @@ import { Field, TextArea, TextInput } from "@/components/ui/field";
 import { callApi, jsonInit, type ApiFailure } from "@/lib/api-client";
 import { CLOSED_FIELD_NOTE } from "@/lib/field-visibility";
 import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
+import { fieldName } from "@/lib/form-errors";
 
 type FormState = { ok?: string; failure?: ApiFailure };
 const initial: FormState = {};
@@ -42,6 +43,13 @@ function Outcome({ state }: { state: FormState }) {
   return (
     <Banner tone="danger" title={f.status === 409 ? "Not saved: conflict" : "Not saved"}>
       <p>{f.error}</p>
+      {Object.keys(f.fieldErrors).length && !f.error.startsWith("Check ") ? (
+        <ul className="mt-1 list-disc pl-5" data-testid="form-error-summary">
+          {Object.entries(f.fieldErrors).map(([k, m]) => (
+            <li key={k}>{fieldName(k)}: {m}</li>
+          ))}
+        </ul>
+      ) : null}
       {f.status === 409 ? (
         <button type="button" className="mt-1 underline" onClick={() => window.location.reload()}>
           Reload this look
@@ -61,7 +69,7 @@ export function OpenLookForm({ trialId, analysisId, rowVersion, lookNumber }: { 
   }, initial);
   const fe = state.failure?.fieldErrors ?? {};
   return (
-    <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Open this look for entry">
+    <form noValidate onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Open this look for entry">
       <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
@@ -201,7 +209,7 @@ export function LockForm({ trialId, analysisId, rowVersion, lookNumber, signerNa
   }, initial);
   const fe = state.failure?.fieldErrors ?? {};
   return (
-    <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Lock this look">
+    <form noValidate onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Lock this look">
       <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
@@ -228,7 +236,7 @@ export function ReopenForm({ trialId, analysisId, rowVersion, lookNumber }: { tr
   }, initial);
   const fe = state.failure?.fieldErrors ?? {};
   return (
-    <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Correct this look">
+    <form noValidate onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Correct this look">
       <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <input type="hidden" name="rowVersion" value={rowVersion} />
@@ -256,7 +264,7 @@ export function SwitchToCountLevelForm({ trialId, analysisId, rowVersion, patien
   }, initial);
   const fe = state.failure?.fieldErrors ?? {};
   return (
-    <form onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Switch to count-level entry">
+    <form noValidate onSubmit={keepValues(action)} className="flex flex-col gap-3" aria-label="Switch to count-level entry">
       <FocusFirstInvalid after={state} />
       <Outcome state={state} />
       <p className="text-sm text-stone-700">

@@ -10,10 +10,9 @@ import { format } from "date-fns";
 import { DataGrid } from "@/components/grid/data-grid";
 import { SelectInput, TextInput } from "@/components/ui/field";
 import type { AuditEntryJson } from "@/lib/audit/audit-json";
+import { actionWords, actorWords, changeWords, recordWords } from "@/lib/audit/audit-words";
 
-type Row = AuditEntryJson & { when: string; oldText: string; newText: string };
-
-const compact = (v: unknown) => (v === null || v === undefined ? "" : JSON.stringify(v));
+type Row = AuditEntryJson & { when: string; who: string; what: string; record: string; visibilityWord: string; change: string };
 
 export function formatAuditTime(iso: string): string {
   return format(new Date(iso), "yyyy-MM-dd HH:mm:ss xxx");
@@ -27,31 +26,40 @@ export function AuditGrid({ entries, openOnly, trialCode }: { entries: AuditEntr
 
   // Formatted only after mount (zone known), so the server's time zone never leaks into the page.
   const rows: Row[] = useMemo(
-    () => entries.map((e) => ({ ...e, when: zone ? formatAuditTime(e.occurredAt) : "", oldText: compact(e.oldValues), newText: compact(e.newValues) })),
+    () =>
+      entries.map((e) => ({
+        ...e,
+        when: zone ? formatAuditTime(e.occurredAt) : "",
+        who: actorWords(e.actorEmail),
+        what: actionWords(e.action),
+        record: recordWords(e.entityType),
+        visibilityWord: e.visibility === "closed" ? "Closed" : "Open",
+        change: changeWords(e.oldValues, e.newValues).join("; "),
+      })),
     [entries, zone],
   );
-  const actions = useMemo(() => [...new Set(entries.map((e) => e.action))].sort(), [entries]);
+  const actions = useMemo(() => [...new Set(entries.map((e) => e.action))].sort((a, b) => actionWords(a).localeCompare(actionWords(b))), [entries]);
   const shown = useMemo(() => {
     const t = text.trim().toLowerCase();
     return rows.filter(
       (r) =>
         (!action || r.action === action) &&
         (!visibility || r.visibility === visibility) &&
-        (!t || [r.actorEmail, r.action, r.entityType, r.entityId, r.reason, r.oldText, r.newText].some((x) => x && String(x).toLowerCase().includes(t))),
+        (!t || [r.who, r.what, r.record, r.entityId, r.reason, r.change].some((x) => x && String(x).toLowerCase().includes(t))),
     );
   }, [rows, action, visibility, text]);
 
+  // Full words in the headers: the grid's columns are wide enough for them (no "#" or abbreviations).
   const columns: ColDef<Row>[] = [
-    { field: "id", headerName: "#", maxWidth: 80, sort: "desc" },
+    { field: "id", headerName: "Entry", minWidth: 120, sort: "desc" },
     { field: "when", headerName: "When", minWidth: 235 },
-    { field: "actorEmail", headerName: "Who", minWidth: 180 },
-    { field: "action", headerName: "What", minWidth: 180 },
-    { field: "entityType", headerName: "Record", maxWidth: 140 },
-    { field: "entityId", headerName: "Record id", maxWidth: 110 },
-    { field: "visibility", headerName: "Visibility", maxWidth: 120 },
-    { field: "reason", headerName: "Why", minWidth: 160 },
-    { field: "oldText", headerName: "Old values", minWidth: 220 },
-    { field: "newText", headerName: "New values", minWidth: 260 },
+    { field: "who", headerName: "Who", minWidth: 200 },
+    { field: "what", headerName: "What happened", minWidth: 220 },
+    { field: "record", headerName: "Record", minWidth: 130 },
+    { field: "entityId", headerName: "Record number", minWidth: 170, wrapHeaderText: true, autoHeaderHeight: true },
+    { field: "visibilityWord", headerName: "Visibility", minWidth: 130 },
+    { field: "reason", headerName: "Reason", minWidth: 160 },
+    { field: "change", headerName: "Change (old → new)", minWidth: 360, wrapText: true, autoHeight: true },
   ];
 
   return (
@@ -66,7 +74,7 @@ export function AuditGrid({ entries, openOnly, trialCode }: { entries: AuditEntr
           <SelectInput id="audit-filter-action" value={action} onChange={(e) => setAction(e.target.value)}>
             <option value="">All actions</option>
             {actions.map((a) => (
-              <option key={a} value={a}>{a}</option>
+              <option key={a} value={a}>{actionWords(a)}</option>
             ))}
           </SelectInput>
         </div>

@@ -4,7 +4,8 @@
  * studio (which validates with the zod design schema and shows each error next to its field).
  */
 import type { ReactNode } from "react";
-import { Field, SelectInput, TextInput } from "@/components/ui/field";
+import { Field, Notation, SelectInput, TextInput } from "@/components/ui/field";
+import { thresholdWord, type ThresholdKey } from "@/lib/design/threshold-labels";
 import { PRIOR_FAMILY_LABELS, type DesignForm, type FieldErrors, type PriorFamily, type PriorForm } from "@/lib/design/form-model";
 import { monitoringRuleLabel } from "@/lib/stats/labels";
 
@@ -16,7 +17,7 @@ type Props = {
   onChange: (f: DesignForm) => void;
 };
 
-function NumberField({ id, label, value, error, hint, onChange, readOnly }: { id: string; label: string; value: string; error?: string; hint?: string; onChange: (v: string) => void; readOnly: boolean }) {
+function NumberField({ id, label, value, error, hint, onChange, readOnly }: { id: string; label: ReactNode; value: string; error?: string; hint?: string; onChange: (v: string) => void; readOnly: boolean }) {
   return (
     <Field label={label} name={id} error={error} hint={hint}>
       <TextInput id={id} name={id} inputMode="decimal" value={value} invalid={!!error} readOnly={readOnly} onChange={(e) => onChange(e.target.value)} autoComplete="off" />
@@ -81,7 +82,17 @@ export function DesignFormFields({ form, errors, readOnly, armLabels, onChange: 
   const ro = readOnly || undefined;
   const set = <K extends keyof DesignForm>(k: K) => (v: DesignForm[K]) => onChange({ ...form, [k]: v });
   const predictive = form.ruleKind === "predictive";
-  const num = (k: keyof DesignForm & string, label: string, hint?: string) => (
+  // A threshold's label: Cairn's words first, the published symbol small beside them.
+  const rule = predictive ? "predictive" : "posterior";
+  const tw = (key: ThresholdKey) => {
+    const w = thresholdWord(key, rule);
+    return (
+      <>
+        {w.word} <Notation>{w.symbol}</Notation>
+      </>
+    );
+  };
+  const num = (k: keyof DesignForm & string, label: ReactNode, hint?: string) => (
     <NumberField id={k} label={label} value={form[k] as string} error={errors[k]} hint={hint} onChange={(v) => onChange({ ...form, [k]: v })} readOnly={readOnly} />
   );
   return (
@@ -149,15 +160,15 @@ export function DesignFormFields({ form, errors, readOnly, armLabels, onChange: 
         {form.ruleKind === "uncertainStandard" && form.arms === "two" ? (
           <p className="text-xs text-stone-600">The control arm&apos;s posterior is the uncertain standard: interims use P(pT &gt; pC + δ | data).</p>
         ) : null}
-        {num("thetaT", "Final success threshold θT", form.arms === "single" ? "Success at the end if P(p > p0 | data) > θT." : "Success at the end if P(pT − pC > δ | data) > θT.")}
-        {num("futilityThreshold", predictive ? "Futility threshold θL" : "Futility threshold pL", predictive ? "Stop if the predictive probability < θL." : "Stop if the posterior probability < pL.")}
+        {num("thetaT", tw("thetaT"), form.arms === "single" ? "Success at the end if P(p > p0 | data) is above this bar." : "Success at the end if P(pT − pC > δ | data) is above this bar.")}
+        {num("futilityThreshold", tw("futilityThreshold"), thresholdWord("futilityThreshold", rule).explain)}
         {form.arms === "single" && !predictive
           ? num("delta", "Margin δ for the interim rule", form.ruleKind === "uncertainStandard" ? "Interims use P(pE > pS + δ | data)." : "Interims use P(p > p0 + δ | data).")
           : null}
         <label className="flex items-center gap-2 text-sm">
           <input type="checkbox" checked={form.efficacyStopping} aria-readonly={ro} onChange={(e) => set("efficacyStopping")(e.target.checked)} /> Stop early for efficacy
         </label>
-        {form.efficacyStopping ? num("efficacyThreshold", predictive ? "Efficacy threshold θU" : "Efficacy threshold pU", "Stop if the probability > this threshold.") : null}
+        {form.efficacyStopping ? num("efficacyThreshold", tw("efficacyThreshold"), thresholdWord("efficacyThreshold", rule).explain) : null}
       </Group>
       <Group title="Safety rule">
         <label className="flex items-center gap-2 text-sm">
@@ -167,7 +178,7 @@ export function DesignFormFields({ form, errors, readOnly, armLabels, onChange: 
           <>
             <Field label="Compare the toxicity rate with" name="safetyKind" error={errors.safetyKind}>
               <SelectInput id="safetyKind" name="safetyKind" value={form.safetyKind} aria-readonly={ro} onChange={(e) => set("safetyKind")(e.target.value as DesignForm["safetyKind"])}>
-                <option value="fixedLimit">A fixed limit qmax</option>
+                <option value="fixedLimit">A fixed toxicity ceiling</option>
                 <option value="uncertainStandard">An uncertain standard rate plus a margin (Thall, Simon &amp; Estey 1995)</option>
               </SelectInput>
             </Field>
@@ -178,12 +189,12 @@ export function DesignFormFields({ form, errors, readOnly, armLabels, onChange: 
                   {num("safetyStandardB", "Standard toxicity bS")}
                   {num("safetyMargin", "Margin", "Extra toxicity tolerated above qS.")}
                 </div>
-                {num("thetaS", "Safety threshold θS", "Flag if P(q > qS + margin | data) > θS, qS ~ Beta(aS, bS).")}
+                {num("thetaS", tw("thetaS"), "Raise the alarm if P(q > qS + margin | data) is above this level, qS ~ Beta(aS, bS).")}
               </>
             ) : (
               <div className="grid grid-cols-2 gap-3">
-                {num("qmax", "Toxicity limit qmax")}
-                {num("thetaS", "Safety threshold θS", "Flag if P(q > qmax | data) > θS.")}
+                {num("qmax", tw("qmax"), thresholdWord("qmax").explain)}
+                {num("thetaS", tw("thetaS"), "Raise the alarm if P(q > ceiling | data) is above this level.")}
               </div>
             )}
             <PriorFields prefix="safetyPrior" title="Prior on the toxicity rate" prior={form.safetyPrior} errors={errors} readOnly={readOnly} onChange={set("safetyPrior")} />

@@ -231,7 +231,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
 
       {outcome ? <Banner tone={outcome.tone}>{outcome.text}</Banner> : null}
 
-      <div className="grid gap-4 xl:grid-cols-[minmax(0,5fr)_minmax(0,7fr)]">
+      <div className="grid grid-cols-1 gap-4 xl:grid-cols-[minmax(0,5fr)_minmax(0,7fr)]">
         <div className="flex flex-col gap-4">
           <Card title={selected ? `Version ${selected.version}${editable ? " (draft, editable)" : ""}` : "New design"}>
             {!editable ? (
@@ -258,7 +258,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
                 Signing records your name, the meaning “design approved” and the time, bound to version {selected.version} as saved (revision {selected.rowVersion}). A locked design cannot be edited; changes need an amendment with a reason.
               </p>
               {dirty ? <p className="mb-2 text-sm text-amber-700">Save your changes first: only the saved draft can be signed.</p> : null}
-              <form
+              <form noValidate
                 className="flex flex-col gap-3"
                 onSubmit={(e) => {
                   e.preventDefault();
@@ -279,7 +279,7 @@ export function DesignStudio({ trialId, designType, armLabels, versions: initial
 
           {selected?.status === "locked" && canEdit && !draftExists ? (
             <Card title="Amend the charter version">
-              <form
+              <form noValidate
                 className="flex flex-col gap-3"
                 onSubmit={(e) => {
                   e.preventDefault();

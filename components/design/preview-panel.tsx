@@ -84,13 +84,16 @@ function OcSummaryBlock({ p, nullLabel, targetLabel, typeILabel, typeINote, extr
   );
 }
 
+/** Long headers wrap onto more lines instead of being cut short; the grid scrolls sideways inside its card. */
+const WRAP = { wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 } as const;
+
 type SingleRow = { look: string; n: number; futility: string; efficacy: string; safety: string };
 const SINGLE_COLUMNS: ColDef<SingleRow>[] = [
   { field: "look", headerName: "Look" },
-  { field: "n", headerName: "Patients" },
-  { field: "futility", headerName: "Futility: stop if responders ≤" },
-  { field: "efficacy", headerName: "Efficacy: stop if responders ≥" },
-  { field: "safety", headerName: "Safety: stop if toxicities ≥" },
+  { ...WRAP, field: "n", headerName: "Patients" },
+  { ...WRAP, field: "futility", headerName: "Futility: stop if responders ≤" },
+  { ...WRAP, field: "efficacy", headerName: "Efficacy: stop if responders ≥" },
+  { ...WRAP, field: "safety", headerName: "Safety: stop if toxicities ≥" },
 ];
 
 function SingleArmResult({ p, design }: { p: SingleArmPreview; design: Extract<Design, { arms: "single" }> }) {
@@ -138,10 +141,10 @@ function SingleArmResult({ p, design }: { p: SingleArmPreview; design: Extract<D
 type TwoRow = { look: string; n: number; xC: number; futility: string; efficacy: string };
 const TWO_COLUMNS: ColDef<TwoRow>[] = [
   { field: "look", headerName: "Look" },
-  { field: "n", headerName: "Patients per arm" },
-  { field: "xC", headerName: "Control responders" },
-  { field: "futility", headerName: "Futility: stop if experimental responders ≤" },
-  { field: "efficacy", headerName: "Efficacy: stop if experimental responders ≥" },
+  { ...WRAP, field: "n", headerName: "Patients per arm" },
+  { ...WRAP, field: "xC", headerName: "Control responders" },
+  { ...WRAP, field: "futility", headerName: "Futility: stop if experimental responders ≤" },
+  { ...WRAP, field: "efficacy", headerName: "Efficacy: stop if experimental responders ≥" },
 ];
 
 function TwoArmResult({ p, design }: { p: TwoArmPreview; design: Extract<Design, { arms: "two" }> }) {
@@ -231,15 +234,15 @@ function SafetyOcTable({ p, nullLabel, targetLabel }: { p: DesignPreview; nullLa
     enTarget: fmtN(r.atTarget.expectedSampleSize),
   }));
   const columns: ColDef<SafetyRow>[] = [
-    { field: "q", headerName: "True toxicity rate" },
-    { field: "safetyNull", headerName: `Safety stop (${nullLabel})` },
-    { field: "futilityNull", headerName: `Early futility stop (${nullLabel})` },
-    { field: "efficacyNull", headerName: `Early efficacy stop (${nullLabel})` },
-    { field: "successNull", headerName: `Efficacy declared (${nullLabel})` },
-    { field: "enNull", headerName: `Expected N (${nullLabel})` },
-    { field: "safetyTarget", headerName: `Safety stop (${targetLabel})` },
-    { field: "successTarget", headerName: `Efficacy declared (${targetLabel})` },
-    { field: "enTarget", headerName: `Expected N (${targetLabel})` },
+    { ...WRAP, field: "q", headerName: "True toxicity rate" },
+    { ...WRAP, field: "safetyNull", headerName: `Safety stop (${nullLabel})` },
+    { ...WRAP, field: "futilityNull", headerName: `Early futility stop (${nullLabel})` },
+    { ...WRAP, field: "efficacyNull", headerName: `Early efficacy stop (${nullLabel})` },
+    { ...WRAP, field: "successNull", headerName: `Efficacy declared (${nullLabel})` },
+    { ...WRAP, field: "enNull", headerName: `Average patients (${nullLabel})` },
+    { ...WRAP, field: "safetyTarget", headerName: `Safety stop (${targetLabel})` },
+    { ...WRAP, field: "successTarget", headerName: `Efficacy declared (${targetLabel})` },
+    { ...WRAP, field: "enTarget", headerName: `Average patients (${targetLabel})` },
   ];
   return (
     <>

@@ -4,6 +4,7 @@ import { startTransition, useActionState, useEffect, useState } from "react";
 import { useRouter } from "next/navigation";
 import { Button } from "@/components/ui/button";
 import { Banner } from "@/components/ui/banner";
+import { FormErrorSummary } from "@/components/ui/form-error-summary";
 import { Field, SelectInput, TextArea, TextInput } from "@/components/ui/field";
 import type { MeetingFormState } from "@/lib/meetings/schemas";
 import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
@@ -13,7 +14,7 @@ const initial: MeetingFormState = {};
 
 function Outcome({ state }: { state: MeetingFormState }) {
   if (state.ok) return <Banner tone="success">{state.ok}</Banner>;
-  if (state.error) return <Banner tone="danger">{state.error}</Banner>;
+  if (state.error) return <FormErrorSummary error={state.error} fieldErrors={state.fieldErrors} />;
   return null;
 }
 
@@ -32,7 +33,7 @@ export function ScheduleMeetingForm({ action, trialId, analyses, members, zones,
   }, [state.meetingId, trialId, router]);
   const fe = state.fieldErrors ?? {};
   return (
-    <form
+    <form noValidate
       action={formAction}
       // Submitted by hand so React does not reset the fields after a refused submission: the
       // organiser keeps what they typed and sees the messages next to it.
@@ -91,7 +92,7 @@ export function ScheduleMeetingForm({ action, trialId, analyses, members, zones,
 export function ActionButton({ action, fields, label, pendingLabel, variant = "primary", confirm }: { action: Action; fields: Record<string, string | number>; label: string; pendingLabel: string; variant?: "primary" | "secondary" | "danger" | "quiet"; confirm?: string }) {
   const [state, formAction, pending] = useActionState(action, initial);
   return (
-    <form
+    <form noValidate
       action={formAction}
       className="flex flex-col gap-2"
       onSubmit={(e) => {
@@ -108,7 +109,7 @@ export function ActionButton({ action, fields, label, pendingLabel, variant = "p
 export function AttendanceForm({ action, trialId, meetingId, rowVersion, attendees }: { action: Action; trialId: number; meetingId: number; rowVersion: number; attendees: { userId: number; label: string; attended: boolean | null }[] }) {
   const [state, formAction, pending] = useActionState(action, initial);
   return (
-    <form action={formAction} className="flex flex-col gap-2" aria-label="Record attendance">
+    <form noValidate action={formAction} className="flex flex-col gap-2" aria-label="Record attendance">
       <FocusFirstInvalid after={state} />
       <input type="hidden" name="trialId" value={trialId} />
       <input type="hidden" name="meetingId" value={meetingId} />

@@ -45,7 +45,7 @@ export function RecommendationForm({ trialId, analysisId, correctsId, signerName
     startTransition(() => action(data));
   };
   return (
-    <form onSubmit={submit} className="flex flex-col gap-3" aria-label={correctsId ? "Record a correction" : "Record the recommendation"}>
+    <form noValidate onSubmit={submit} className="flex flex-col gap-3" aria-label={correctsId ? "Record a correction" : "Record the recommendation"}>
       <FocusFirstInvalid after={state} />
       {state.ok ? <Banner tone="success">{state.ok}</Banner> : state.error ? <Banner tone="danger">{state.error}</Banner> : null}
       <input type="hidden" name="trialId" value={trialId} />

@@ -39,7 +39,7 @@ export function ReopenReviewForm({ trialId, analysisId, rowVersion, lookNumber, 
     startTransition(() => action(fd));
   };
   return (
-    <form onSubmit={submit} className="flex flex-col gap-3" aria-label="Reopen this reviewed look for a correction">
+    <form noValidate onSubmit={submit} className="flex flex-col gap-3" aria-label="Reopen this reviewed look for a correction">
       <FocusFirstInvalid after={state} />
       {state.ok ? <Banner tone="success">{state.ok}</Banner> : state.failure ? <Banner tone="danger" title="Not reopened">{state.failure.error}</Banner> : null}
       <input type="hidden" name="rowVersion" value={rowVersion} />

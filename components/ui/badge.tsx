@@ -9,6 +9,11 @@ const TONES: Record<Tone, string> = {
   berry: "bg-berry-50 text-berry-700 border-berry-100",
 };
 
+/** Every badge reads with a capital first letter ("Locked", "Scheduled"), whatever word it is given. */
 export function Badge({ tone = "neutral", children }: { tone?: Tone; children: ReactNode }) {
-  return <span className={`inline-flex items-center rounded-full border px-2 py-0.5 text-xs font-medium ${TONES[tone]}`}>{children}</span>;
+  return (
+    <span className={`inline-flex items-center whitespace-nowrap rounded-full border px-2 py-0.5 text-xs font-medium ${TONES[tone]}`}>
+      <span className="inline-block first-letter:uppercase">{children}</span>
+    </span>
+  );
 }

@@ -9,7 +9,7 @@ export function Field({
   hint,
   children,
 }: {
-  label: string;
+  label: ReactNode;
   name: string;
   /** The control's id when it is not its name. */
   id?: string;
@@ -32,9 +32,14 @@ export function Field({
   );
 }
 
+/** Published notation shown small beside a label in words (the words lead; the symbol is secondary). */
+export function Notation({ children }: { children: ReactNode }) {
+  return <span className="ml-1 text-xs font-normal text-stone-500">{children}</span>;
+}
+
 /** Full width of its column unless a width is given, and allowed to shrink, so forms reflow at 320 px. */
 const width = (className: string) => (/(^|\s)w-/.test(className) ? "" : "w-full min-w-0");
-const INPUT = "rounded-md border border-stone-300 bg-white px-3 py-2 text-sm text-stone-900 placeholder:text-stone-400 focus:border-lichen-600 aria-[invalid=true]:border-berry-600";
+const INPUT = "max-w-full rounded-md border border-stone-300 bg-white px-3 py-2 text-sm text-stone-900 placeholder:text-stone-400 focus:border-lichen-600 aria-[invalid=true]:border-berry-600";
 
 export function TextInput({ invalid, className = "", ...rest }: InputHTMLAttributes<HTMLInputElement> & { invalid?: boolean }) {
   return <input className={`${INPUT} ${width(className)} ${className}`} aria-invalid={invalid || undefined} aria-describedby={rest.name ? `${rest.name}-error` : undefined} {...rest} />;

@@ -54,6 +54,7 @@ import * as mCommittee10 from "./20261205041000_create_view_meeting_minutes_open
 import * as mCommittee11 from "./20261205041100_create_recommendation_letters";
 import * as mCommittee12 from "./20261205041200_email_messages_letter_kind";
 import * as mCommittee13 from "./20261205041300_email_messages_letter_id";
+import * as mWords1 from "./20261205050100_create_scheduler_leases";
 import * as mPending1 from "./20261205060100_add_pending_to_analysis_arm_counts";
 import * as mPending2 from "./20261205060200_add_outcome_pending_to_patient_outcomes";
 import * as mApiTokens from "./20261205070000_create_api_tokens";
@@ -112,6 +113,7 @@ const migrations: Array<[string, Migration]> = [
   ["20261205041100_create_recommendation_letters", mCommittee11],
   ["20261205041200_email_messages_letter_kind", mCommittee12],
   ["20261205041300_email_messages_letter_id", mCommittee13],
+  ["20261205050100_create_scheduler_leases", mWords1],
   ["20261205060100_add_pending_to_analysis_arm_counts", mPending1],
   ["20261205060200_add_outcome_pending_to_patient_outcomes", mPending2],
   ["20261205070000_create_api_tokens", mApiTokens],

@@ -45,3 +45,15 @@ export async function insertMembership(tx: Tx, m: { trialId: number; userId: num
 export async function deleteMembership(tx: Tx, id: number): Promise<number> {
   return tx("trial_memberships").where({ id }).delete();
 }
+
+/**
+ * The memberships holding `role` on a trial whose accounts are active, locked until the transaction
+ * ends: two administrators removing the last two holders at once cannot both see "one more left".
+ */
+export async function fetchActiveRoleHoldersForUpdate(tx: Tx, trialId: number, role: TrialRole): Promise<{ id: number; userId: number }[]> {
+  return tx("trial_memberships as m")
+    .join("users as u", "u.id", "m.user_id")
+    .where({ "m.trial_id": trialId, "m.role": role, "u.is_active": true })
+    .forUpdate()
+    .select("m.id", "m.user_id as userId");
+}

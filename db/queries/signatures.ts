@@ -28,7 +28,7 @@ export type SignatureMeaning =
 
 export async function insertSignature(
   tx: Tx,
-  s: { userId: number; signerName: string; signerEmail: string; meaning: SignatureMeaning; entityType: string; entityId: number; record: unknown },
+  s: { userId: number; signerName: string; signerEmail: string; meaning: SignatureMeaning; entityType: string; entityId: number; record: unknown; signedAt?: Date },
 ): Promise<SignatureRow> {
   const row = {
     user_id: s.userId,
@@ -39,7 +39,8 @@ export async function insertSignature(
     entity_id: s.entityId,
     record_hash: recordHash(s.record),
     hash_scheme: CURRENT_HASH_SCHEME,
-    signed_at: new Date(),
+    // Only the demo seed passes signedAt (its invented story is dated in the past); the app signs now.
+    signed_at: s.signedAt ?? new Date(),
   };
   const [id] = await tx("signatures").insert(row);
   return { id, ...row };

@@ -101,6 +101,9 @@ export async function seedDemo(): Promise<void> {
         targetEnrolment: 44,
         arms: [{ label: "TLM-417 400 mg", armRole: "single" as const }],
         design: SINGLE_ARM_DEMO_DESIGN,
+        // First patient 2026-03-02: drafted and approved in the weeks before.
+        designDraftedAt: new Date("2026-01-19T09:00:00Z"),
+        designLockedAt: new Date("2026-02-09T14:30:00Z"),
         looks: expandLooks(SINGLE_ARM_DEMO_DESIGN.looks, SINGLE_ARM_DEMO_DESIGN.nMax),
       },
       {
@@ -115,6 +118,9 @@ export async function seedDemo(): Promise<void> {
           { label: "Standard care", armRole: "control" as const },
         ],
         design: TWO_ARM_DEMO_DESIGN,
+        // First patient 2026-04-13.
+        designDraftedAt: new Date("2026-02-23T09:00:00Z"),
+        designLockedAt: new Date("2026-03-23T11:00:00Z"),
         looks: expandLooks(TWO_ARM_DEMO_DESIGN.looks, TWO_ARM_DEMO_DESIGN.nMaxPerArm),
       },
     ];
@@ -159,8 +165,11 @@ export async function seedDemo(): Promise<void> {
         entityType: "design",
         entityId: design.id,
         record: { trialId, version: design.version, spec: t.design },
+        signedAt: t.designLockedAt,
       });
       await markDesignLocked(tx, design.id, sig.id);
+      // The story holds together: the design was approved before the first patient, so before any look's data.
+      await tx("designs").where({ id: design.id }).update({ created_at: t.designDraftedAt, locked_at: t.designLockedAt });
       await createPlannedLooks(tx, trialId, design.id, t.looks);
       await appendAudit(tx, { actorUserId: ids.statistician, actorEmail: "demo-seed", trialId, action: "design_locked", entityType: "design", entityId: design.id, visibility: "open", newValues: { version: design.version, signatureId: sig.id } });
 
@@ -180,6 +189,7 @@ export async function seedDemo(): Promise<void> {
           entityType: "analysis",
           entityId: analysis.id,
           record: { analysisId: analysis.id, cutoff: c.cutoff, counts },
+          signedAt: new Date(c.lockedAt),
         });
         await tx("analyses")
           .where({ id: analysis.id })
@@ -229,6 +239,7 @@ export async function seedDemo(): Promise<void> {
       entityType: "analysis",
       entityId: look1.id,
       record,
+      signedAt: new Date("2026-07-14T15:00:00Z"),
     });
     const [recId] = await tx("recommendations").insert({ trial_id: t1.id, analysis_id: look1.id, decision: "continue", rationale, signature_id: recSig.id, created_by: ids.dmc, created_at: new Date("2026-07-14T15:00:00Z") });
     await tx("analyses").where({ id: look1.id }).update({ status: "reviewed", reviewed_at: new Date("2026-07-14T15:00:00Z") });

@@ -27,7 +27,7 @@ import {
   updateUserPassword,
 } from "@/db/queries/users";
 import { fetchPasswordLinkByHash, fetchPasswordLinkForUpdate, insertPasswordLink, markPasswordLinkUsed, revokeOpenPasswordLinks } from "@/db/queries/password-links";
-import { deleteMembership, fetchMembershipById, fetchRolesOnTrial, insertMembership } from "@/db/queries/memberships";
+import { deleteMembership, fetchActiveRoleHoldersForUpdate, fetchMembershipById, fetchRolesOnTrial, insertMembership } from "@/db/queries/memberships";
 import { insertEmails } from "@/db/queries/emails";
 import { fetchTrial } from "@/db/queries/trials";
 import type { PasswordLinkRow, PublicUser, TrialRole, UserRow } from "@/db/types";
@@ -225,21 +225,39 @@ export async function grantTrialRole(admin: PublicUser, input: { userId: number;
   });
 }
 
+/**
+ * Removes one role on one trial. Refused for the last active unblinded statistician of a trial: the
+ * closed review, locking looks and preparing the closed packet need one, and a trial left without
+ * one cannot be monitored (give the role to someone else first).
+ */
 export async function revokeTrialRole(admin: PublicUser, membershipId: number): Promise<void> {
-  await writeTransaction(async (tx) => {
-    const m = await fetchMembershipById(membershipId, tx);
-    if (!m) throw notFoundError("That role assignment");
-    const user = await fetchUserById(m.user_id, tx);
-    await deleteMembership(tx, m.id);
-    await appendAudit(tx, {
-      actorUserId: admin.id,
-      actorEmail: admin.email,
-      trialId: m.trial_id,
-      action: "role_removed",
-      entityType: "trial_membership",
-      entityId: m.id,
-      visibility: "open",
-      oldValues: { removedBy: { id: admin.id, email: admin.email }, removedFrom: { id: m.user_id, email: user?.email ?? null }, trialId: m.trial_id, role: m.role },
+  try {
+    await writeTransaction(async (tx) => {
+      const m = await fetchMembershipById(membershipId, tx);
+      if (!m) throw notFoundError("That role assignment");
+      const user = await fetchUserById(m.user_id, tx);
+      if (m.role === "unblinded_statistician") {
+        const holders = await fetchActiveRoleHoldersForUpdate(tx, m.trial_id, "unblinded_statistician");
+        const trial = await fetchTrial(m.trial_id, tx);
+        if (!holders.some((h) => h.id !== m.id)) {
+          throw conflict(`${user?.name ?? "This person"} is the last unblinded statistician on ${trial?.code ?? "this trial"}. Give the role to someone else first: the trial needs one to review looks and prepare the closed packet.`);
+        }
+      }
+      await deleteMembership(tx, m.id);
+      await appendAudit(tx, {
+        actorUserId: admin.id,
+        actorEmail: admin.email,
+        trialId: m.trial_id,
+        action: "role_removed",
+        entityType: "trial_membership",
+        entityId: m.id,
+        visibility: "open",
+        oldValues: { removedBy: { id: admin.id, email: admin.email }, removedFrom: { id: m.user_id, email: user?.email ?? null }, trialId: m.trial_id, role: m.role },
+      });
     });
-  });
+  } catch (e) {
+    // Two removals racing on the same trial's rows: the loser changes nothing and may try again.
+    if ((e as { code?: string }).code === "ER_LOCK_DEADLOCK") throw conflict("Someone else changed this trial's roles at the same moment. Nothing was changed; try again.");
+    throw e;
+  }
 }

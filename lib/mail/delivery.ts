@@ -101,18 +101,14 @@ export async function retryDueMessages(policy: RetryPolicy = DEFAULT_RETRY, now 
   return out;
 }
 
-const worker = globalThis as unknown as { cairnMailWorker?: ReturnType<typeof setInterval> };
-
-/** Starts (once per process) a timer that picks up due messages, so a restart loses nothing. */
-export function ensureMailWorker(everyMs = 5_000): void {
-  if (worker.cairnMailWorker) return;
-  worker.cairnMailWorker = setInterval(() => {
-    retryDueMessages().catch((e) => console.error("[cairn] mail retry sweep failed", e));
-  }, everyMs);
-  worker.cairnMailWorker.unref?.();
-}
-
-export function stopMailWorker(): void {
-  if (worker.cairnMailWorker) clearInterval(worker.cairnMailWorker);
-  worker.cairnMailWorker = undefined;
+/**
+ * Makes sure this process takes part in the mail scheduler (lib/mail/scheduler.ts), which picks up
+ * due messages and reminders with one sender across processes. instrumentation.ts starts it when the
+ * process starts; callers that have just recorded mail call this too, which does nothing if it runs.
+ */
+export function ensureMailWorker(): void {
+  void import("./scheduler").then(
+    (m) => m.ensureMailScheduler(),
+    (e) => console.error("[cairn] the mail scheduler could not start", e),
+  );
 }

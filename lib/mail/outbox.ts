@@ -96,7 +96,7 @@ export async function queueDueReminders(opts: { now?: Date; trialId?: number; ac
     const ids = await writeTransaction(async (tx) => {
       if (!(await claimReminder(tx, m.id, now))) return [];
       const emails: NewEmail[] = attendees.map((a) => {
-        const c = reminderMail({ trialCode: trial.code, trialTitle: trial.title, meetingWhen: when, lookNumber: full.lookNumber, recipientName: a.name, daysBefore: m.reminder_days_before, link: meetingLink(trial.id, m.id), openAgenda: m.open_agenda });
+        const c = reminderMail({ trialCode: trial.code, trialTitle: trial.title, meetingWhen: when, lookNumber: full.lookNumber, recipientName: a.name, daysBefore: m.reminder_days_before, msAhead: new Date(m.scheduled_at).getTime() - now.getTime(), link: meetingLink(trial.id, m.id), openAgenda: m.open_agenda });
         return { trialId: trial.id, meetingId: m.id, packetId: null, toUserId: a.userId, toAddress: a.email, subject: c.subject, kind: "meeting_reminder", bodyText: c.text, createdBy: opts.actor?.id ?? null };
       });
       const ids = emails.length ? await insertEmails(tx, emails, now) : [];
@@ -108,7 +108,7 @@ export async function queueDueReminders(opts: { now?: Date; trialId?: number; ac
         entityType: "meeting",
         entityId: m.id,
         visibility: "open",
-        newValues: { recipients: emails.map((e) => e.toAddress), daysBefore: m.reminder_days_before },
+        newValues: { recipients: emails.map((e) => e.toAddress), daysBefore: m.reminder_days_before, hoursAhead: Math.floor((new Date(m.scheduled_at).getTime() - now.getTime()) / 3_600_000) },
       });
       return ids;
     });

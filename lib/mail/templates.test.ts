@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { CAUTION_TEXT } from "@/lib/caution";
-import { closedNoticeMail, oneLine, openPacketMail, reminderMail } from "./templates";
+import { closedNoticeMail, leadTimeWords, oneLine, openPacketMail, reminderMail } from "./templates";
 
 const ctx = {
   trialCode: "CRN-T9",
@@ -61,13 +61,30 @@ describe("closedNoticeMail", () => {
 });
 
 describe("reminderMail", () => {
-  it("says it is a reminder, when, how far ahead, with the open agenda and the caution", () => {
-    const m = reminderMail({ ...ctx, daysBefore: 1, link: "L", openAgenda: "1. Accrual" });
+  it("says it is a reminder, when, the real lead time, with the open agenda and the caution", () => {
+    const m = reminderMail({ ...ctx, daysBefore: 1, msAhead: 26 * 3_600_000, link: "L", openAgenda: "1. Accrual" });
     expect(m.subject).toBe(`[CRN-T9] Reminder: DMC meeting on ${ctx.meetingWhen}`);
-    expect(m.text).toContain("sent 1 day ahead");
+    expect(m.text).toContain("which starts in 1 day and 2 hours");
+    expect(m.text).toContain("planned 1 day ahead");
     expect(m.text).toContain("1. Accrual");
     expect(m.text).toContain(CAUTION_TEXT);
-    expect(reminderMail({ ...ctx, daysBefore: 3, link: "L", openAgenda: "" }).text).toContain("sent 3 days ahead");
+    // Planned three days ahead but sent 20 hours before: the text says 20 hours, not three days.
+    const late = reminderMail({ ...ctx, daysBefore: 3, msAhead: 20 * 3_600_000 + 59 * 60_000, link: "L", openAgenda: "" }).text;
+    expect(late).toContain("which starts in 20 hours");
+    expect(late).not.toContain("starts in 3 days");
+  });
+});
+
+describe("leadTimeWords", () => {
+  it("rounds down to whole hours and names days and hours", () => {
+    const H = 3_600_000;
+    expect(leadTimeWords(0)).toBe("within the hour");
+    expect(leadTimeWords(H - 1)).toBe("within the hour");
+    expect(leadTimeWords(H)).toBe("in 1 hour");
+    expect(leadTimeWords(23 * H + 3_599_999)).toBe("in 23 hours");
+    expect(leadTimeWords(24 * H)).toBe("in 1 day");
+    expect(leadTimeWords(49 * H)).toBe("in 2 days and 1 hour");
+    expect(leadTimeWords(-5 * H)).toBe("within the hour");
   });
 });
 

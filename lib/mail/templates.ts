@@ -52,12 +52,31 @@ export function closedNoticeMail(c: PacketMailContext & { packetVersion: number;
   };
 }
 
-export function reminderMail(c: Omit<PacketMailContext, "senderName"> & { daysBefore: number; link: string; openAgenda: string }): MailContent {
+/**
+ * How far ahead the meeting is, in words, rounded down to whole hours (whole days and hours from one
+ * day on): "in 2 days and 5 hours", "in 20 hours", "within the hour". A reminder sent late (the
+ * meeting was scheduled inside its reminder window, or the server was down) says the real lead time.
+ */
+export function leadTimeWords(msAhead: number): string {
+  const hours = Math.floor(Math.max(0, msAhead) / 3_600_000);
+  if (hours < 1) return "within the hour";
+  const days = Math.floor(hours / 24);
+  const rest = hours % 24;
+  const d = `${days} day${days === 1 ? "" : "s"}`;
+  const h = `${rest} hour${rest === 1 ? "" : "s"}`;
+  if (days === 0) return `in ${h}`;
+  return rest === 0 ? `in ${d}` : `in ${d} and ${h}`;
+}
+
+/** `msAhead` is the time from sending to the meeting; `daysBefore` the reminder day the organiser chose. */
+export function reminderMail(c: Omit<PacketMailContext, "senderName"> & { daysBefore: number; msAhead: number; link: string; openAgenda: string }): MailContent {
+  const planned = `${c.daysBefore} day${c.daysBefore === 1 ? "" : "s"}`;
   return {
     subject: oneLine(`[${c.trialCode}] Reminder: DMC meeting on ${c.meetingWhen}`),
     text:
       `Dear ${c.recipientName},\n\n` +
-      `This is a reminder of the DMC meeting of ${c.trialCode} (${c.trialTitle}), sent ${c.daysBefore} day${c.daysBefore === 1 ? "" : "s"} ahead as planned.\n\n` +
+      `This is a reminder of the DMC meeting of ${c.trialCode} (${c.trialTitle}), which starts ${leadTimeWords(c.msAhead)} ` +
+      `(reminders for this meeting were planned ${planned} ahead).\n\n` +
       `Meeting: ${c.meetingWhen}\nLook reviewed: look ${c.lookNumber}\nMeeting page: ${c.link}\n\n` +
       `Open session agenda:\n${c.openAgenda.trim() || "(none entered)"}` +
       FOOTER("You receive this because you are invited to this meeting."),

@@ -256,7 +256,7 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
               ["Toxicities", `${s.toxicities} of ${s.treated} treated patients (evaluable for toxicity)`],
               ["Posterior of the toxicity rate", `${mixtureText(s.posterior)}, mean ${formatRate(s.summary.mean)}`],
               [`P(q > ${s.limitLabel ?? formatRate(s.qmax)} | data)`, formatProbability(s.probAboveLimit)],
-              ["Safety threshold", `${s.thetaS} (${s.crossed ? "CROSSED: the data favour stopping for safety" : "not crossed"})`],
+              ["Toxicity alarm level (θS)", `${s.thetaS} (${s.crossed ? "CROSSED: the data favour stopping for safety" : "not crossed"})`],
             ],
           },
           {

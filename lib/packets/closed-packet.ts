@@ -10,6 +10,7 @@ import { fetchAnalysisLockSigner } from "@/db/queries/packets";
 import { fetchClosedAgenda } from "@/db/queries/closed";
 import { loadReviewInput } from "@/lib/review/load-review";
 import { monitoringRuleLabel } from "@/lib/stats/labels";
+import { thresholdWord } from "@/lib/design/threshold-labels";
 import { StatsDomainError } from "@/lib/stats/validate";
 import { computeReview, reproducibilityRecord } from "@/lib/review/compute-review";
 import { buildClosedPacket } from "./build";
@@ -42,10 +43,7 @@ async function buildClosedDocument(trial: TrialRow, open: MeetingPacketInput, cl
         id: designVersion.id,
         version: designVersion.version,
         lockedAt: designVersion.lockedAt ? new Date(designVersion.lockedAt) : null,
-        ruleLabel:
-          spec.rule.kind === "predictive"
-            ? `Predictive probability (Lee & Liu 2008): success if P > ${spec.rule.thetaT} at the end; futility if PP < ${spec.rule.futilityThreshold}${spec.rule.efficacyStopping ? `; efficacy if PP > ${spec.rule.efficacyThreshold}` : "; no efficacy stopping"}`
-            : `${monitoringRuleLabel(spec.rule.kind, spec.arms)}: futility if P < ${spec.rule.futilityThreshold}${spec.rule.efficacyStopping ? `; efficacy if P > ${spec.rule.efficacyThreshold}` : "; no efficacy stopping"}; success if P > ${spec.rule.thetaT} at the end`,
+        ruleLabel: ruleWords(spec.rule, spec.arms),
       },
       lock: { signedBy: lock.signerName, lockedAt: lock.lockedAt ? new Date(lock.lockedAt) : null },
     });
@@ -67,4 +65,20 @@ export async function prepareClosedPacket(trial: TrialRow, meetingId: number, us
   const doc = await buildClosedDocument(trial, open, closed, now);
   if (typeof doc === "string") return { audience: "closed", skipped: doc };
   return storePacketIfChanged(trial, meetingId, doc, user, now);
+}
+
+/**
+ * The monitoring rule in Cairn's words, the published symbol in brackets after each threshold (the
+ * packet's method section may carry the notation), e.g. "Predictive probability (Lee & Liu 2008):
+ * final success bar (θT) 0.9; interim futility floor (θL) 0.05; no early-success stopping".
+ */
+export function ruleWords(rule: { kind: string; thetaT: number; futilityThreshold: number; efficacyStopping: boolean; efficacyThreshold: number | null }, arms: "single" | "two"): string {
+  const kind = rule.kind === "predictive" ? "predictive" : "posterior";
+  const w = (key: "thetaT" | "futilityThreshold" | "efficacyThreshold") => {
+    const t = thresholdWord(key, kind);
+    return `${t.word.toLowerCase()} (${t.symbol})`;
+  };
+  const head = rule.kind === "predictive" ? "Predictive probability (Lee & Liu 2008)" : monitoringRuleLabel(rule.kind as Parameters<typeof monitoringRuleLabel>[0], arms);
+  const early = rule.efficacyStopping ? `${w("efficacyThreshold")} ${rule.efficacyThreshold}` : "no early-success stopping";
+  return `${head}: ${w("thetaT")} ${rule.thetaT}; ${w("futilityThreshold")} ${rule.futilityThreshold}; ${early}`;
 }

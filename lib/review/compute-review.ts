@@ -278,14 +278,14 @@ function withSafety(design: Design, response: LookEvaluation, toxicities: number
   if (exceedsThreshold(prob, rule.thetaS))
     return {
       ...response,
-      decision: { action: "stop", stop: "safety", reason: `Safety: ${words}, above the safety threshold ${rule.thetaS} (${among}): the data favour stopping for safety.` },
+      decision: { action: "stop", stop: "safety", reason: `Safety: ${words}, above the toxicity alarm level ${rule.thetaS} (${among}): the data favour stopping for safety.` },
       predictiveProbability: null,
       posteriorProbabilityMonitoring: null,
       safetyProbability: prob,
     };
   return {
     ...response,
-    decision: { ...response.decision, reason: `${response.decision.reason} No safety signal: ${words}, not above the safety threshold ${rule.thetaS} (${among}).` },
+    decision: { ...response.decision, reason: `${response.decision.reason} No safety signal: ${words}, not above the toxicity alarm level ${rule.thetaS} (${among}).` },
     safetyProbability: prob,
   };
 }

@@ -262,7 +262,7 @@ function safetyCheck(safety: SafetyRule, toxicities: number | null | undefined, 
       decision: {
         action: "stop",
         stop: "safety",
-        reason: `Posterior probability that the toxicity rate exceeds ${safetyLimitPhrase(safety)} is ${formatAgainst(prob, safety.thetaS)}, above the safety threshold ${safety.thetaS} (${toxicities} toxicities in ${n} patients): the data favour stopping for safety.`,
+        reason: `Posterior probability that the toxicity rate exceeds ${safetyLimitPhrase(safety)} is ${formatAgainst(prob, safety.thetaS)}, above the toxicity alarm level ${safety.thetaS} (${toxicities} toxicities in ${n} patients): the data favour stopping for safety.`,
       },
     };
   return { prob, decision: null };
@@ -279,7 +279,7 @@ function withSafetyNote(decision: LookDecision, safetyProb: number | null, safet
   if (safetyProb === null || !safety) return decision;
   return {
     ...decision,
-    reason: `${decision.reason} No safety signal: posterior probability that the toxicity rate exceeds ${safetyLimitPhrase(safety)} is ${formatAgainst(safetyProb, safety.thetaS)}, not above the safety threshold ${safety.thetaS}.`,
+    reason: `${decision.reason} No safety signal: posterior probability that the toxicity rate exceeds ${safetyLimitPhrase(safety)} is ${formatAgainst(safetyProb, safety.thetaS)}, not above the toxicity alarm level ${safety.thetaS}.`,
   };
 }
 

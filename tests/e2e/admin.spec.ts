@@ -16,12 +16,12 @@ test("the administrator creates an account without ever choosing its password; t
   await expect(form.getByLabel(/password/i)).toHaveCount(0);
   // Empty form
   await form.getByRole("button", { name: "Create account" }).click();
-  await expect(form.getByText("Enter the person's name.")).toBeVisible();
+  await expect(form.getByText("Enter the person's name.")).toHaveCount(2); // at the top of the form and beside the field
   // Duplicate e-mail
   await form.getByLabel("Name").fill("Another Sponsor");
   await form.getByLabel("E-mail").fill("sponsor@cairn.example");
   await form.getByRole("button", { name: "Create account" }).click();
-  await expect(form.getByText("An account with this e-mail address already exists.")).toBeVisible();
+  await expect(form.getByText("An account with this e-mail address already exists.")).toHaveCount(2); // at the top of the form and beside the field
   await page.reload();
   await expect(accounts.getByRole("row")).toHaveCount(before);
 
@@ -44,7 +44,7 @@ test("the administrator creates an account without ever choosing its password; t
   await setForm.getByLabel("New password", { exact: true }).fill("short");
   await setForm.getByLabel("New password again").fill("short");
   await setForm.getByRole("button", { name: "Set password" }).click();
-  await expect(setForm.getByText("The password must be at least 12 characters.")).toBeVisible();
+  await expect(setForm.getByText("The password must be at least 12 characters.")).toHaveCount(2); // at the top of the form and beside the field
   await setForm.getByLabel("New password", { exact: true }).fill("noor-chose-this-one");
   await setForm.getByLabel("New password again").fill("noor-chose-this-one");
   await setForm.getByRole("button", { name: "Set password" }).click();
@@ -85,14 +85,14 @@ test("the administrator cannot give themselves an unblinded role, and a sponsor 
   await give.getByLabel("Trial").selectOption({ index: 1 });
   await give.getByLabel("Role").selectOption("dmc_member");
   await give.getByRole("button", { name: "Give role" }).click();
-  await expect(give.getByText(/A second administrator must give it to you/)).toBeVisible();
+  await expect(give.getByText(/A second administrator must give it to you/)).toHaveCount(2); // at the top of the form and beside the field
 
   // The form starts afresh after each answer: choose all three again.
   await give.getByLabel("Person").selectOption({ label: "Mara Vell <sponsor@cairn.example>" });
   await give.getByLabel("Trial").selectOption({ index: 1 });
   await give.getByLabel("Role").selectOption("dmc_member");
   await give.getByRole("button", { name: "Give role" }).click();
-  await expect(give.getByText(/blinded and unblinded sides of a trial are held by different people/)).toBeVisible();
+  await expect(give.getByText(/blinded and unblinded sides of a trial are held by different people/)).toHaveCount(2); // at the top of the form and beside the field
 });
 
 test("a signed-in person changes their own password on the account page", async ({ page }) => {
@@ -108,7 +108,7 @@ test("a signed-in person changes their own password on the account page", async 
   await form.getByLabel("New password", { exact: true }).fill("short");
   await form.getByLabel("New password again").fill("short");
   await form.getByRole("button", { name: "Change password" }).click();
-  await expect(form.getByText("The password must be at least 12 characters.")).toBeVisible();
+  await expect(form.getByText("The password must be at least 12 characters.")).toHaveCount(2); // at the top of the form and beside the field
 });
 
 test("a non-administrator cannot open the administration page", async ({ page }) => {

@@ -22,7 +22,7 @@ async function createTrial(page: Page, opts: { code: string; designType: "single
   const form = page.getByRole("form", { name: "New trial" });
   // Nothing typed: field errors, nothing created.
   await form.getByRole("button", { name: "Create trial" }).click();
-  await expect(form.getByText("Enter a title.")).toBeVisible();
+  await expect(form.getByText("Enter a title.")).toHaveCount(2); // at the top of the form and beside the field
   await form.getByLabel("Trial code").fill(opts.code);
   await form.getByLabel("Title").fill(`Invented ${opts.designType === "two" ? "randomised" : "single-arm"} study ${opts.code}`);
   await form.getByLabel("Sponsor").fill("Brackenfold Biologics (invented)");
@@ -57,8 +57,8 @@ test("a statistician designs a single-arm trial, calibrates it and locks it with
   await page.getByLabel("Maximum sample size").fill("40");
   await page.getByLabel("A list of enrolled counts").check();
   await page.getByLabel("Looks at (patients enrolled)").fill("10, 20, 30");
-  await page.getByLabel("Final success threshold θT").fill("0.9");
-  await page.getByLabel("Futility threshold θL").fill("0.05");
+  await page.getByLabel("Final success bar θT", { exact: true }).fill("0.9");
+  await page.getByLabel("Interim futility floor θL", { exact: true }).fill("0.05");
 
   // A bad value shows its error next to the field and the preview waits.
   await page.getByLabel("p1, target rate").fill("0.1");
@@ -96,7 +96,7 @@ test("a statistician designs a single-arm trial, calibrates it and locks it with
   await page.getByLabel("Rule", { exact: true }).selectOption("uncertainStandard");
   await page.getByLabel("Standard rate aS").fill("10");
   await page.getByLabel("Standard rate bS").fill("40");
-  await page.getByLabel("Futility threshold pL").fill("0.05");
+  await page.getByLabel("Interim futility floor pL", { exact: true }).fill("0.05");
   await page.getByText("Monitor toxicity").click();
   await page.getByLabel("Compare the toxicity rate with").selectOption("uncertainStandard");
   await page.getByLabel("Standard toxicity aS").fill("6");
@@ -111,7 +111,7 @@ test("a statistician designs a single-arm trial, calibrates it and locks it with
   await expect(page.getByTestId("oc-type-i-error")).toHaveText(formatProbability(typeIErrorAndPower(withSafety).typeIError));
   await expect(page.getByTestId("safety-oc-assumption")).toContainText("response and toxicity are independent");
   await page.getByLabel("Rule", { exact: true }).selectOption("predictive");
-  await page.getByLabel("Futility threshold θL").fill("0.05");
+  await page.getByLabel("Interim futility floor θL", { exact: true }).fill("0.05");
   await page.getByText("Monitor toxicity").click();
   await waitForPreview(page);
   await expect(page.getByTestId("oc-type-i-error")).toHaveText(formatProbability(engine.typeIError));
@@ -135,8 +135,8 @@ test("a statistician designs a single-arm trial, calibrates it and locks it with
   // Threshold sets with identical operating characteristics share a row.
   await expect(page.getByTestId("calibration-result")).toHaveCount(groupByCharacteristics(expected.best).length);
   await page.getByTestId("calibration-result").first().getByRole("button", { name: /Use this design/ }).first().click();
-  await expect(page.getByLabel("Final success threshold θT")).toHaveValue(String(expected.best[0].thetaT));
-  await expect(page.getByLabel("Futility threshold θL")).toHaveValue(String(expected.best[0].thetaL));
+  await expect(page.getByLabel("Final success bar θT", { exact: true })).toHaveValue(String(expected.best[0].thetaT));
+  await expect(page.getByLabel("Interim futility floor θL", { exact: true })).toHaveValue(String(expected.best[0].thetaL));
   const chosen = typeIErrorAndPower({ ...design, rule: { ...design.rule, thetaT: expected.best[0].thetaT, futilityThreshold: expected.best[0].thetaL } });
   await waitForPreview(page);
   await expect(page.getByTestId("oc-type-i-error")).toHaveText(formatProbability(chosen.typeIError));
@@ -177,7 +177,7 @@ test("a statistician designs a two-arm trial and the operating characteristics m
   await page.getByLabel("Experimental rate").fill("0.5");
   await page.getByLabel("Maximum sample size per arm").fill("40");
   await page.getByLabel("Stop early for efficacy").check();
-  await page.getByLabel("Efficacy threshold θU").fill("0.99");
+  await page.getByLabel("Early-success bar θU", { exact: true }).fill("0.99");
   const design: TwoArmDesign = {
     arms: "two",
     priorT: { family: "uniform" },

@@ -49,6 +49,10 @@ async function lockWithPassword(page: Page, look: number) {
   await expect(page.getByTestId("lock-signature")).toContainText(`Signed by ${ACCOUNTS.statistician.name} (analysis locked)`);
   await expect(page.getByRole("form", { name: "Correct this look" })).toBeVisible();
   await expect(page.getByRole("form", { name: "Enter counts by hand" })).toHaveCount(0);
+  // A lasting confirmation, still there after a reload, with the way on to the look's closed review.
+  await page.reload();
+  await expect(page.getByTestId("lock-confirmation")).toContainText("Its counts are now the record of look");
+  await expect(page.getByTestId("lock-confirmation").getByRole("link", { name: /^Open the closed review of look \d+$/ })).toHaveAttribute("href", /\/trials\/\d+\/review\/\d+$/);
   void look;
 }
 
@@ -75,8 +79,8 @@ test("CRN-305 look 2 by hand: validation messages, then save and lock", async ({
   await cell("Standard care", "evaluable for response").fill("40");
   await cell("Standard care", "responders").fill("12");
   await form.getByRole("button", { name: "Save counts" }).click();
-  await expect(form.getByText("Responders (45) cannot exceed evaluable for response (40).")).toBeVisible();
-  await expect(form.getByText("Evaluable for response (40) cannot exceed enrolled (38).")).toBeVisible();
+  await expect(form.getByText("Responders (45) cannot exceed evaluable for response (40).")).toHaveCount(2); // at the top of the form and beside the field
+  await expect(form.getByText("Evaluable for response (40) cannot exceed enrolled (38).")).toHaveCount(2); // at the top of the form and beside the field
   await expect(page.getByRole("table", { name: "Recorded counts" })).toHaveCount(0);
   // Corrected; what was typed stays in the inputs.
   await expect(cell("Standard care", "responders")).toHaveValue("12");
@@ -199,7 +203,7 @@ test("CRN-201 look 3 by hand with toxicities (safety rule), locked; look 4 refus
   await form.getByLabel(`${arm}: treated (evaluable for toxicity)`).fill("31");
   await form.getByLabel(`${arm}: with toxicity`).fill("");
   await form.getByRole("button", { name: "Save counts" }).click();
-  await expect(form.getByText("Enter the number with toxicity as a whole number.")).toBeVisible();
+  await expect(form.getByText("Enter the number with toxicity as a whole number.")).toHaveCount(2); // at the top of the form and beside the field
   await form.getByLabel(`${arm}: with toxicity`).fill("4");
   await form.getByRole("button", { name: "Save counts" }).click();
   await expect(page.getByText("Counts saved (31 enrolled in total).")).toBeVisible();
@@ -231,12 +235,17 @@ test("the audit trail: the statistician sees the closed count entries in their o
   await page.goto(`${base}/audit`);
   await expect(page.getByTestId("audit-zone")).toContainText("America/Chicago");
   const grid = page.getByRole("region", { name: "Audit trail entries" });
-  await expect(grid.getByText("patient_data_uploaded").first()).toBeVisible();
-  await expect(grid.getByText("counts_entered").first()).toBeVisible();
+  await expect(grid.getByText("Patient data uploaded").first()).toBeVisible();
+  // The grid draws only the rows in view (taller now that changes wrap): filter to the entries asked about.
+  await page.getByLabel("Filter by action").selectOption("Counts entered");
+  await expect(grid.getByText("Counts entered", { exact: true }).first()).toBeVisible();
+  // The seed's entries are shown as made by "demo data", and changes as words, not JSON.
+  await expect(grid.getByText("demo data").first()).toBeVisible();
+  await expect(grid.getByText(/^\{"/)).toHaveCount(0);
   // Chicago in late 2026: UTC-06:00 (CST) after the first Sunday of November.
   await expect(grid.getByText(/2026-\d\d-\d\d \d\d:\d\d:\d\d -0[56]:00/).first()).toBeVisible();
-  await page.getByLabel("Action", { exact: true }).selectOption("analysis_locked");
-  await expect(grid.getByText("counts_entered")).toHaveCount(0);
+  await page.getByLabel("Action", { exact: true }).selectOption("Look locked");
+  await expect(grid.getByText("Counts entered", { exact: true })).toHaveCount(0);
   await stat.close();
 
   const sponsorCtx = await browser.newContext();
@@ -245,9 +254,9 @@ test("the audit trail: the statistician sees the closed count entries in their o
   await sp.goto(`${base}/audit`);
   await expect(sp.getByTestId("audit-zone")).toContainText("Your role is blinded");
   const spGrid = sp.getByRole("region", { name: "Audit trail entries" });
-  await expect(spGrid.getByText("analysis_locked").first()).toBeVisible();
-  await expect(spGrid.getByText("counts_entered")).toHaveCount(0);
-  await expect(spGrid.getByText("patient_data_uploaded")).toHaveCount(0);
+  await expect(spGrid.getByText("Look locked").first()).toBeVisible();
+  await expect(spGrid.getByText("Counts entered", { exact: true })).toHaveCount(0);
+  await expect(spGrid.getByText("Patient data uploaded")).toHaveCount(0);
   const api = await sp.request.get(`/api${base}/audit`);
   expect(api.status()).toBe(200);
   const body = await api.json();

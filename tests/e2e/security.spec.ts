@@ -83,6 +83,17 @@ test("a cross-site write to the API is refused before it reaches the route", asy
   expect(await res.text()).toContain("Cross-site");
 });
 
+test("removing the last unblinded statistician of a trial is refused on the admin page, and the role stays", async ({ page }) => {
+  await signIn(page, "admin");
+  await page.goto("/admin");
+  const row = page.getByRole("row").filter({ hasText: "CRN-201" }).filter({ hasText: "statistician@cairn.example" }).filter({ hasText: "Unblinded statistician" });
+  await row.getByRole("button", { name: /^Remove/ }).click();
+  await row.getByRole("button", { name: "Yes, remove the role" }).click();
+  await expect(row.getByRole("alert")).toContainText("is the last unblinded statistician on CRN-201");
+  await page.reload();
+  await expect(page.getByRole("row").filter({ hasText: "CRN-201" }).filter({ hasText: "statistician@cairn.example" }).filter({ hasText: "Unblinded statistician" })).toHaveCount(1);
+});
+
 test("a person removed from a trial loses access at the next request", async ({ browser }) => {
   const adminCtx = await browser.newContext();
   const admin = await adminCtx.newPage();
@@ -95,6 +106,9 @@ test("a person removed from a trial loses access at the next request", async ({ 
   await admin.goto("/admin");
   const row = admin.getByRole("row").filter({ hasText: "CRN-305" }).filter({ hasText: "coordinator@cairn.example" });
   await row.getByRole("button", { name: /^Remove/ }).click();
+  // Removing asks first; nothing changes until the removal is confirmed.
+  expect((await person.request.get("/api/trials/2/open-status")).status()).toBe(200);
+  await row.getByRole("button", { name: "Yes, remove the role" }).click();
   await expect(row).toHaveCount(0);
   expect((await person.request.get("/api/trials/2/open-status")).status()).toBe(404);
   // Put the role back for the specs that run after this one.

@@ -28,6 +28,27 @@ test("empty and malformed input is refused before anything is sent", async ({ pa
   await expect(page.getByText("Enter a valid e-mail address.")).toBeVisible();
 });
 
+test("a link followed while signed out (an e-mail's meeting link) returns to its page, fragment included, after sign-in", async ({ page }) => {
+  await page.goto("/trials/1/meetings?from=mail#packets");
+  await expect(page).toHaveURL(/\/signin\?callbackUrl=%2Ftrials%2F1%2Fmeetings%3Ffrom%3Dmail#packets$/);
+  await page.getByLabel("E-mail").fill(ACCOUNTS.dmc.email);
+  await page.getByLabel("Password").fill(ACCOUNTS.dmc.password);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page).toHaveURL(/\/trials\/1\/meetings\?from=mail#packets$/);
+  await expect(page.getByTestId("signed-in-as")).toHaveText(ACCOUNTS.dmc.name);
+});
+
+test("a return target on another site is ignored: sign-in lands on the trial list", async ({ page }) => {
+  for (const evil of ["//evil.example/", "/\\evil.example", "https://evil.example/", "/.//evil.example"]) {
+    await page.context().clearCookies();
+    await page.goto(`/signin?callbackUrl=${encodeURIComponent(evil)}`);
+    await page.getByLabel("E-mail").fill(ACCOUNTS.sponsor.email);
+    await page.getByLabel("Password").fill(ACCOUNTS.sponsor.password);
+    await page.getByRole("button", { name: "Sign in" }).click();
+    await expect(page).toHaveURL(/^http:\/\/localhost:\d+\/trials$/);
+  }
+});
+
 const EXPECTED_ROLE_BADGE: Record<AccountKey, string | null> = {
   admin: null,
   statistician: "Unblinded statistician",
@@ -47,6 +68,8 @@ for (const who of Object.keys(ACCOUNTS) as AccountKey[]) {
     }
     await page.getByRole("link", { name: "CRN-201" }).click();
     await expect(page.getByTestId("caution")).toContainText("Decision support only");
+    // Meetings are reachable from a tab for everyone on the trial (blinded roles see the open part).
+    await expect(page.getByRole("navigation", { name: "Trial sections" }).getByRole("link", { name: "Meetings" })).toBeVisible();
     await page.getByRole("button", { name: "Sign out" }).click();
     await expect(page).toHaveURL(/\/signin$/);
     await page.goto("/trials");

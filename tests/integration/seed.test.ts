@@ -35,4 +35,22 @@ describe("demo seed", () => {
     await expect(seedDemo()).rejects.toThrow();
     expect(await counts()).toEqual(before);
   });
+
+  it("tells a consistent story: each design was approved before the first patient and before any look's data, and looks were signed when locked", async () => {
+    const trials = await db("trials").select("id", "code", "first_patient_on");
+    for (const t of trials) {
+      const design = await db("designs as d").join("signatures as s", "s.id", "d.signature_id").where("d.trial_id", t.id).first("d.created_at", "d.locked_at", "s.signed_at");
+      const looks = await db("analyses as a").leftJoin("signatures as s", "s.id", "a.lock_signature_id").where("a.trial_id", t.id).whereNotNull("a.cutoff_date").orderBy("a.look_number").select("a.cutoff_date", "a.locked_at", "s.signed_at");
+      const firstPatient = new Date(t.first_patient_on).getTime();
+      expect(new Date(design.created_at).getTime()).toBeLessThan(new Date(design.locked_at).getTime());
+      expect(new Date(design.locked_at).getTime()).toBeLessThan(firstPatient);
+      expect(new Date(design.signed_at).getTime()).toBe(new Date(design.locked_at).getTime());
+      expect(looks.length).toBeGreaterThan(0);
+      for (const l of looks) {
+        expect(new Date(design.locked_at).getTime()).toBeLessThan(new Date(l.cutoff_date).getTime());
+        expect(new Date(l.cutoff_date).getTime()).toBeLessThan(new Date(l.locked_at).getTime());
+        expect(new Date(l.signed_at).getTime()).toBe(new Date(l.locked_at).getTime());
+      }
+    }
+  });
 });

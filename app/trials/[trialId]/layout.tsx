@@ -12,7 +12,8 @@ export default async function TrialLayout({ children, params }: { children: Reac
   const tabs: TrialTab[] = [{ href: base, label: "Open status" }, { href: `${base}/design`, label: "Design" }];
   if (allows(principal, "enterData")) tabs.push({ href: `${base}/analyses`, label: "Interim data" });
   if (unblinded) tabs.push({ href: `${base}/review`, label: "Closed review" });
-  if (allows(principal, "manageMeetings")) tabs.push({ href: `${base}/meetings`, label: "Meetings" });
+  // Everyone on the trial: blinded roles see the open part of each meeting only (the page decides).
+  tabs.push({ href: `${base}/meetings`, label: "Meetings" });
   tabs.push({ href: `${base}/committee`, label: "Committee" });
   tabs.push({ href: `${base}/audit`, label: "Audit trail" });
   return (

@@ -29,11 +29,13 @@ export default async function TrialOverviewPage({ params }: { params: Promise<{ 
   const enrolled = accrual.at(-1)?.enrolled ?? 0;
   const lags = happened.filter((l) => l.cutoff_date && l.locked_at).map((l) => differenceInCalendarDays(new Date(isoDay(l.locked_at as Date)), new Date(l.cutoff_date as string)));
   const next = looks.find((l) => l.status === "planned" || l.status === "open");
+  // Two arms: a look's planned size counts patients in each arm; accrual is pooled across arms.
+  const perArm = trial.design_type === "two" ? " per arm" : "";
   return (
-    <div className="grid gap-4 lg:grid-cols-3">
+    <div className="grid grid-cols-1 gap-4 lg:grid-cols-3">
       <Card title="Accrual">
         <p className="text-3xl font-semibold tabular-nums" data-testid="accrual">
-          {enrolled} <span className="text-base font-normal text-stone-500">of {trial.target_enrolment} planned</span>
+          {enrolled} <span className="text-base font-normal text-stone-500">of {trial.target_enrolment} planned{perArm ? " in all arms" : ""}</span>
         </p>
         <p className="mt-1 text-xs text-stone-500">Pooled across arms, at the latest data cut-off.</p>
       </Card>
@@ -68,7 +70,7 @@ export default async function TrialOverviewPage({ params }: { params: Promise<{ 
         </p>
         <p className="mt-1 text-xs text-stone-500">
           From data cut-off to lock at the latest look{lags.length > 1 ? `; mean over ${lags.length} looks ${(lags.reduce((a, b) => a + b, 0) / lags.length).toFixed(1)} days` : ""}.
-          {next ? ` Next: look ${next.look_number} at ${next.planned_n} patients.` : ""}
+          {next ? ` Next: look ${next.look_number} at ${next.planned_n} patients${perArm}.` : ""}
         </p>
       </Card>
       <Card title="Accrual over time" className="lg:col-span-3">
@@ -82,7 +84,7 @@ export default async function TrialOverviewPage({ params }: { params: Promise<{ 
             <thead>
               <tr>
                 <th>Look</th>
-                <th>Planned size</th>
+                <th>Planned size{perArm ? " (per arm)" : ""}</th>
                 <th>Happened</th>
                 <th>Data cut-off</th>
                 <th>Enrolled (pooled)</th>

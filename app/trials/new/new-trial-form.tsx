@@ -3,7 +3,7 @@ import { useActionState, useState } from "react";
 import { createTrialAction } from "./actions";
 import type { NewTrialFormState } from "@/lib/design/trial-schema";
 import { Button } from "@/components/ui/button";
-import { Banner } from "@/components/ui/banner";
+import { FormErrorSummary } from "@/components/ui/form-error-summary";
 import { Field, SelectInput, TextInput } from "@/components/ui/field";
 import { FocusFirstInvalid } from "@/components/ui/focus-first-invalid";
 
@@ -17,7 +17,7 @@ export function NewTrialForm() {
   return (
     <form action={action} className="flex flex-col gap-4" aria-label="New trial" noValidate>
       <FocusFirstInvalid after={state} />
-      {state.error ? <Banner tone="danger">{state.error}</Banner> : null}
+      <FormErrorSummary error={state.error} fieldErrors={state.fieldErrors} />
       <div className="grid gap-4 sm:grid-cols-2">
         <Field label="Trial code" name="code" error={fe.code} hint="Short and unique, e.g. CRN-410.">
           <TextInput id="code" name="code" defaultValue={v.code} maxLength={40} invalid={!!fe.code} />

@@ -1,6 +1,5 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { after } from "next/server";
 import { authorizePage, allows } from "@/lib/auth";
 import { parseId } from "@/lib/route-params";
 import { fetchMeetings } from "@/db/queries/meetings";
@@ -9,7 +8,7 @@ import { fetchMemberships } from "@/db/queries/memberships";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { ANALYSIS_STATUS_LABELS, DECISION_LABELS } from "@/lib/format";
 import { formatMeetingTime, timeZoneChoices } from "@/lib/packets/meeting-time";
-import { ensureMailWorker, retryDueMessages } from "@/lib/mail/delivery";
+import { ensureMailWorker } from "@/lib/mail/delivery";
 import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
 import { ActionButton, ScheduleMeetingForm } from "@/components/meetings/forms";
@@ -24,11 +23,8 @@ export default async function MeetingsPage({ params }: { params: Promise<{ trial
   const trialId = parseId((await params).trialId);
   const { trial, principal } = await authorizePage(trialId, "viewOpen");
   const manage = allows(principal, "manageMeetings");
-  if (manage) {
-    // Pick up messages whose retry is due, after the page is sent (never holds it up).
-    ensureMailWorker();
-    after(() => retryDueMessages().then(() => undefined, (e) => console.error("[cairn] mail retry sweep failed", e)));
-  }
+  // Due reminders and retries are the mail scheduler's (lib/mail/scheduler.ts), one sender for all processes.
+  if (manage) ensureMailWorker();
   const [meetings, looks, recommendations, members] = await Promise.all([
     fetchMeetings(trial.id),
     fetchLookSchedule(trial.id),
@@ -61,7 +57,7 @@ export default async function MeetingsPage({ params }: { params: Promise<{ trial
   };
 
   return (
-    <div className="grid gap-4 lg:grid-cols-3">
+    <div className="grid grid-cols-1 gap-4 lg:grid-cols-3">
       <div className="flex flex-col gap-4 lg:col-span-2">
         <Card title="Upcoming meetings" actions={manage ? <ActionButton action={sendDueReminders} fields={{ trialId: trial.id }} label="Send due reminders" pendingLabel="Checking…" variant="secondary" /> : null}>
           {upcoming.length === 0 ? (

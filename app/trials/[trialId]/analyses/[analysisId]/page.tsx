@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { authorizePage, closedConnection } from "@/lib/auth";
+import { allows, authorizePage, closedConnection } from "@/lib/auth";
 import { parseId } from "@/lib/route-params";
 import { HttpError } from "@/lib/http";
 import { ANALYSIS_STATUS_LABELS, formatRate } from "@/lib/format";
@@ -151,6 +151,19 @@ export default async function LookPage({ params }: { params: Promise<{ trialId: 
         </>
       ) : null}
 
+      {a.status === "locked" ? (
+        <Banner tone="success" title={`Look ${a.look_number} is locked and signed`}>
+          <p data-testid="lock-confirmation">
+            Its counts are now the record of look {a.look_number}{signature ? `, signed by ${signature.signerName}` : ""}. The DMC reviews it next.
+            {allows(access.principal, "viewClosed") ? (
+              <>
+                {" "}
+                <Link href={`/trials/${trial.id}/review/${a.id}`}>Open the closed review of look {a.look_number}</Link>
+              </>
+            ) : null}
+          </p>
+        </Banner>
+      ) : null}
       {a.status === "locked" ? (
         <Card title="Correct this look">
           <ReopenForm trialId={trial.id} analysisId={a.id} rowVersion={a.row_version} lookNumber={a.look_number} />

@@ -55,9 +55,9 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
   return (
     <div className="flex flex-col gap-4">
       <p className="text-sm"><Link href={`/trials/${trial.id}/meetings`}>← All meetings</Link></p>
-      <div className="grid gap-4 lg:grid-cols-3">
+      <div className="grid grid-cols-1 gap-4 lg:grid-cols-3">
         <Card title="Meeting" className="lg:col-span-2">
-          <dl className="grid grid-cols-[12rem_1fr] gap-y-1 text-sm">
+          <dl className="grid grid-cols-[minmax(0,9rem)_minmax(0,1fr)] gap-x-2 gap-y-1 text-sm sm:grid-cols-[12rem_minmax(0,1fr)]">
             <dt className="text-stone-500">When</dt>
             <dd data-testid="meeting-when">{formatMeetingTime(when, meeting.time_zone)}</dd>
             <dt className="text-stone-500">In UTC</dt>
@@ -106,7 +106,7 @@ export default async function MeetingPage({ params }: { params: Promise<{ trialI
       </div>
 
       <Card title="Meeting packet" actions={manage && meeting.status !== "cancelled" ? <ActionButton action={generateOpenPacketAction} fields={hidden} label="Generate open report" pendingLabel="Generating PDF…" variant="secondary" /> : null}>
-        <div id="packets" className="grid gap-4 md:grid-cols-2">
+        <div id="packets" className="grid grid-cols-1 gap-4 md:grid-cols-2">
           <div>
             <h3 className="text-sm font-semibold">Open report <span className="font-normal text-stone-500">(everyone on the trial)</span></h3>
             {openPackets.length === 0 ? <p className="text-sm text-stone-600">Not generated yet.</p> : null}

@@ -126,11 +126,11 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
 
       {review.safety?.crossed ? (
         <Banner tone="danger" title="Safety boundary crossed">
-          P(toxicity rate &gt; {review.safety.limitLabel ?? formatRate(review.safety.qmax)}) = {formatProbability(review.safety.probAboveLimit)}, above the safety threshold {review.safety.thetaS}.
+          P(toxicity rate &gt; {review.safety.limitLabel ?? formatRate(review.safety.qmax)}) = {formatProbability(review.safety.probAboveLimit)}, above the toxicity alarm level {review.safety.thetaS}.
         </Banner>
       ) : null}
 
-      <div className="grid gap-4 lg:grid-cols-2">
+      <div className="grid grid-cols-1 gap-4 lg:grid-cols-2">
         <Card title="Posterior response rate" className="lg:col-span-2">
           <table className="cairn-table" aria-label="Posterior summaries">
             <thead>
@@ -227,14 +227,14 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
           </table>
           <DataGrid
             label="Boundary table"
-            height={Math.min(420, 60 + 42 * review.boundaries.length)}
+            height={Math.min(450, 90 + 42 * review.boundaries.length)}
             csvFileName={`${trial.code}-look-${review.lookNumber}-boundaries.csv`}
             columns={[
-              { field: "look", headerName: "Planned look (n)" },
-              { field: "futility", headerName: "Futility: stop at or below" },
-              { field: "efficacy", headerName: "Efficacy / success: at or above" },
-              { field: "observed", headerName: "Observed responders" },
-              ...(single ? [] : [{ field: "control" as const, headerName: "Read at control responders" }]),
+              { field: "look", headerName: "Planned look (n)", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 },
+              { field: "futility", headerName: "Futility: stop at or below", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 },
+              { field: "efficacy", headerName: "Efficacy / success: at or above", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 },
+              { field: "observed", headerName: "Observed responders", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 },
+              ...(single ? [] : [{ field: "control" as const, headerName: "Read at control responders", wrapHeaderText: true, autoHeaderHeight: true, minWidth: 150 }]),
             ]}
             rows={review.boundaries.map((b) => {
               const seen = review.observedBoundaries.find((o) => o.plannedN === b.n) ?? review.observedBoundaries.find((o) => o.plannedN === null && o.n === b.n);
@@ -276,10 +276,10 @@ export default async function ClosedReviewPage({ params }: { params: Promise<{ t
         {review.safety ? (
           <Card title="Safety" className="lg:col-span-2">
             <p className="text-sm" data-testid="safety-summary">
-              {review.safety.toxicities} with toxicity among {review.safety.treated} treated patients (evaluable for toxicity). P(toxicity rate &gt; {review.safety.limitLabel ?? formatRate(review.safety.qmax)}) = <strong>{formatProbability(review.safety.probAboveLimit)}</strong> (safety threshold {review.safety.thetaS}):{" "}
+              {review.safety.toxicities} with toxicity among {review.safety.treated} treated patients (evaluable for toxicity). P(toxicity rate &gt; {review.safety.limitLabel ?? formatRate(review.safety.qmax)}) = <strong>{formatProbability(review.safety.probAboveLimit)}</strong> (toxicity alarm level {review.safety.thetaS}):{" "}
               {review.safety.crossed ? <Badge tone="berry">boundary crossed</Badge> : <Badge tone="lichen">boundary not crossed</Badge>}
             </p>
-            <div className="grid gap-4 lg:grid-cols-2">
+            <div className="grid grid-cols-1 gap-4 lg:grid-cols-2">
               <ToxicityPlot safety={review.safety} />
               <table className="cairn-table" aria-label="Safety boundary">
                 <thead>
