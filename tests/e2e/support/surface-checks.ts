@@ -1,7 +1,7 @@
 /**
  * What every page must satisfy at every width, as a list of checks run in the browser by
  * tests/e2e/surface.spec.ts. Each check returns the problems it found (empty when the page passes),
- * so a new rule (the chart rules, for instance) is one more entry in SURFACE_CHECKS.
+ * so a new rule is one more entry in SURFACE_CHECKS.
  */
 import type { Page } from "@playwright/test";
 
@@ -64,4 +64,25 @@ export const noGreekOnlyLabel: SurfaceCheck = {
     }),
 };
 
-export const SURFACE_CHECKS: SurfaceCheck[] = [noHorizontalPageScroll, noTruncatedGridHeader, noGreekOnlyLabel];
+/** No chart-library toolbar (it offers an upload to a hosted service and clutters the tab order). */
+export const noChartToolbar: SurfaceCheck = {
+  name: "no chart toolbar",
+  run: (page) =>
+    page.evaluate(() => [...document.querySelectorAll(".modebar, .modebar-container")].map(() => "a chart shows the chart library's toolbar")),
+};
+
+/** Every chart has a visible title (components/charts/chart-figure.tsx). */
+export const everyChartTitled: SurfaceCheck = {
+  name: "every chart has a visible title",
+  run: (page) =>
+    page.evaluate(() =>
+      [...document.querySelectorAll<HTMLElement>("[data-chart]")]
+        .filter((fig) => {
+          const title = fig.querySelector<HTMLElement>("[data-chart-title]");
+          return !title || !title.textContent?.trim() || title.offsetParent === null;
+        })
+        .map((_, i) => `chart ${i + 1} on the page has no visible title`),
+    ),
+};
+
+export const SURFACE_CHECKS: SurfaceCheck[] = [noHorizontalPageScroll, noTruncatedGridHeader, noGreekOnlyLabel, noChartToolbar, everyChartTitled];
