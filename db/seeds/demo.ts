@@ -16,7 +16,9 @@ import { replaceArmCounts } from "../queries/closed";
 import { insertCommitteeMember } from "../queries/committee";
 import { insertMeeting } from "../queries/meetings";
 import { expandLooks } from "@/lib/stats/looks";
-import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
+import { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN } from "./demo-designs";
+
+export { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN };
 import type { TrialRole } from "../types";
 
 export const DEMO_ACCOUNTS = [
@@ -29,30 +31,6 @@ export const DEMO_ACCOUNTS = [
   { key: "coordinator", name: "Tomas Brandt-Oye", email: "coordinator@cairn.example", password: "demo-coord-pass", isAdmin: false },
 ] as const;
 
-export const SINGLE_ARM_DEMO_DESIGN: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "beta", a: 0.6, b: 0.4 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 40,
-  looks: { kind: "list", sizes: [10, 20, 30, 40] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: { qmax: 0.3, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
-};
-
-export const TWO_ARM_DEMO_DESIGN: TwoArmDesign = {
-  arms: "two",
-  priorT: { family: "uniform" },
-  priorC: { family: "informative", mean: 0.3, ess: 10 },
-  controlRate: 0.3,
-  experimentalRate: 0.5,
-  delta: 0,
-  nMaxPerArm: 60,
-  looks: { kind: "list", sizes: [20, 40, 60] },
-  rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
-  safety: null,
-};
 
 /**
  * The demo interim counts: look by look, per arm (closed data). Treated (evaluable for toxicity)

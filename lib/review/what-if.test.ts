@@ -11,35 +11,12 @@ import { pendingOutlookForReview, whatIf, whatItTakesForReview } from "./what-if
 import { decideAtLook } from "@/lib/stats/decision";
 import { predictiveProbabilitySingleArm, predictiveProbabilityTwoArm, twoArmFinalRule } from "@/lib/stats/predictive";
 import { resolvePrior } from "@/lib/stats/priors";
-import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { StatsDomainError } from "@/lib/stats/validate";
+import { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN } from "@/db/seeds/demo-designs";
 
-const SINGLE: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "beta", a: 0.6, b: 0.4 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 40,
-  looks: { kind: "list", sizes: [10, 20, 30, 40] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: { qmax: 0.3, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
-};
-const TWO: TwoArmDesign = {
-  arms: "two",
-  priorT: { family: "uniform" },
-  priorC: { family: "informative", mean: 0.3, ess: 10 },
-  controlRate: 0.3,
-  experimentalRate: 0.5,
-  delta: 0,
-  nMaxPerArm: 60,
-  looks: { kind: "list", sizes: [20, 40, 60] },
-  rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
-  safety: null,
-};
 
 const single = (pending: number, enrolled = 21 + pending): ReviewInput => ({
-  design: SINGLE,
+  design: SINGLE_ARM_DEMO_DESIGN,
   arms: [{ id: 7, label: "Arm A", role: "single" }],
   looks: [{ analysisId: 102, lookNumber: 2, cutoffDate: "2026-03-31", counts: [{ armId: 7, enrolled, treated: 20, evaluable: 20, responders: 6, toxicities: 3, pending }] }],
   analysisId: 102,
@@ -47,7 +24,7 @@ const single = (pending: number, enrolled = 21 + pending): ReviewInput => ({
 });
 
 const two = (pendingT: number, pendingC: number): ReviewInput => ({
-  design: TWO,
+  design: TWO_ARM_DEMO_DESIGN,
   arms: [
     { id: 1, label: "Experimental", role: "experimental" },
     { id: 2, label: "Control", role: "control" },
@@ -78,12 +55,12 @@ describe("whatIf", () => {
   it("single arm: equals the engine's decision and predictive probability at the hypothetical counts", () => {
     for (const [k, y] of [[10, 0], [10, 2], [10, 5], [10, 10], [20, 3], [20, 9], [7, 1]] as const) {
       const a = whatIf(single(1), { arms: "single", patients: k, responders: y });
-      const ev = decideAtLook({ ...SINGLE, safety: null }, { n: 20 + k, responders: 6 + y });
+      const ev = decideAtLook({ ...SINGLE_ARM_DEMO_DESIGN, safety: null }, { n: 20 + k, responders: 6 + y });
       expect(a.to).toEqual({ n: 20 + k, responders: 6 + y, nControl: null, respondersControl: null });
       expect(a.decision).toEqual(ev.decision);
       expect(a.final).toBe(20 + k === 40);
       expect(a.plannedLook).toBe([30, 40].includes(20 + k) ? 20 + k : null);
-      if (20 + k < 40) expect(a.predictiveProbability).toBe(predictiveProbabilitySingleArm({ prior: resolvePrior(SINGLE.prior), x: 6 + y, n: 20 + k, nMax: 40, p0: 0.2, thetaT: 0.9 }));
+      if (20 + k < 40) expect(a.predictiveProbability).toBe(predictiveProbabilitySingleArm({ prior: resolvePrior(SINGLE_ARM_DEMO_DESIGN.prior), x: 6 + y, n: 20 + k, nMax: 40, p0: 0.2, thetaT: 0.9 }));
       else expect(a.predictiveProbability).toBeNull();
       // The decision agrees with the boundary at that count.
       if (a.boundary.futilityMax !== null && 6 + y <= a.boundary.futilityMax) expect(["stop", "final"]).toContain(a.decision.action);
@@ -91,12 +68,12 @@ describe("whatIf", () => {
   });
 
   it("two arms: equals the engine at the hypothetical counts", () => {
-    const rule = twoArmFinalRule(resolvePrior(TWO.priorT), resolvePrior(TWO.priorC), 60, 0, 0.95);
+    const rule = twoArmFinalRule(resolvePrior(TWO_ARM_DEMO_DESIGN.priorT), resolvePrior(TWO_ARM_DEMO_DESIGN.priorC), 60, 0, 0.95);
     for (const [kT, yT, kC, yC] of [[20, 10, 20, 5], [20, 4, 20, 10], [40, 30, 40, 10], [10, 5, 12, 2]] as const) {
       const a = whatIf(two(0, 0), { arms: "two", patientsT: kT, respondersT: yT, patientsC: kC, respondersC: yC });
-      const ev = decideAtLook(TWO, { nT: 20 + kT, respondersT: 9 + yT, nC: 20 + kC, respondersC: 5 + yC });
+      const ev = decideAtLook(TWO_ARM_DEMO_DESIGN, { nT: 20 + kT, respondersT: 9 + yT, nC: 20 + kC, respondersC: 5 + yC });
       expect(a.decision).toEqual(ev.decision);
-      if (!a.final) expect(a.predictiveProbability).toBe(predictiveProbabilityTwoArm({ priorT: resolvePrior(TWO.priorT), priorC: resolvePrior(TWO.priorC), xT: 9 + yT, nT: 20 + kT, xC: 5 + yC, nC: 20 + kC, finalRule: rule }));
+      if (!a.final) expect(a.predictiveProbability).toBe(predictiveProbabilityTwoArm({ priorT: resolvePrior(TWO_ARM_DEMO_DESIGN.priorT), priorC: resolvePrior(TWO_ARM_DEMO_DESIGN.priorC), xT: 9 + yT, nT: 20 + kT, xC: 5 + yC, nC: 20 + kC, finalRule: rule }));
     }
   });
 

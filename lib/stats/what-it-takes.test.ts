@@ -7,34 +7,11 @@
 import { describe, expect, it } from "vitest";
 import { decideAtLook } from "./decision";
 import { expandLooks } from "./looks";
-import type { Design, SingleArmDesign, TwoArmDesign } from "./types";
+import type { Design, SingleArmDesign } from "./types";
 import { singleArmWhatItTakes, twoArmWhatItTakes } from "./what-it-takes";
 import { StatsDomainError } from "./validate";
+import { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN } from "@/db/seeds/demo-designs";
 
-// The demo designs (db/seeds/demo.ts), copied so this pure test needs no database module.
-const SINGLE: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "beta", a: 0.6, b: 0.4 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 40,
-  looks: { kind: "list", sizes: [10, 20, 30, 40] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: { qmax: 0.3, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
-};
-const TWO: TwoArmDesign = {
-  arms: "two",
-  priorT: { family: "uniform" },
-  priorC: { family: "informative", mean: 0.3, ess: 10 },
-  controlRate: 0.3,
-  experimentalRate: 0.5,
-  delta: 0,
-  nMaxPerArm: 60,
-  looks: { kind: "list", sizes: [20, 40, 60] },
-  rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
-  safety: null,
-};
 
 type Outcome = "futility" | "continue" | "efficacy";
 
@@ -55,33 +32,33 @@ function extremes(outcomes: Outcome[], want: Outcome): { min: number | null; max
 
 describe("singleArmWhatItTakes", () => {
   it("equals a brute-force search with decideAtLook for the single-arm demo design, from every count", () => {
-    const looks = expandLooks(SINGLE.looks, SINGLE.nMax);
+    const looks = expandLooks(SINGLE_ARM_DEMO_DESIGN.looks, SINGLE_ARM_DEMO_DESIGN.nMax);
     const memo = new Map<string, Outcome>();
     const at = (n: number, x: number) => {
       const k = `${n}:${x}`;
-      if (!memo.has(k)) memo.set(k, classify(SINGLE, { n, responders: x }));
+      if (!memo.has(k)) memo.set(k, classify(SINGLE_ARM_DEMO_DESIGN, { n, responders: x }));
       return memo.get(k)!;
     };
     let checked = 0;
-    for (let n = 0; n < SINGLE.nMax; n++)
+    for (let n = 0; n < SINGLE_ARM_DEMO_DESIGN.nMax; n++)
       for (let x = 0; x <= n; x++) {
-        const w = singleArmWhatItTakes(SINGLE, { responders: x, evaluable: n });
+        const w = singleArmWhatItTakes(SINGLE_ARM_DEMO_DESIGN, { responders: x, evaluable: n });
         const later = looks.filter((L) => L > n);
         expect(w.looks.map((l) => l.n)).toEqual(later);
-        expect(w.remaining).toBe(SINGLE.nMax - n);
+        expect(w.remaining).toBe(SINGLE_ARM_DEMO_DESIGN.nMax - n);
         w.looks.forEach((row) => {
           const outcomes = Array.from({ length: row.ahead + 1 }, (_, y) => at(row.n, x + y));
           expect(row.efficacyAtLeast).toBe(extremes(outcomes, "efficacy").min);
           expect(row.futilityAtMost).toBe(extremes(outcomes, "futility").max);
           checked++;
         });
-        expect(w.final?.n).toBe(SINGLE.nMax);
+        expect(w.final?.n).toBe(SINGLE_ARM_DEMO_DESIGN.nMax);
       }
     expect(checked).toBeGreaterThan(1000);
   });
 
   it("a posterior-probability rule with efficacy stopping also equals the brute-force search", () => {
-    const d: SingleArmDesign = { ...SINGLE, looks: { kind: "every", first: 8, every: 8 }, rule: { kind: "posterior", thetaT: 0.9, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.98 }, safety: null };
+    const d: SingleArmDesign = { ...SINGLE_ARM_DEMO_DESIGN, looks: { kind: "every", first: 8, every: 8 }, rule: { kind: "posterior", thetaT: 0.9, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.98 }, safety: null };
     for (const [x, n] of [[0, 0], [2, 8], [5, 12], [9, 16], [1, 16], [12, 33]] as const) {
       const w = singleArmWhatItTakes(d, { responders: x, evaluable: n });
       for (const row of w.looks) {
@@ -135,16 +112,16 @@ describe("singleArmWhatItTakes", () => {
   });
 
   it("says so when the final analysis is already won or out of reach", () => {
-    expect(singleArmWhatItTakes(SINGLE, { responders: 20, evaluable: 30 }).final?.sentence).toMatch(/succeeds whatever the remaining 10 patients do/);
-    expect(singleArmWhatItTakes(SINGLE, { responders: 0, evaluable: 35 }).final?.sentence).toMatch(/^No outcome of the remaining 5 patients can make the final analysis succeed/);
-    expect(singleArmWhatItTakes(SINGLE, { responders: 10, evaluable: 40 }).final).toBeNull();
+    expect(singleArmWhatItTakes(SINGLE_ARM_DEMO_DESIGN, { responders: 20, evaluable: 30 }).final?.sentence).toMatch(/succeeds whatever the remaining 10 patients do/);
+    expect(singleArmWhatItTakes(SINGLE_ARM_DEMO_DESIGN, { responders: 0, evaluable: 35 }).final?.sentence).toMatch(/^No outcome of the remaining 5 patients can make the final analysis succeed/);
+    expect(singleArmWhatItTakes(SINGLE_ARM_DEMO_DESIGN, { responders: 10, evaluable: 40 }).final).toBeNull();
   });
 
   it("refuses counts outside the design", () => {
-    expect(() => singleArmWhatItTakes(SINGLE, { responders: 5, evaluable: 4 })).toThrow(StatsDomainError);
-    expect(() => singleArmWhatItTakes(SINGLE, { responders: 1, evaluable: 41 })).toThrow(StatsDomainError);
-    expect(() => singleArmWhatItTakes(SINGLE, { responders: 1, evaluable: 38, pending: 3 })).toThrow(StatsDomainError);
-    expect(() => singleArmWhatItTakes(SINGLE, { responders: 1, evaluable: 3, pending: -1 })).toThrow(StatsDomainError);
+    expect(() => singleArmWhatItTakes(SINGLE_ARM_DEMO_DESIGN, { responders: 5, evaluable: 4 })).toThrow(StatsDomainError);
+    expect(() => singleArmWhatItTakes(SINGLE_ARM_DEMO_DESIGN, { responders: 1, evaluable: 41 })).toThrow(StatsDomainError);
+    expect(() => singleArmWhatItTakes(SINGLE_ARM_DEMO_DESIGN, { responders: 1, evaluable: 38, pending: 3 })).toThrow(StatsDomainError);
+    expect(() => singleArmWhatItTakes(SINGLE_ARM_DEMO_DESIGN, { responders: 1, evaluable: 3, pending: -1 })).toThrow(StatsDomainError);
   });
 });
 
@@ -153,7 +130,7 @@ describe("twoArmWhatItTakes", () => {
     const memo = new Map<string, Outcome>();
     const at = (n: number, xT: number, xC: number) => {
       const k = `${n}:${xT}:${xC}`;
-      if (!memo.has(k)) memo.set(k, classify(TWO, { nT: n, respondersT: xT, nC: n, respondersC: xC }));
+      if (!memo.has(k)) memo.set(k, classify(TWO_ARM_DEMO_DESIGN, { nT: n, respondersT: xT, nC: n, respondersC: xC }));
       return memo.get(k)!;
     };
     // The seeded look (9 of 20 against 5 of 20), states at each planned look, unequal arms, the start.
@@ -168,7 +145,7 @@ describe("twoArmWhatItTakes", () => {
       [30, 45, 10, 41],
     ] as const;
     for (const [xT, nT, xC, nC] of states) {
-      const w = twoArmWhatItTakes(TWO, { respondersT: xT, evaluableT: nT, respondersC: xC, evaluableC: nC });
+      const w = twoArmWhatItTakes(TWO_ARM_DEMO_DESIGN, { respondersT: xT, evaluableT: nT, respondersC: xC, evaluableC: nC });
       expect(w.looks.map((l) => l.n)).toEqual([20, 40, 60].filter((L) => L > Math.max(nT, nC)));
       for (const row of w.looks) {
         for (let yC = 0; yC <= row.aheadC; yC++) {
@@ -181,7 +158,7 @@ describe("twoArmWhatItTakes", () => {
   });
 
   it("gives the final analysis in a sentence, at the control arm's observed rate", () => {
-    const w = twoArmWhatItTakes(TWO, { respondersT: 9, evaluableT: 20, respondersC: 5, evaluableC: 20, pendingT: 1, pendingC: 2 });
+    const w = twoArmWhatItTakes(TWO_ARM_DEMO_DESIGN, { respondersT: 9, evaluableT: 20, respondersC: 5, evaluableC: 20, pendingT: 1, pendingC: 2 });
     const f = w.final!;
     expect(f.aheadT).toBe(40);
     expect(f.expectedControl).toBe(10); // 5/20 of the 40 still to come

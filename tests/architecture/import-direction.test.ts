@@ -48,7 +48,8 @@ const isTest = (p: string) => /\.test\.tsx?$/.test(p);
 
 /** Why an edge is against the direction, or null when it is allowed. */
 export function violation({ from, to }: ImportEdge): string | null {
-  if (under(from, "lib/stats") && !under(to, "lib/stats")) return "lib/stats is pure: it imports only lib/stats";
+  // The engine's tests may read the demo designs (pure data) to check the designs the seed writes.
+  if (under(from, "lib/stats") && !under(to, "lib/stats") && !(isTest(from) && to === "db/seeds/demo-designs")) return "lib/stats is pure: it imports only lib/stats";
   if (under(from, "components") && (under(to, "app") || under(to, "db"))) return "components import neither app/ nor db/";
   if (under(from, "lib") && (under(to, "app") || under(to, "components"))) return "lib imports neither app/ nor components/";
   if (under(from, "db")) {

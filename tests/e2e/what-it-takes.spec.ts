@@ -9,32 +9,8 @@ import { expect, test, type Page } from "@playwright/test";
 import { signIn } from "./support/accounts";
 import { decideAtLook } from "@/lib/stats/decision";
 import { singleArmWhatItTakes, twoArmWhatItTakes } from "@/lib/stats/what-it-takes";
-import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
+import { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN } from "@/db/seeds/demo-designs";
 
-// The demo designs of db/seeds/demo.ts (that module reaches the database, so a browser test copies them).
-const SINGLE_ARM_DEMO_DESIGN: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "beta", a: 0.6, b: 0.4 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 40,
-  looks: { kind: "list", sizes: [10, 20, 30, 40] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: { qmax: 0.3, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
-};
-const TWO_ARM_DEMO_DESIGN: TwoArmDesign = {
-  arms: "two",
-  priorT: { family: "uniform" },
-  priorC: { family: "informative", mean: 0.3, ess: 10 },
-  controlRate: 0.3,
-  experimentalRate: 0.5,
-  delta: 0,
-  nMaxPerArm: 60,
-  looks: { kind: "list", sizes: [20, 40, 60] },
-  rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
-  safety: null,
-};
 
 // The review page computes on the server and Plotly loads lazily: allow for a loaded shared machine.
 test.describe.configure({ timeout: 300_000 });
