@@ -100,8 +100,6 @@ export const FREE_TEXT: Record<string, TextClass> = {
   "users.password_hash": "secret",
 };
 
-export const isClosedText = (table: string, column: string): boolean => FREE_TEXT[`${table}.${column}`] === "closed";
-
 /**
  * What the blinded account may SELECT. "all": the whole table; a column list: only those columns
  * (a column-level grant, so SELECT * and any other column are refused); "none": nothing. Views

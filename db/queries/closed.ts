@@ -72,10 +72,6 @@ export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCo
     );
 }
 
-export async function fetchPatientOutcomes(analysisId: number, tx: ClosedReader): Promise<PatientOutcomeRow[]> {
-  return tx<PatientOutcomeRow>("patient_outcomes").where({ analysis_id: analysisId }).orderBy("source_line");
-}
-
 export type PatientOutcomeInput = Omit<PatientOutcomeRow, "id" | "analysis_id">;
 
 export async function replacePatientOutcomes(tx: Tx, analysisId: number, rows: PatientOutcomeInput[]): Promise<void> {
@@ -83,10 +79,6 @@ export async function replacePatientOutcomes(tx: Tx, analysisId: number, rows: P
   for (let i = 0; i < rows.length; i += 500) {
     await tx("patient_outcomes").insert(rows.slice(i, i + 500).map((r) => ({ ...r, analysis_id: analysisId })));
   }
-}
-
-export async function fetchRecommendationRationales(trialId: number, tx: ClosedReader) {
-  return tx("recommendations").where({ trial_id: trialId }).select("id", "analysis_id", "rationale", "decision", "corrects_id", "created_at").orderBy("id", "desc");
 }
 
 /** CLOSED: patient rows of a look with their arm label, for the data grid. */

@@ -15,11 +15,6 @@ function toRecord(r: DesignRow): DesignRecord {
   return { ...r, spec: parseStoredDesign(r.spec) };
 }
 
-export async function fetchDesigns(trialId: number, tx: Tx = db): Promise<DesignRecord[]> {
-  const rows = await tx<DesignRow>("designs").where({ trial_id: trialId }).orderBy("version", "desc");
-  return rows.map(toRecord);
-}
-
 export async function fetchDesign(designId: number, tx: Tx = db): Promise<DesignRecord | undefined> {
   const r = await tx<DesignRow>("designs").where({ id: designId }).first();
   return r ? toRecord(r) : undefined;

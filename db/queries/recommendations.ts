@@ -70,11 +70,6 @@ export async function fetchRecommendationsClosed(trialId: number, analysisId?: n
   return (await q).map(withFlag);
 }
 
-export async function fetchRecommendationClosed(id: number, tx: Tx = db): Promise<RecommendationClosed | undefined> {
-  const r = await closedQuery(tx).where("r.id", id).first();
-  return r ? withFlag(r) : undefined;
-}
-
 /**
  * Ids of the recommendations of an analysis, made on its review version in force, that no later
  * entry corrects (normally at most one). Recommendations of an earlier review version are superseded.

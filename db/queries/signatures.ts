@@ -46,6 +46,3 @@ export async function insertSignature(
   return { id, ...row };
 }
 
-export async function fetchSignature(tx: Tx, id: number): Promise<SignatureRow | undefined> {
-  return tx<SignatureRow>("signatures").where({ id }).first();
-}

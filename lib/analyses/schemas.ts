@@ -130,9 +130,3 @@ export const uploadConfirmQuerySchema = z.object({
   fileName: z.string().trim().max(200).optional(),
 });
 
-/** An issue list keyed by dotted path ("counts.0.responders"), for showing errors next to inputs. */
-export function issuesByPath(issues: Array<{ path: string; message: string }>): Record<string, string> {
-  const out: Record<string, string> = {};
-  for (const i of issues) if (!(i.path in out)) out[i.path] = i.message;
-  return out;
-}

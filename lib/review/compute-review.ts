@@ -590,14 +590,6 @@ export function reproducibilityRecord(input: ReviewInput, review: Review = compu
   };
 }
 
-/** The reviewer's interval question for one arm of a review: P(lo < p <= hi | data). */
-export function intervalProbability(review: Review, armId: number, lo: number, hi: number): { armId: number; lo: number; hi: number; probability: number } {
-  const arm = review.arms.find((a) => a.armId === armId);
-  if (!arm) throw new StatsDomainError("arm", armId, "is not an arm of this trial");
-  if (!(lo >= 0 && hi <= 1 && lo < hi)) throw new StatsDomainError("lo, hi", `${lo}, ${hi}`, "must satisfy 0 <= lo < hi <= 1");
-  return { armId, lo, hi, probability: mixtureIntervalProbability(arm.posterior, lo, hi) };
-}
-
 /**
  * The posterior of one arm at one look, without the rest of the review (the interval question asks
  * for it as the reviewer types, so it must be cheap).
