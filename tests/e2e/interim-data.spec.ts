@@ -237,7 +237,7 @@ test("the audit trail: the statistician sees the closed count entries in their o
   const grid = page.getByRole("region", { name: "Audit trail entries" });
   await expect(grid.getByText("Patient data uploaded").first()).toBeVisible();
   // The grid draws only the rows in view (taller now that changes wrap): filter to the entries asked about.
-  await page.getByLabel("Filter by action").selectOption("Counts entered");
+  await page.getByLabel("Action", { exact: true }).selectOption("Counts entered");
   await expect(grid.getByText("Counts entered", { exact: true }).first()).toBeVisible();
   // The seed's entries are shown as made by "demo data", and changes as words, not JSON.
   await expect(grid.getByText("demo data").first()).toBeVisible();

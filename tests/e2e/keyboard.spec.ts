@@ -143,7 +143,7 @@ test("every control of the design form is reached with Tab and works by keyboard
   // The empty form by keyboard: refused, focus on the first field to fix.
   await newTrial.getByRole("button", { name: "Create trial" }).focus();
   await page.keyboard.press("Enter");
-  await expect(newTrial.getByText("Enter a title.")).toBeVisible({ timeout: 60_000 });
+  await expect(newTrial.getByText("Enter a title.", { exact: true })).toBeVisible({ timeout: 60_000 });
   await expect(newTrial.locator('[aria-invalid="true"]').first()).toBeFocused();
   await newTrial.getByLabel("Trial code").fill(`E2E-K-${suffix}`);
   await newTrial.getByLabel("Title").fill(`Invented keyboard study E2E-K-${suffix}`);
