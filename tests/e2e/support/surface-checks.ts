@@ -68,7 +68,8 @@ export const noGreekOnlyLabel: SurfaceCheck = {
 export const noChartToolbar: SurfaceCheck = {
   name: "no chart toolbar",
   run: (page) =>
-    page.evaluate(() => [...document.querySelectorAll(".modebar, .modebar-container")].map(() => "a chart shows the chart library's toolbar")),
+    // Plotly leaves an empty .modebar-container even with displayModeBar: false; no group or button may be in it.
+    page.evaluate(() => [...document.querySelectorAll(".modebar-group, .modebar-btn")].slice(0, 1).map(() => "a chart shows the chart library's toolbar")),
 };
 
 /** Every chart has a visible title (components/charts/chart-figure.tsx). */
