@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { randomUUID } from "node:crypto";
 import { db } from "@/db/knex";
 import { calibrateSingleArm } from "@/lib/stats/calibration";
-import type { SingleArmDesign } from "@/lib/stats/types";
+import type { TwoArmDesign } from "@/lib/stats/types";
 import { cancelCalibrationJob, getCalibrationJob, MAX_RUNNING_JOBS, startCalibrationJob } from "@/lib/jobs/calibration-jobs";
 import { ABANDONED_MESSAGE, STALE_AFTER_MS } from "@/lib/jobs/calibration-job-json";
 import { HttpError } from "@/lib/http";
@@ -81,10 +81,19 @@ describe("calibration jobs in MariaDB", () => {
   });
 
   it("stops at the next chunk after a cancel recorded in the table, keeping what it found", async () => {
-    // Continuous monitoring to Nmax 60 over 40 thetaT values: long enough to cancel midway.
-    const heavy: SingleArmDesign = { ...design, nMax: 60, looks: { kind: "every", first: 5, every: 1 } };
-    const thetaTGrid = Array.from({ length: 40 }, (_, i) => 0.8 + i * 0.005);
-    const j = await startCalibrationJob({ trialId, userId, design: heavy, ...grid, thetaTGrid });
+    // A search the engine needs seconds for (two arms, 100 per arm, 40 x 40 thresholds; about 10 s of
+    // CPU in npm run bench), cut into 40 slices: the cancel lands after the first slice, tens of
+    // slices before the end, whatever the machine's speed (the single-arm searches now take milliseconds).
+    const heavy: TwoArmDesign = {
+      ...smallTwoArmDesign,
+      controlRate: 0.3,
+      experimentalRate: 0.5,
+      nMaxPerArm: 100,
+      looks: { kind: "every", first: 10, every: 10 },
+      rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
+    };
+    const steps = (from: number) => Array.from({ length: 40 }, (_, i) => Math.round((from + i * 0.005) * 1e9) / 1e9);
+    const j = await startCalibrationJob({ trialId, userId, design: heavy, thetaTGrid: steps(0.8), thetaLGrid: steps(0), thetaUGrid: null, typeIErrorLimit: 0.1, powerTarget: 0.8, keep: 4 });
     await until(() => getCalibrationJob(trialId, j.id), (v) => (v?.evaluated ?? 0) > 0);
     const asked = await cancelCalibrationJob(trialId, j.id);
     expect(asked?.cancelRequested).toBe(true);
