@@ -5,13 +5,23 @@ import { defineConfig } from "@playwright/test";
 const port = Number(process.env.CAIRN_E2E_PORT ?? 3100);
 const smtpPort = Number(process.env.CAIRN_E2E_SMTP_PORT ?? 2526);
 const baseURL = `http://localhost:${port}`;
+/** Specs that only read: they may run beside anything. */
+const READS = ["page-sweep.spec.ts", "blinding-matrix.spec.ts", "headers.spec.ts"].map((f) => `**/${f}`);
 
 export default defineConfig({
   testDir: "tests/e2e",
   // Per port, so parallel runs on one machine do not delete each other's traces.
   outputDir: `test-results/e2e-${port}`,
-  fullyParallel: false,
-  workers: 1,
+  // Made once before any test: the authorization matrix's fixture (its ids reach workers by environment).
+  globalSetup: "./tests/e2e/support/global-setup.ts",
+  // Two lanes side by side: the flows change the seeded data and run one at a time, in file order;
+  // the reads (every page and route as every role, nothing changed) run beside them and spread over
+  // whatever worker is free. Both lanes hold on a two-core machine (docs: DEVELOPERS.md, "Browser tests").
+  workers: Number(process.env.CAIRN_E2E_WORKERS ?? 2),
+  projects: [
+    { name: "reads", testMatch: READS, fullyParallel: true },
+    { name: "flows", testIgnore: READS, fullyParallel: false, workers: 1 },
+  ],
   retries: 0,
   // Bounds on a hang, not latency checks: the suite runs on a shared two-core machine where one
   // server action can take tens of seconds under load. Assertions wait for what the page shows.

@@ -1,9 +1,16 @@
 /**
  * Load test against a running production server on loopback (autocannon).
  *   npx tsx scripts/load-test.ts [--base http://localhost:3000] [--seconds 60] [--connections 50] [--during-calibration] [--only interval]
- * Signs in as the demo DMC member, then for each target route runs `connections` concurrent
- * keep-alive clients for `seconds` and prints requests/s, p50/p95/p99 latency (exact, from every
- * response time) and errors, after an unrecorded 5 s warm-up per route. With --during-calibration a 40 x 40 calibration runs on the server at
+ *                                [--users N] [--rate R]
+ * Signs in as the demo DMC member (or, with --users N, as N different reviewers made by
+ * scripts/load-accounts.ts, one per client in turn), then for each target route runs `connections`
+ * concurrent keep-alive clients for `seconds` and prints requests/s, p50/p95/p99 latency (exact, from
+ * every response time) and errors, after an unrecorded 5 s warm-up per route. Without --rate each
+ * client sends its next request as soon as the last is answered (saturation: the latency is then
+ * mostly queueing, and the figure that matters is requests/s); with --rate R each client asks R times a
+ * second, as a person does (the closed review's interval question waits 250 ms after the last
+ * keystroke, so one person asks at most 4 times a second), and the percentiles also come from
+ * autocannon's histogram corrected for coordinated omission. With --during-calibration a 40 x 40 calibration runs on the server at
  * the same time, to show that CPU-heavy work stays off the request path. Against the server that
  * `scripts/up` started, it ends with the resident memory of each web process.
  */
@@ -24,11 +31,22 @@ const duringCalibration = process.argv.includes("--during-calibration");
 const WARM_UP_SECONDS = 5;
 /** Runs only the routes whose name contains this text (for a quicker look at one route). */
 const only = arg("only", "");
+const users = Number(arg("users", "1"));
+const rate = Number(arg("rate", "0"));
 
 function percentile(sorted: number[], p: number): number {
   if (!sorted.length) return NaN;
   const i = Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1));
   return sorted[i];
+}
+
+/** Signs in N reviewers (made once by scripts/load-accounts.ts in the server's database). */
+async function reviewerCookies(n: number): Promise<string[]> {
+  const out = execFileSync("bash", ["scripts/with-env", "npx", "tsx", "--conditions=react-server", "scripts/load-accounts.ts", String(n)], { cwd: path.resolve(import.meta.dirname, ".."), encoding: "utf8" });
+  const { accounts, password } = JSON.parse(out.trim().split("\n").pop()!) as { accounts: string[]; password: string };
+  const cookies: string[] = [];
+  for (const email of accounts) cookies.push(await signInCookie(base, email, password));
+  return cookies;
 }
 
 async function findTargets(cookie: string) {
@@ -46,18 +64,30 @@ async function findTargets(cookie: string) {
 }
 
 /** A short unrecorded run first, so the figures describe a warmed-up server rather than its JIT. */
-async function warmUp(path: string, cookie: string) {
-  await autocannon({ url: `${base}${path}`, connections, duration: WARM_UP_SECONDS, headers: { cookie }, timeout: 10 });
+/** One cookie per client, in turn over the signed-in users: the clients are different people. */
+function options(path: string, cookies: string[], duration: number): autocannon.Options {
+  let next = 0;
+  return {
+    url: `${base}${path}`,
+    connections,
+    duration,
+    headers: { cookie: cookies[0] },
+    setupClient: (client) => client.setHeaders({ cookie: cookies[next++ % cookies.length] }),
+    timeout: 10,
+    ...(rate > 0 ? { connectionRate: rate } : {}),
+  };
 }
 
-async function run(name: string, path: string, cookie: string) {
-  await warmUp(path, cookie);
+async function warmUp(path: string, cookies: string[]) {
+  await autocannon(options(path, cookies, WARM_UP_SECONDS));
+}
+
+async function run(name: string, path: string, cookies: string[]) {
+  await warmUp(path, cookies);
   const latencies: number[] = [];
   const statusCounts = new Map<number, number>();
   const result = await new Promise<autocannon.Result>((resolve, reject) => {
-    const instance = autocannon({ url: `${base}${path}`, connections, duration: seconds, headers: { cookie }, timeout: 10 }, (err, res) =>
-      err ? reject(err) : resolve(res),
-    );
+    const instance = autocannon(options(path, cookies, seconds), (err, res) => (err ? reject(err) : resolve(res)));
     instance.on("response", (_client, statusCode, _bytes, responseTime) => {
       latencies.push(responseTime);
       statusCounts.set(statusCode, (statusCounts.get(statusCode) ?? 0) + 1);
@@ -73,12 +103,14 @@ async function run(name: string, path: string, cookie: string) {
     "p50 ms": percentile(latencies, 50).toFixed(1),
     "p95 ms": percentile(latencies, 95).toFixed(1),
     "p99 ms": percentile(latencies, 99).toFixed(1),
+    ...(rate > 0 ? { "corrected p97.5 ms": result.latency.p97_5, "corrected p99 ms": result.latency.p99 } : {}),
     errors: result.errors + result.timeouts + non2xx,
   };
 }
 
 const cookie = await signInCookie(base, "dmc@cairn.example", "demo-dmc-pass");
 const targets = await findTargets(cookie);
+const cookies = users > 1 ? await reviewerCookies(users) : [cookie];
 let calibration: Promise<unknown> | null = null;
 let loadFinished = false;
 if (duringCalibration) {
@@ -123,10 +155,12 @@ if (duringCalibration) {
   })();
 }
 const rows = [];
-for (const t of targets.filter((t) => t.name.includes(only))) rows.push(await run(t.name, t.path, cookie));
+for (const t of targets.filter((t) => t.name.includes(only))) rows.push(await run(t.name, t.path, cookies));
 loadFinished = true;
 await calibration;
-console.log(`\nLoad test ${new Date().toISOString()} · ${connections} connections · ${seconds} s per route after a ${WARM_UP_SECONDS} s warm-up${duringCalibration ? " · during a calibration" : ""}`);
+console.log(
+  `\nLoad test ${new Date().toISOString()} · ${connections} clients as ${cookies.length} different user${cookies.length === 1 ? "" : "s"} · ${rate > 0 ? `${rate} requests/s per client` : "back to back (saturation)"} · ${seconds} s per route after a ${WARM_UP_SECONDS} s warm-up${duringCalibration ? " · during a calibration" : ""}`,
+);
 console.table(rows);
 
 /** Resident memory of the web processes `scripts/up` started (its launcher's children), if this is that server. */

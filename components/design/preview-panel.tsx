@@ -15,8 +15,8 @@ import { Banner } from "@/components/ui/banner";
 import { formatBoundary, formatProbability } from "@/lib/format";
 import type { DesignPreview, SingleArmPreview, TwoArmPreview } from "@/lib/design/preview";
 import type { Design } from "@/lib/stats/types";
+import { PREVIEW_DEBOUNCE_MS } from "@/lib/design/form-model";
 
-export const PREVIEW_DEBOUNCE_MS = 400;
 
 export function usePreview(trialId: number, design: Design | null) {
   const [result, setResult] = useState<{ design: Design; preview: DesignPreview } | null>(null);

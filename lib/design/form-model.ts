@@ -6,6 +6,9 @@
 import type { Design, MonitoringRule, PriorSpec } from "@/lib/stats/types";
 import { singleArmDesignSchema, twoArmDesignSchema } from "@/lib/stats/design-schema";
 
+/** The design studio computes its preview once the inputs have been still this long (ms). */
+export const PREVIEW_DEBOUNCE_MS = 400;
+
 export type PriorFamily = PriorSpec["family"];
 export type PriorForm = { family: PriorFamily; a: string; b: string; mean: string; ess: string; weight: string };
 

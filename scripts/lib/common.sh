@@ -16,7 +16,7 @@ SECRETS_FILE="${CAIRN_SECRETS_FILE:-$ROOT/.data/secrets.env}"
 export CAIRN_DB_HOST="${CAIRN_DB_HOST:-127.0.0.1}"
 export CAIRN_DB_PORT="${CAIRN_DB_PORT:-3407}"
 
-log() { printf '\033[1;33m[cairn]\033[0m %s\n' "$*" >&2; }
+log() { printf '\033[1;33m[cairn]\033[0m %s %s\n' "$(date -u +%H:%M:%S)" "$*" >&2; }
 die() { printf '\033[1;31m[cairn] %s\033[0m\n' "$*" >&2; exit 1; }
 
 export NEXT_TELEMETRY_DISABLED=1

@@ -11,26 +11,18 @@
  * Writes are requested with invalid bodies or empty forms, so nothing changes.
  */
 import { expect, test, request as playwrightRequest, type APIRequestContext } from "@playwright/test";
-import { execFileSync } from "node:child_process";
 import { readFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import path from "node:path";
 import { ACCOUNTS } from "./support/accounts";
 import { ACTION_REFUSAL, AUTHORIZATION_MATRIX, BLINDED_ROLES, ROLES, findOutcomeData, type MatrixRole, type MatrixRow } from "./support/authorization-matrix";
 import { FIXTURE_CLOSED, OUTSIDER } from "./support/matrix-fixture-data";
+import { matrixIds, type MatrixIds, type TrialIds, type TrialKey } from "./support/matrix-ids";
 
-type TrialIds = { trial: number; analysis: number; arm: number; design: number; meeting?: number; packetOpen?: number; packetClosed?: number };
-type TrialKey = "single" | "two" | "fixture";
 const TRIAL_KEYS: TrialKey[] = ["single", "two", "fixture"];
 const ROOT = path.resolve(import.meta.dirname, "../..");
-
-// The fixture is made once per run, before any test, straight in the test database (as the seed is).
-const fixtureOut = execFileSync("npx", ["tsx", "--conditions=react-server", "tests/e2e/support/matrix-fixture.ts"], {
-  cwd: ROOT,
-  env: { ...process.env, CAIRN_DB_NAME: process.env.CAIRN_E2E_DB ?? "cairn_e2e" },
-  encoding: "utf8",
-});
-const ids = JSON.parse(fixtureOut.trim().split("\n").pop()!) as Record<TrialKey, TrialIds> & { code: string };
+// The fixture is made once per run, before any test (support/global-setup.ts); read in the tests, not here.
+let ids: MatrixIds;
 
 /** Server action ids by "file#export", from the build's manifest (the same ids the pages' forms post). */
 function actionIds(): Map<string, string> {
@@ -70,6 +62,7 @@ async function signedInContext(baseURL: string, email: string, password: string)
 
 test.beforeAll(async ({ baseURL }) => {
   test.setTimeout(180_000);
+  ids = matrixIds();
   actions = actionIds();
   for (const role of ROLES) {
     if (role === "anonymous") contexts.set(role, await playwrightRequest.newContext({ baseURL }));
