@@ -16,7 +16,7 @@ import { formatBoundary, formatProbability } from "@/lib/format";
 import type { DesignPreview, SingleArmPreview, TwoArmPreview } from "@/lib/design/preview";
 import type { Design } from "@/lib/stats/types";
 
-export const PREVIEW_DEBOUNCE_MS = 400;
+const PREVIEW_DEBOUNCE_MS = 400;
 
 export function usePreview(trialId: number, design: Design | null) {
   const [result, setResult] = useState<{ design: Design; preview: DesignPreview } | null>(null);

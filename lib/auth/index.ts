@@ -73,7 +73,7 @@ export async function mayCreateTrial(u: PublicUser): Promise<boolean> {
  * token alone decides (its owner, its one trial, its one role; every use audited) and the session
  * cookie is not read. Routes that do not pass it never accept a token: signatures stay interactive.
  */
-export type TrialAccessOptions = { bearer?: Request };
+type TrialAccessOptions = { bearer?: Request };
 
 /**
  * Trial-level check: 404 when the trial does not exist or the user is not on it (so its existence
