@@ -1,7 +1,7 @@
 import { NextResponse, type NextRequest } from "next/server";
 import { readSessionToken } from "@/lib/auth/session-token";
 import { NO_STORE, newCspNonce, pageContentSecurityPolicy } from "@/lib/security-headers";
-import { signInPathFor } from "@/lib/auth/return-to";
+import { PAGE_PATH_HEADER, signInPathFor } from "@/lib/auth/return-to";
 
 /**
  * First gate for pages only: no session means a redirect to sign-in. The real checks, role by
@@ -28,6 +28,8 @@ export async function proxy(req: NextRequest) {
   const next = () => {
     const headers = new Headers(req.headers);
     headers.set("Content-Security-Policy", csp);
+    // The page's own path, so a page that finds the session gone can send sign-in back to it.
+    headers.set(PAGE_PATH_HEADER, pathname + req.nextUrl.search);
     return withPolicy(NextResponse.next({ request: { headers } }), csp);
   };
   if (PUBLIC.some((p) => p.test(pathname))) return next();

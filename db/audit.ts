@@ -6,7 +6,7 @@ import type { AuditEventOpenRow, AuditEventRow, AuditVisibility } from "./types"
 
 export const GENESIS_HASH = "0".repeat(64);
 
-export type AuditInput = {
+type AuditInput = {
   actorUserId: number | null;
   actorEmail: string | null;
   trialId: number | null;
@@ -24,7 +24,7 @@ export type AuditInput = {
  * The canonical text a row's hash covers: every field but id and hash, in a fixed order. Keyed
  * rows also cover their scheme, so a row cannot be relabelled as a legacy (unkeyed) one.
  */
-export function auditHashInput(row: Omit<AuditEventRow, "id" | "hash">): string {
+function auditHashInput(row: Omit<AuditEventRow, "id" | "hash">): string {
   const occurred = row.occurred_at instanceof Date ? row.occurred_at.toISOString() : String(row.occurred_at);
   return JSON.stringify([
     occurred,
@@ -87,7 +87,7 @@ export async function recordAuditEvent(e: AuditInput): Promise<number> {
   return db.transaction((tx) => appendAudit(tx, e));
 }
 
-export type ChainCheck = { ok: true; checked: number } | { ok: false; checked: number; brokenAtId: number; problem: string };
+type ChainCheck = { ok: true; checked: number } | { ok: false; checked: number; brokenAtId: number; problem: string };
 
 /**
  * Walks the chain in id order and recomputes every hash (keyed rows need CAIRN_AUDIT_KEY). The
@@ -118,10 +118,10 @@ export async function verifyAuditChain(knex: Knex = db, key?: string): Promise<C
   return { ok: true, checked };
 }
 
-export type AuditFilter = { trialId?: number; openOnly: boolean; limit?: number };
+type AuditFilter = { trialId?: number; openOnly: boolean; limit?: number };
 
 /** The columns a blinded viewer's audit query selects: no hash, previous hash or scheme. */
-export const AUDIT_OPEN_COLUMNS = ["id", "occurred_at", "actor_user_id", "actor_email", "trial_id", "action", "entity_type", "entity_id", "visibility", "old_values", "new_values", "reason"] as const;
+const AUDIT_OPEN_COLUMNS = ["id", "occurred_at", "actor_user_id", "actor_email", "trial_id", "action", "entity_type", "entity_id", "visibility", "old_values", "new_values", "reason"] as const;
 
 /**
  * Audit rows for a trial. Blinded viewers pass openOnly: closed rows are never selected, and

@@ -12,7 +12,7 @@
  */
 
 /** open: blinded roles read it; closed: only unblinded roles (arm-level data, outcomes, closed-session text); secret: nobody reads it back (credentials, keys, hashes that chain over closed rows). */
-export type TextClass = "open" | "closed" | "secret";
+type TextClass = "open" | "closed" | "secret";
 
 export const FREE_TEXT: Record<string, TextClass> = {
   "arms.label": "open",

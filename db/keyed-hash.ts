@@ -8,7 +8,7 @@ import "server-only";
  */
 import { createHmac, createHash } from "node:crypto";
 
-export type HashScheme = "sha256" | "hmac-sha256";
+type HashScheme = "sha256" | "hmac-sha256";
 /** What new rows are written with; "sha256" is read only, for rows written before keyed hashing. */
 export const CURRENT_HASH_SCHEME: HashScheme = "hmac-sha256";
 

@@ -36,8 +36,6 @@ export type TrialRow = {
 
 export type ArmRow = { id: number; trial_id: number; label: string; arm_role: "single" | "experimental" | "control"; sort_order: number };
 
-export type MembershipRow = { id: number; trial_id: number; user_id: number; role: TrialRole; created_at: Date };
-
 export type DesignRow = {
   id: number;
   trial_id: number;
@@ -162,8 +160,6 @@ export type MeetingRow = {
   updated_at: Date;
 };
 
-export type MeetingAttendeeRow = { id: number; meeting_id: number; user_id: number; attended: number | boolean | null };
-
 export type PacketAudience = "open" | "closed";
 /** A generated packet without its PDF bytes (listings never select them). */
 export type PacketMetaRow = {
@@ -182,7 +178,7 @@ export type PacketMetaRow = {
 export type PacketRow = PacketMetaRow & { pdf: Buffer };
 
 export type EmailKind = "packet_open" | "packet_closed_notice" | "meeting_reminder" | "password_link" | "password_changed" | "recommendation_letter";
-export type EmailStatus = "queued" | "sending" | "sent" | "failed";
+type EmailStatus = "queued" | "sending" | "sent" | "failed";
 export type EmailMessageRow = {
   id: number;
   /** null for account mails (set-password link, password-changed notice). */

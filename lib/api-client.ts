@@ -4,10 +4,10 @@
  * the server's own message, field errors keyed by path, or the CSV row-by-row problems.
  */
 export type CsvIssueJson = { line: number | null; column: string | null; message: string };
-export type PathIssueJson = { path: string; message: string };
+type PathIssueJson = { path: string; message: string };
 /** `pathIssues` keeps the zod issues in order, for forms that place them themselves. */
 export type ApiFailure = { ok: false; status: number; error: string; fieldErrors: Record<string, string>; pathIssues: PathIssueJson[]; issues: CsvIssueJson[] };
-export type ApiOutcome<T> = { ok: true; data: T } | ApiFailure;
+type ApiOutcome<T> = { ok: true; data: T } | ApiFailure;
 
 export async function callApi<T>(url: string, init: RequestInit): Promise<ApiOutcome<T>> {
   let res: Response;

@@ -6,7 +6,7 @@
  * Pure, no imports: client components and lib/http use it.
  */
 
-export type IssueLike = {
+type IssueLike = {
   path: ReadonlyArray<PropertyKey> | string;
   message: string;
   code?: string;

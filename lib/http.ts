@@ -40,14 +40,14 @@ export function noteCallerClearance(unblinded: boolean): void {
 }
 
 /** Runs fn with a fresh clearance record (blinded until lib/auth says otherwise). */
-export function withCallerClearance<T>(fn: () => Promise<T>): Promise<T> {
+function withCallerClearance<T>(fn: () => Promise<T>): Promise<T> {
   return callerClearance.run({ unblinded: false }, fn);
 }
 
 export const callerIsUnblinded = (): boolean => callerClearance.getStore()?.unblinded === true;
 
 /** What a blinded caller is told instead of an engine message. */
-export const GENERIC_ENGINE_MESSAGE = "The request cannot be computed from the stored data. An unblinded statistician can see the reason.";
+const GENERIC_ENGINE_MESSAGE = "The request cannot be computed from the stored data. An unblinded statistician can see the reason.";
 
 /** The message a server action may show for an error, under the same rule as errorResponse. */
 export function publicErrorMessage(e: unknown, unblinded: boolean): string {
@@ -94,7 +94,7 @@ export function errorResponse(e: unknown): NextResponse {
  * sends one on cross-site POST, PUT, PATCH and DELETE) must come from this site. Server actions
  * get the same check from Next itself; next-auth's own routes use its CSRF token.
  */
-export function isCrossSiteWrite(req: Request): boolean {
+function isCrossSiteWrite(req: Request): boolean {
   if (["GET", "HEAD", "OPTIONS"].includes(req.method)) return false;
   const origin = req.headers.get("origin");
   if (!origin) return false;

@@ -10,7 +10,7 @@ const ID = /^[1-9][0-9]{0,9}$/;
 const MAX_ID = 2_147_483_647;
 
 /** The id, or null when the text is not a plain positive 32-bit integer. */
-export function routeIdOrNull(raw: unknown): number | null {
+function routeIdOrNull(raw: unknown): number | null {
   if (typeof raw !== "string" || !ID.test(raw)) return null;
   const n = Number(raw);
   return n > MAX_ID ? null : n;

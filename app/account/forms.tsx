@@ -26,7 +26,7 @@ export function ChangePasswordForm() {
   );
 }
 
-export type TokenScope = { value: string; label: string };
+type TokenScope = { value: string; label: string };
 
 /** Makes a personal API token; shows its secret once. */
 export function CreateApiTokenForm({ scopes, maxDays }: { scopes: TokenScope[]; maxDays: number }) {

@@ -18,9 +18,9 @@ import { fieldName } from "@/lib/form-errors";
 type FormState = { ok?: string; failure?: ApiFailure };
 const initial: FormState = {};
 
-export type ArmInput = { id: number; label: string; role: string };
+type ArmInput = { id: number; label: string; role: string };
 /** Two denominators: evaluable (for response) and treated (evaluable for toxicity, with a safety rule only). */
-export type CountsValue = ArmCounts;
+type CountsValue = ArmCounts;
 
 /**
  * Submits through the action without React's automatic form reset, so what the user typed stays in

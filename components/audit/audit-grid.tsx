@@ -14,7 +14,7 @@ import { actionWords, actorWords, changeWords, recordWords } from "@/lib/audit/a
 
 type Row = AuditEntryJson & { when: string; who: string; what: string; record: string; visibilityWord: string; change: string };
 
-export function formatAuditTime(iso: string): string {
+function formatAuditTime(iso: string): string {
   return format(new Date(iso), "yyyy-MM-dd HH:mm:ss xxx");
 }
 

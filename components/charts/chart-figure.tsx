@@ -11,7 +11,7 @@
 import { useId, type ReactNode } from "react";
 import { Button } from "@/components/ui/button";
 
-export type ChartCell = string | number | null;
+type ChartCell = string | number | null;
 /** The plotted values as a table: one header per column, rows already rounded for display. */
 export type ChartNumbers = { columns: string[]; rows: ChartCell[][]; note?: string };
 

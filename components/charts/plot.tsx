@@ -40,7 +40,7 @@ export const CAIRN_COLOURS = {
 } as const;
 
 /** The options every chart gets: no toolbar, no logo link, no hosted-service links, resizing on. */
-export const CAIRN_PLOT_CONFIG = { displayModeBar: false, displaylogo: false, showLink: false, showEditInChartStudio: false, showSendToCloud: false, responsive: true } as const;
+const CAIRN_PLOT_CONFIG = { displayModeBar: false, displaylogo: false, showLink: false, showEditInChartStudio: false, showSendToCloud: false, responsive: true } as const;
 
 const reducedMotion = () => typeof window !== "undefined" && !!window.matchMedia?.("(prefers-reduced-motion: reduce)").matches;
 

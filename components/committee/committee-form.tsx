@@ -11,7 +11,7 @@ import { Field, SelectInput, TextArea, TextInput } from "@/components/ui/field";
 import type { CommitteeFormState } from "@/lib/committee/schemas";
 
 type Option = { value: string | number; label: string; checked?: boolean };
-export type FieldSpec =
+type FieldSpec =
   | { kind: "select"; name: string; label: string; options: Option[]; hint?: string; placeholder?: string }
   | { kind: "textarea"; name: string; label: string; hint?: string; rows?: number; defaultValue?: string }
   | { kind: "password"; name: string; label: string }

@@ -18,8 +18,8 @@ function Outcome({ state }: { state: MeetingFormState }) {
   return null;
 }
 
-export type MemberChoice = { userId: number; label: string; invitedByDefault: boolean };
-export type AnalysisChoice = { id: number; label: string };
+type MemberChoice = { userId: number; label: string; invitedByDefault: boolean };
+type AnalysisChoice = { id: number; label: string };
 
 export function ScheduleMeetingForm({ action, trialId, analyses, members, zones, defaultAnalysisId }: { action: Action; trialId: number; analyses: AnalysisChoice[]; members: MemberChoice[]; zones: string[]; defaultAnalysisId: number | null }) {
   const [state, formAction, pending] = useActionState(action, initial);

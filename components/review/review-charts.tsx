@@ -26,7 +26,7 @@ function shadeTrace(p: number[], density: number[], band: Shade, name: string, c
 }
 
 /** Linear interpolation of the density curve at x, for the edges of a shaded band. */
-export function interpolateDensity(p: number[], density: number[], x: number): number {
+function interpolateDensity(p: number[], density: number[], x: number): number {
   const step = p[1] - p[0];
   const i = Math.min(p.length - 2, Math.max(0, Math.floor(x / step)));
   const a = density[i];

@@ -13,7 +13,7 @@ import { formatBoundary, formatProbability } from "@/lib/format";
 import type { BoundaryRow, Review } from "@/lib/review/compute-review";
 import type { CountsNow, WhatIfAnswer } from "@/lib/review/what-if";
 
-export type WhatIfRates = { arms: "single"; p0: number; p1: number } | { arms: "two"; controlRate: number; experimentalRate: number };
+type WhatIfRates = { arms: "single"; p0: number; p1: number } | { arms: "two"; controlRate: number; experimentalRate: number };
 
 type State = { state: "idle" | "loading" } | { state: "answer"; answer: WhatIfAnswer } | { state: "error"; message: string };
 

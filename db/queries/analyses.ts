@@ -4,7 +4,7 @@ import type { AnalysisOpenRow, AnalysisStatus } from "../types";
 import { ANALYSIS_OPEN_COLUMNS } from "./open-status";
 
 /** A look that an amendment moved to the newly locked design (recorded in the design_locked audit row). */
-export type MovedLook = { analysisId: number; lookNumber: number; status: AnalysisStatus; fromDesignId: number; toDesignId: number; fromPlannedN: number; plannedN: number };
+type MovedLook = { analysisId: number; lookNumber: number; status: AnalysisStatus; fromDesignId: number; toDesignId: number; fromPlannedN: number; plannedN: number };
 
 /**
  * Creates one planned analysis per look of a newly locked design. Looks already locked or reviewed
@@ -85,7 +85,7 @@ export async function fetchNeighbourCutoffs(trialId: number, lookNumber: number,
   return { before: (before?.d as string | null) ?? null, after: (after?.d as string | null) ?? null };
 }
 
-export type LockSignatureInfo = { signerName: string; signedAt: Date; meaning: string };
+type LockSignatureInfo = { signerName: string; signedAt: Date; meaning: string };
 
 /** The e-signature that locked a look (open information: who signed, when, meaning). */
 export async function fetchLockSignature(analysisId: number, tx: Tx = db): Promise<LockSignatureInfo | undefined> {

@@ -13,7 +13,7 @@ export async function fetchApiTokenByHash(tokenSha256: string, tx: Tx = db): Pro
   return tx<ApiTokenRow>("api_tokens").where({ token_sha256: tokenSha256 }).first();
 }
 
-export type ApiTokenListing = Omit<ApiTokenRow, "token_sha256"> & { trial_code: string };
+type ApiTokenListing = Omit<ApiTokenRow, "token_sha256"> & { trial_code: string };
 
 /** An account's tokens, newest first, with the trial's code; never the hash. */
 export async function fetchApiTokensOfUser(userId: number, tx: Tx = db): Promise<ApiTokenListing[]> {

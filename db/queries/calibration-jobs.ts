@@ -22,7 +22,7 @@ export type CalibrationJobRow = {
   finished_at: Date | null;
 };
 
-export type NewCalibrationJob = { id: string; trialId: number; userId: number; total: number; now: Date };
+type NewCalibrationJob = { id: string; trialId: number; userId: number; total: number; now: Date };
 
 /**
  * Inserts a running job unless `maxRunning` live jobs (heartbeat after `liveSince`) already run.

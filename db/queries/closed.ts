@@ -23,7 +23,7 @@ export async function fetchArmCountsForTrial(trialId: number, tx: ClosedReader):
 }
 
 /** One arm's stored counts at one look with the look's status and design: what a single posterior needs, in one round trip. */
-export type ArmAtLookRow = {
+type ArmAtLookRow = {
   status: string;
   look_number: number;
   cutoff_date: Date | string | null;
@@ -72,7 +72,7 @@ export async function replaceArmCounts(tx: Tx, analysisId: number, counts: ArmCo
     );
 }
 
-export type PatientOutcomeInput = Omit<PatientOutcomeRow, "id" | "analysis_id">;
+type PatientOutcomeInput = Omit<PatientOutcomeRow, "id" | "analysis_id">;
 
 export async function replacePatientOutcomes(tx: Tx, analysisId: number, rows: PatientOutcomeInput[]): Promise<void> {
   await tx("patient_outcomes").where({ analysis_id: analysisId }).delete();

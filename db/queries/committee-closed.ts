@@ -34,7 +34,7 @@ export function tallyVotes(votes: ReadonlyArray<{ decision: RecommendationDecisi
   return t;
 }
 
-export type CommitteeRecommendationClosed = { id: number; decision: RecommendationDecision; tally: Tally | null; dissent: string | null; rationale: string; signerName: string; recordedAt: Date; superseded: boolean; correctedById: number | null };
+type CommitteeRecommendationClosed = { id: number; decision: RecommendationDecision; tally: Tally | null; dissent: string | null; rationale: string; signerName: string; recordedAt: Date; superseded: boolean; correctedById: number | null };
 
 export async function fetchMeetingRecommendationsClosed(meetingId: number, tx: ClosedReader): Promise<CommitteeRecommendationClosed[]> {
   const rows = await tx("recommendations as r")

@@ -70,7 +70,7 @@ export async function setDraftDesignQuorum(tx: Tx, designId: number, quorum: num
   return n === 1;
 }
 
-export type SessionAttendance = { userId: number; name: string; session: MinutesSession; attended: boolean; recordedAt: Date };
+type SessionAttendance = { userId: number; name: string; session: MinutesSession; attended: boolean; recordedAt: Date };
 
 export async function fetchSessionAttendance(meetingId: number, tx: Tx = blindDb): Promise<SessionAttendance[]> {
   const rows = await tx("meeting_session_attendance as s")
@@ -87,7 +87,7 @@ export async function replaceSessionAttendance(tx: Tx, meetingId: number, sessio
   for (const r of rows) await tx("meeting_session_attendance").insert({ meeting_id: meetingId, user_id: r.userId, session, attended: r.attended, recorded_by: recordedBy, recorded_at: now });
 }
 
-export type ConflictDeclaration = { userId: number; name: string; hasConflict: boolean; statement: string | null; signatureId: number; signerName: string; declaredAt: Date };
+type ConflictDeclaration = { userId: number; name: string; hasConflict: boolean; statement: string | null; signatureId: number; signerName: string; declaredAt: Date };
 
 export async function fetchDeclarations(meetingId: number, tx: Tx = blindDb): Promise<ConflictDeclaration[]> {
   const rows = await tx("conflict_declarations as d")
@@ -155,7 +155,7 @@ export async function markMinutesApproved(tx: Tx, id: number, rowVersion: number
   return n === 1;
 }
 
-export type LetterMeta = { id: number; trialId: number; meetingId: number; recommendationId: number; version: number; contentHash: string; pageCount: number; byteSize: number; signerName: string; createdAt: Date };
+type LetterMeta = { id: number; trialId: number; meetingId: number; recommendationId: number; version: number; contentHash: string; pageCount: number; byteSize: number; signerName: string; createdAt: Date };
 
 const LETTER_COLUMNS = ["l.id", "l.trial_id as trialId", "l.meeting_id as meetingId", "l.recommendation_id as recommendationId", "l.version", "l.content_hash as contentHash", "l.page_count as pageCount", "l.byte_size as byteSize", "s.signer_name as signerName", "l.created_at as createdAt"];
 

@@ -42,7 +42,7 @@ export async function fetchEmail(id: number, tx: Tx = db): Promise<EmailMessageR
   return tx<EmailMessageRow>("email_messages").where({ id }).first();
 }
 
-export type EmailListing = Omit<EmailMessageRow, "body_text"> & { packetVersion: number | null; packetAudience: string | null };
+type EmailListing = Omit<EmailMessageRow, "body_text"> & { packetVersion: number | null; packetAudience: string | null };
 
 export async function fetchEmailsForMeeting(meetingId: number, tx: Tx = db): Promise<EmailListing[]> {
   return tx("email_messages as e")

@@ -4,7 +4,7 @@ import { blindDb, db, type Tx } from "../knex";
 import type { MeetingRow, MeetingStatus, TrialRole } from "../types";
 
 /** Every meetings column but closed_agenda (closed text, db/classification.ts). */
-export const MEETING_OPEN_COLUMNS = ["id", "trial_id", "analysis_id", "scheduled_at", "time_zone", "open_agenda", "reminder_days_before", "reminder_sent_at", "status", "row_version", "created_by", "created_at", "updated_at"] as const;
+const MEETING_OPEN_COLUMNS = ["id", "trial_id", "analysis_id", "scheduled_at", "time_zone", "open_agenda", "reminder_days_before", "reminder_sent_at", "status", "row_version", "created_by", "created_at", "updated_at"] as const;
 const m = (c: string) => `m.${c}`;
 
 export type MeetingListing = MeetingRow & { lookNumber: number; analysisStatus: string; attendeeCount: number };
@@ -29,7 +29,7 @@ export async function fetchMeeting(trialId: number, meetingId: number, tx: Tx = 
     .first(...MEETING_OPEN_COLUMNS.map(m), "a.look_number as lookNumber");
 }
 
-export type AttendeeListing = { userId: number; name: string; email: string; attended: boolean | null; roles: TrialRole[] };
+type AttendeeListing = { userId: number; name: string; email: string; attended: boolean | null; roles: TrialRole[] };
 
 export async function fetchAttendees(meetingId: number, tx: Tx = blindDb): Promise<AttendeeListing[]> {
   const rows = await tx("meeting_attendees as ma")
@@ -50,7 +50,7 @@ export async function fetchAttendees(meetingId: number, tx: Tx = blindDb): Promi
   return [...byUser.values()];
 }
 
-export type NewMeeting = {
+type NewMeeting = {
   trialId: number;
   analysisId: number;
   scheduledAt: Date;

@@ -13,7 +13,7 @@ export async function fetchRolesOnTrial(userId: number, trialId: number, tx: Tx 
   return rows.map((r: { role: TrialRole }) => r.role);
 }
 
-export type MembershipListing = { id: number; trialId: number; trialCode: string; userId: number; userName: string; userEmail: string; role: TrialRole };
+type MembershipListing = { id: number; trialId: number; trialCode: string; userId: number; userName: string; userEmail: string; role: TrialRole };
 
 export async function fetchMemberships(filter: { trialId?: number } = {}, tx: Tx = db): Promise<MembershipListing[]> {
   const q = tx("trial_memberships as m")

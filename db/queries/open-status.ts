@@ -32,7 +32,7 @@ export async function fetchAnalysisOpen(analysisId: number, tx: Tx = db): Promis
   return tx("analyses").where({ id: analysisId }).first(ANALYSIS_OPEN_COLUMNS);
 }
 
-export type OpenRecommendation = {
+type OpenRecommendation = {
   id: number;
   analysisId: number;
   lookNumber: number;
@@ -67,7 +67,7 @@ export async function fetchRecommendationsOpen(trialId: number, tx: Tx = db): Pr
     .then((rows: Array<OpenRecommendation & { superseded: number | boolean }>) => rows.map((r) => ({ ...r, superseded: Boolean(r.superseded) })));
 }
 
-export type DesignMeta = { id: number; version: number; status: string; lockedAt: Date | null; amendmentReason: string | null };
+type DesignMeta = { id: number; version: number; status: string; lockedAt: Date | null; amendmentReason: string | null };
 
 export async function fetchDesignVersions(trialId: number, tx: Tx = db): Promise<DesignMeta[]> {
   return tx("designs")
@@ -77,7 +77,7 @@ export async function fetchDesignVersions(trialId: number, tx: Tx = db): Promise
 }
 
 /** The committee's letter to the sponsor, latest version per meeting (open: no data, no votes). */
-export type OpenLetter = { id: number; meetingId: number; lookNumber: number; version: number; contentHash: string; signerName: string; createdAt: Date };
+type OpenLetter = { id: number; meetingId: number; lookNumber: number; version: number; contentHash: string; signerName: string; createdAt: Date };
 
 export async function fetchLatestLettersOfTrial(trialId: number, tx: Tx = db): Promise<OpenLetter[]> {
   return tx("recommendation_letters as l")

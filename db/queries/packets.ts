@@ -6,7 +6,7 @@ import "server-only";
 import { db, type Tx } from "../knex";
 import type { PacketAudience, PacketMetaRow, PacketRow } from "../types";
 
-export const PACKET_META_COLUMNS = ["id", "meeting_id", "version", "audience", "content_hash", "engine_version", "page_count", "byte_size", "created_at", "created_by"] as const;
+const PACKET_META_COLUMNS = ["id", "meeting_id", "version", "audience", "content_hash", "engine_version", "page_count", "byte_size", "created_at", "created_by"] as const;
 
 export async function fetchPackets(meetingId: number, audiences: PacketAudience[], tx: Tx = db): Promise<PacketMetaRow[]> {
   if (audiences.length === 0) return [];

@@ -12,7 +12,7 @@ import type { RecommendationDecision } from "../types";
 export { RECOMMENDATION_DECISIONS } from "@/lib/domain";
 
 /** CLOSED: a recommendation with its rationale and signature. */
-export type RecommendationClosed = {
+type RecommendationClosed = {
   id: number;
   trialId: number;
   analysisId: number;
@@ -83,7 +83,7 @@ export async function fetchCurrentRecommendationIds(tx: Tx, analysisId: number, 
   return rows.map((r) => r.id);
 }
 
-export type NewRecommendation = {
+type NewRecommendation = {
   trialId: number;
   analysisId: number;
   decision: RecommendationDecision;
@@ -118,7 +118,7 @@ export async function insertRecommendation(tx: Tx, r: NewRecommendation): Promis
 }
 
 /** CLOSED: a signature's id and the hash of the record it signed (the hash of a look's counts is closed: few possible values). */
-export type SignatureProvenance = { signatureId: number; recordHash: string; signerName: string; meaning: string; signedAt: Date };
+type SignatureProvenance = { signatureId: number; recordHash: string; signerName: string; meaning: string; signedAt: Date };
 
 /** CLOSED: the signature that locked a look in its current version, and the one that locked its design. */
 export async function fetchReviewSignatures(analysisId: number, tx: Tx = db): Promise<{ lock: SignatureProvenance | null; design: SignatureProvenance | null }> {

@@ -5,7 +5,7 @@ import "server-only";
  */
 import { db, writeTransaction, type Tx } from "../knex";
 
-export type Lease = { name: string; holder: string; expires_at: Date; renewed_at: Date };
+type Lease = { name: string; holder: string; expires_at: Date; renewed_at: Date };
 
 /**
  * Takes or renews the lease `name` for `holder` until `until`, if nobody else holds it beyond `now`.

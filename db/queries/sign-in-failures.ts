@@ -3,8 +3,8 @@ import "server-only";
 import { db, writeTransaction } from "../knex";
 
 /** "pair" is one account from one address; "account" rows are no longer written (kept for old rows). */
-export type SignInScope = "account" | "address" | "pair";
-export type SignInSubject = { scope: SignInScope; subject: string };
+type SignInScope = "account" | "address" | "pair";
+type SignInSubject = { scope: SignInScope; subject: string };
 
 /** Times (ms) of the failures after `since` for each of the given subjects, oldest first. */
 export async function fetchSignInFailureTimes(subjects: SignInSubject[], since: Date): Promise<Record<SignInScope, number[]>> {

@@ -16,7 +16,7 @@ export function recordHash(record: unknown, key?: string): string {
 /** The signed record's text: the one canonical JSON (kept under this name for the attack tests). */
 export const stableStringify = canonicalJson;
 
-export type SignatureMeaning =
+type SignatureMeaning =
   | "design approved"
   | "analysis locked"
   | "recommendation recorded"

@@ -20,7 +20,7 @@ const TRIAL_COLUMNS = [
   "t.updated_at",
 ];
 
-export type TrialListing = TrialRow & { roles: TrialRole[] };
+type TrialListing = TrialRow & { roles: TrialRole[] };
 
 /** The trials a user belongs to, with the roles held on each; administrators see every trial. */
 export async function fetchTrialsForUser(userId: number, isAdmin: boolean, tx: Tx = db): Promise<TrialListing[]> {
@@ -71,7 +71,7 @@ export async function fetchArms(trialId: number, tx: Tx = db): Promise<ArmRow[]>
   return tx<ArmRow>("arms").where({ trial_id: trialId }).orderBy("sort_order");
 }
 
-export type NewTrial = {
+type NewTrial = {
   code: string;
   title: string;
   sponsorName: string;

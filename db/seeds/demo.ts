@@ -37,7 +37,7 @@ export const DEMO_ACCOUNTS = [
  * and evaluable for response are separate denominators: every enrolled patient of CRN-201 has
  * started treatment, one per look is not yet evaluable for response.
  */
-export const DEMO_COUNTS = {
+const DEMO_COUNTS = {
   "CRN-201": [
     { look: 1, cutoff: "2026-06-30", lockedAt: "2026-07-06T10:00:00Z", arms: { single: { enrolled: 11, treated: 11, evaluable: 10, responders: 3, toxicities: 1 } } },
     { look: 2, cutoff: "2026-09-30", lockedAt: "2026-10-05T10:00:00Z", arms: { single: { enrolled: 21, treated: 21, evaluable: 20, responders: 6, toxicities: 3 } } },

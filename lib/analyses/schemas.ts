@@ -8,11 +8,11 @@ import { z } from "zod";
 import { isIsoDate } from "@/lib/csv/patient-outcomes";
 
 /** The largest count accepted for one arm at one look; far above any phase II trial. */
-export const MAX_ARM_COUNT = 100_000;
+const MAX_ARM_COUNT = 100_000;
 
 export { rowVersionSchema };
 
-export const cutoffDateSchema = z
+const cutoffDateSchema = z
   .string({ message: "Enter the data cut-off date." })
   .trim()
   .min(1, "Enter the data cut-off date.")
@@ -38,13 +38,13 @@ function cap(s: string) {
  * What the counts are checked against: the trial's arms, whether the locked design has a safety
  * rule, and its maximum sample size (per arm for two arms; null when the caller has no design).
  */
-export type CountsContext = { armIds: number[]; safetyRule: boolean; maxPerArm?: number | null };
+type CountsContext = { armIds: number[]; safetyRule: boolean; maxPerArm?: number | null };
 
 const absentWithoutSafety = (what: string) =>
   z.preprocess((v) => (v === "" || v === undefined ? null : v), z.null({ message: `This design has no safety rule, so ${what} are not recorded.` }));
 
 /** One arm's counts, for the stored-row check at lock as well as for input. */
-export type ArmCountsShape = Omit<ArmCounts, "armId">;
+type ArmCountsShape = Omit<ArmCounts, "armId">;
 
 /**
  * The within-look rules, shared by input validation and the lock-time check: responders <=
@@ -104,7 +104,6 @@ export function saveCountsSchema(ctx: CountsContext) {
     reason: z.string().trim().max(1000, "The reason can be at most 1000 characters.").optional(),
   });
 }
-export type SaveCountsInput = z.infer<ReturnType<typeof saveCountsSchema>>;
 
 export const openLookSchema = z.object({ rowVersion: rowVersionSchema, cutoffDate: cutoffDateSchema });
 

@@ -54,7 +54,7 @@ export async function loadLookContext(trialId: number, analysisId: number, tx: T
   return { analysis, arms, safetyRule: !!design?.spec.safety, maxPerArm };
 }
 
-export type CountsProblem = { path: string; message: string };
+type CountsProblem = { path: string; message: string };
 type NeighbourCounts = Awaited<ReturnType<typeof fetchNeighbourLockedCounts>>;
 
 const MONOTONE_FIELDS = [
@@ -72,7 +72,7 @@ const MONOTONE_FIELDS = [
  * previous locked look's or rising above the next locked look's. Pure; paths are
  * `counts.<index>.<field>` so a form can show each message beside its input.
  */
-export function countsProblems(ctx: LookContext, counts: ArmCountsInput[], neighbours: NeighbourCounts): CountsProblem[] {
+function countsProblems(ctx: LookContext, counts: ArmCountsInput[], neighbours: NeighbourCounts): CountsProblem[] {
   const out: CountsProblem[] = [];
   const label = (armId: number) => ctx.arms.find((a) => a.id === armId)?.label ?? `arm ${armId}`;
   counts.forEach((c, i) => {
@@ -215,7 +215,7 @@ function armRefs(arms: ArmRow[]): ArmRef[] {
 }
 
 /** `excluded`: rows enrolled after the cut-off, left out of the look (not an error). */
-export type UploadPreview =
+type UploadPreview =
   | {
       ok: true;
       rowCount: number;
@@ -227,7 +227,7 @@ export type UploadPreview =
   | { ok: false; rowCount: number; issueCount: number; issues: Array<{ line: number | null; column: string | null; message: string }>; excluded: ExcludedRows };
 
 /** Parses and validates a file against a look without writing anything. */
-export function checkUpload(ctx: LookContext, bytes: Uint8Array): { result: PatientCsvResult; preview: UploadPreview } {
+function checkUpload(ctx: LookContext, bytes: Uint8Array): { result: PatientCsvResult; preview: UploadPreview } {
   if (ctx.analysis.status !== "open" || !ctx.analysis.cutoff_date) {
     const msg =
       ctx.analysis.status === "planned"

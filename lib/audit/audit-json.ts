@@ -29,7 +29,7 @@ function parse(v: string | null): unknown {
 }
 
 /** Drops every key naming a hash (recordHash, contentHash, ...), at any depth. */
-export function withoutHashes(v: unknown): unknown {
+function withoutHashes(v: unknown): unknown {
   if (Array.isArray(v)) return v.map(withoutHashes);
   if (v && typeof v === "object") return Object.fromEntries(Object.entries(v as Record<string, unknown>).filter(([k]) => !/hash/i.test(k)).map(([k, x]) => [k, withoutHashes(x)]));
   return v;

@@ -39,18 +39,18 @@ import { roleGrantRefusal } from "./separation-of-duties";
 import { tooManyAttemptsMessage } from "./rate-limit";
 import { clearPairFailures, recordSignInFailure, signInWaitMs } from "./sign-in-throttle";
 
-export const PASSWORD_LINK_HOURS = 24;
+const PASSWORD_LINK_HOURS = 24;
 /** 32 bytes = 256 bits from the operating system's CSPRNG. */
 const TOKEN_BYTES = 32;
 
 export const tokenSha256 = (token: string) => createHash("sha256").update(token, "utf8").digest("hex");
 
 /** The link's token travels in the fragment: browsers send no fragment to a server, a log or a Referer. */
-export function passwordLinkUrl(token: string): string {
+function passwordLinkUrl(token: string): string {
   return `${config.appUrl().replace(/\/$/, "")}/set-password#${token}`;
 }
 
-export type IssuedLink = { url: string; expiresAt: Date; emailId: number };
+type IssuedLink = { url: string; expiresAt: Date; emailId: number };
 
 async function issueLink(tx: Tx, user: Pick<UserRow, "id" | "name" | "email">, issuer: PublicUser, now: Date): Promise<IssuedLink> {
   await revokeOpenPasswordLinks(tx, user.id, now);

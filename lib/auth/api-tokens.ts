@@ -22,7 +22,7 @@ import type { Capability } from "./permissions";
 /** Longest life of a token; an export job's owner renews it at least this often. */
 export const MAX_TOKEN_DAYS = 90;
 /** Every token starts with this, so a leaked one is recognisable (e.g. by secret scanners) and the bearer check can tell it from other schemes. */
-export const TOKEN_PREFIX = "cairn_pat_";
+const TOKEN_PREFIX = "cairn_pat_";
 const SECRET_BYTES = 32;
 const TOKEN_PATTERN = /^cairn_pat_[A-Za-z0-9_-]{43}$/;
 
@@ -31,16 +31,16 @@ const TOKEN_PATTERN = /^cairn_pat_[A-Za-z0-9_-]{43}$/;
  * 32 random bytes (256 bits), so nobody can find it from the hash by trying values, and a fast
  * hash keeps the per-request check cheap. The hash is looked up by equality (a unique index).
  */
-export function hashApiToken(token: string): string {
+function hashApiToken(token: string): string {
   return createHash("sha256").update(token, "utf8").digest("hex");
 }
 
 /** A new token: the prefix and 32 random bytes in base64url. */
-export function newApiTokenSecret(): string {
+function newApiTokenSecret(): string {
   return TOKEN_PREFIX + randomBytes(SECRET_BYTES).toString("base64url");
 }
 
-export const createApiTokenSchema = z.object({
+const createApiTokenSchema = z.object({
   trialId: z.coerce.number({ message: "Choose a trial." }).int("Choose a trial.").positive("Choose a trial."),
   role: z.enum(TRIAL_ROLES, { message: "Choose one of your roles on that trial." }),
   label: z
@@ -55,7 +55,6 @@ export const createApiTokenSchema = z.object({
     .min(1, `Enter a number of days from 1 to ${MAX_TOKEN_DAYS}.`)
     .max(MAX_TOKEN_DAYS, `A token lives at most ${MAX_TOKEN_DAYS} days.`),
 });
-export type CreateApiTokenInput = z.infer<typeof createApiTokenSchema>;
 
 /**
  * Makes a token for the owner on one trial, with a role the owner holds there. The secret is
@@ -113,7 +112,7 @@ export function bearerToken(req: Request): string | null {
 const invalidToken = () => new HttpError(401, "That API token is not valid: it is unknown, expired or revoked. Its owner can make a new one on their account page.");
 
 /** Who a token acts for, on which trial, with which single role. */
-export type TokenGrant = { token: ApiTokenRow; user: PublicUser; trial: TrialRow; roles: TrialRole[] };
+type TokenGrant = { token: ApiTokenRow; user: PublicUser; trial: TrialRow; roles: TrialRole[] };
 
 /**
  * Checks a presented token for one request on one trial, then lets `decide` grant or refuse the

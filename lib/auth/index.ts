@@ -4,6 +4,7 @@ import "server-only";
  * The session only says who someone is; what they may do is read from the database on every
  * request, so a removed role or deactivated account takes effect at the next request.
  */
+import { headers } from "next/headers";
 import { notFound, redirect, forbidden } from "next/navigation";
 import { sessionClaims } from "./session";
 import { fetchUserById, toPublicUser } from "@/db/queries/users";
@@ -15,6 +16,7 @@ import type { Knex } from "knex";
 import { asClosedConnection, blindDb, db, type ClosedConnection } from "@/db/knex";
 import { HttpError, forbiddenError, noteCallerClearance, notFoundError, unauthorized } from "@/lib/http";
 import { authenticateApiToken, bearerToken } from "./api-tokens";
+import { PAGE_PATH_HEADER, signInPathForPage } from "./return-to";
 
 export { allows, isUnblinded, type Capability } from "./permissions";
 
@@ -71,7 +73,7 @@ export async function mayCreateTrial(u: PublicUser): Promise<boolean> {
  * token alone decides (its owner, its one trial, its one role; every use audited) and the session
  * cookie is not read. Routes that do not pass it never accept a token: signatures stay interactive.
  */
-export type TrialAccessOptions = { bearer?: Request };
+type TrialAccessOptions = { bearer?: Request };
 
 /**
  * Trial-level check: 404 when the trial does not exist or the user is not on it (so its existence
@@ -119,13 +121,13 @@ export async function authorizePage(trialId: number, cap: Capability): Promise<T
   try {
     return await requireTrialAccess(trialId, cap);
   } catch (e) {
-    pageInterrupt(e);
+    return await pageInterrupt(e);
   }
 }
 
 export async function requirePageUser(): Promise<PublicUser> {
   const u = await currentUser();
-  if (!u) redirect("/signin");
+  if (!u) return await toSignIn();
   return u;
 }
 
@@ -135,9 +137,14 @@ export async function requirePageAdmin(): Promise<PublicUser> {
   return u;
 }
 
-function pageInterrupt(e: unknown): never {
+/** A page whose session is gone: to sign-in, returning to this page (the path the proxy put on the request). */
+async function toSignIn(): Promise<never> {
+  redirect(signInPathForPage((await headers()).get(PAGE_PATH_HEADER)));
+}
+
+async function pageInterrupt(e: unknown): Promise<never> {
   if (e instanceof HttpError) {
-    if (e.status === 401) redirect("/signin");
+    if (e.status === 401) return await toSignIn();
     if (e.status === 404) notFound();
     if (e.status === 403) forbidden();
   }

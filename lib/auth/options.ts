@@ -12,12 +12,12 @@ import { clientAddress } from "./client-address";
 
 export { BCRYPT_ROUNDS } from "./passwords";
 
-export const signInSchema = z.object({
+const signInSchema = z.object({
   email: z.string().trim().min(1, "Enter your e-mail address.").max(254, "That e-mail address is too long.").email("Enter a valid e-mail address."),
   password: z.string().min(1, "Enter your password.").max(200, "That password is too long."),
 });
 
-export type SignInResult = { id: string; email: string; name: string; sv: number } | null;
+type SignInResult = { id: string; email: string; name: string; sv: number } | null;
 
 /**
  * The sign-in check, separated from next-auth so it can be tested against the database: throttled

@@ -8,8 +8,8 @@
  * real user, from their own address, is not held back. The per-address limit bounds how many
  * guesses one address makes across accounts.
  */
-export type RateLimitRule = { maxFailures: number; windowMs: number };
-export type BackoffRule = { windowMs: number; freeFailures: number; baseDelayMs: number; maxDelayMs: number };
+type RateLimitRule = { maxFailures: number; windowMs: number };
+type BackoffRule = { windowMs: number; freeFailures: number; baseDelayMs: number; maxDelayMs: number };
 
 /**
  * Milliseconds until another attempt is allowed (0 when allowed now), given the times of the

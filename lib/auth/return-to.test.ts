@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { DEFAULT_RETURN_TO, safeReturnTo, signInPathFor } from "./return-to";
+import { DEFAULT_RETURN_TO, safeReturnTo, signInPathFor, signInPathForPage } from "./return-to";
 
 describe("safeReturnTo", () => {
   it("keeps same-site paths with their query and fragment", () => {
@@ -73,5 +73,23 @@ describe("signInPathFor", () => {
     expect(signInPathFor(DEFAULT_RETURN_TO)).toBe("/signin");
     expect(signInPathFor("/")).toBe("/signin");
     expect(signInPathFor("//evil.example")).toBe("/signin");
+  });
+});
+
+describe("signInPathForPage", () => {
+  it("returns to the page the proxy named, decoded back to the same path by URLSearchParams", () => {
+    const path = signInPathForPage("/trials/3/meetings/7/closed-session?tab=votes");
+    const back = new URL(path, "https://cairn.test").searchParams.get("callbackUrl");
+    expect(back).toBe("/trials/3/meetings/7/closed-session?tab=votes");
+  });
+
+  it("falls back to plain sign-in without a header, for the landing page and for an unsafe value", () => {
+    expect(signInPathForPage(null)).toBe("/signin");
+    expect(signInPathForPage(undefined)).toBe("/signin");
+    expect(signInPathForPage("")).toBe("/signin");
+    expect(signInPathForPage(DEFAULT_RETURN_TO)).toBe("/signin");
+    expect(signInPathForPage("//evil.example/trials")).toBe("/signin");
+    expect(signInPathForPage("https://evil.example/")).toBe("/signin");
+    expect(signInPathForPage("/signin?callbackUrl=%2Ftrials")).toBe("/signin");
   });
 });

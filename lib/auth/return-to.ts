@@ -37,6 +37,18 @@ export function safeReturnTo(raw: unknown): string | null {
   return out;
 }
 
+/**
+ * The request header in which the proxy hands a page request's own path and query to the server
+ * (a page finding the session gone sends the person to sign-in with it as the return target). The
+ * proxy overwrites whatever the browser sent; the value is still sanitised on use.
+ */
+export const PAGE_PATH_HEADER = "x-cairn-page";
+
+/** The sign-in URL for a page whose session is gone: back to the page (from PAGE_PATH_HEADER) when that is a safe target. */
+export function signInPathForPage(pagePath: string | null | undefined): string {
+  return signInPathFor(pagePath ?? "");
+}
+
 /** The sign-in URL that returns to `target` afterwards (no parameter for the default landing page). */
 export function signInPathFor(target: string): string {
   const safe = safeReturnTo(target);

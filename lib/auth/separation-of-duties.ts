@@ -7,8 +7,8 @@
  */
 import type { TrialRole } from "@/db/types";
 
-export const UNBLINDED_ROLES: readonly TrialRole[] = ["unblinded_statistician", "dmc_member"];
-export const BLINDED_SIDE_ROLES: readonly TrialRole[] = ["sponsor", "coordinator"];
+const UNBLINDED_ROLES: readonly TrialRole[] = ["unblinded_statistician", "dmc_member"];
+const BLINDED_SIDE_ROLES: readonly TrialRole[] = ["sponsor", "coordinator"];
 
 const WORDS: Record<TrialRole, string> = {
   unblinded_statistician: "unblinded statistician",

@@ -7,7 +7,7 @@ import "server-only";
 import { cookies, headers } from "next/headers";
 import { readSessionToken } from "./session-token";
 
-export type SessionClaims = { userId: number; sessionVersion: number };
+type SessionClaims = { userId: number; sessionVersion: number };
 
 export async function sessionClaims(): Promise<SessionClaims | null> {
   const [h, c] = await Promise.all([headers(), cookies()]);

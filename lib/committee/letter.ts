@@ -26,7 +26,7 @@ import { oneLine } from "@/lib/mail/templates";
 import { meetingOf, requireChair } from "./service";
 import { letterSchema, letterSendSchema } from "./schemas";
 
-export type LetterContent = {
+type LetterContent = {
   trialCode: string;
   trialTitle: string;
   sponsorName: string;
@@ -40,7 +40,7 @@ export type LetterContent = {
 };
 
 /** The letter's paragraphs, in order (the PDF draws them; tests read them back with pdftotext). */
-export function letterParagraphs(c: LetterContent): string[] {
+function letterParagraphs(c: LetterContent): string[] {
   return [
     `To: ${c.sponsorName}`,
     `Trial: ${c.trialCode} - ${c.trialTitle}`,
@@ -54,12 +54,12 @@ export function letterParagraphs(c: LetterContent): string[] {
   ];
 }
 
-export function letterContentHash(c: LetterContent): string {
+function letterContentHash(c: LetterContent): string {
   const keys = Object.keys(c).sort() as (keyof LetterContent)[];
   return createHash("sha256").update(JSON.stringify(keys.map((k) => [k, c[k]]))).digest("hex");
 }
 
-export async function renderLetterPdf(c: LetterContent, meta: { version: number; contentHash: string; signedAt: Date }): Promise<{ pdf: Buffer; pageCount: number }> {
+async function renderLetterPdf(c: LetterContent, meta: { version: number; contentHash: string; signedAt: Date }): Promise<{ pdf: Buffer; pageCount: number }> {
   const doc = new PDFDocument({
     size: "A4",
     margins: { top: 64, bottom: 70, left: 60, right: 60 },
@@ -122,7 +122,7 @@ export async function signRecommendationLetter(access: TrialAccess, raw: unknown
   });
 }
 
-export function letterContent(trial: TrialRow, f: { lookNumber: number; meetingWhen: string; decision: RecommendationDecision; recordedOn: string; chairName: string }): LetterContent {
+function letterContent(trial: TrialRow, f: { lookNumber: number; meetingWhen: string; decision: RecommendationDecision; recordedOn: string; chairName: string }): LetterContent {
   return {
     trialCode: trial.code,
     trialTitle: trial.title,
@@ -137,7 +137,7 @@ export function letterContent(trial: TrialRow, f: { lookNumber: number; meetingW
   };
 }
 
-export function letterAttachmentName(trialCode: string, version: number): string {
+function letterAttachmentName(trialCode: string, version: number): string {
   return `${trialCode}-dmc-recommendation-letter-v${version}.pdf`;
 }
 

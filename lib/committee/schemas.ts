@@ -7,7 +7,7 @@ const RECOMMENDATION_DECISION_VALUES = ["continue", "continue_modified", "stop_f
 const id = (what: string) => z.coerce.number({ message: `Not a valid ${what}.` }).int(`Not a valid ${what}.`).positive(`Not a valid ${what}.`).max(2_147_483_647, `Not a valid ${what}.`);
 const password = z.string({ message: "Enter your password to sign." }).min(1, "Enter your password to sign.").max(200, "That password is too long.");
 
-export const COMMITTEE_ROLE_VALUES = ["chair", "voting", "statistician"] as const;
+const COMMITTEE_ROLE_VALUES = ["chair", "voting", "statistician"] as const;
 export const COMMITTEE_ROLE_LABELS: Record<(typeof COMMITTEE_ROLE_VALUES)[number], string> = {
   chair: "Chair (votes)",
   voting: "Voting member",
@@ -32,7 +32,7 @@ export const quorumSchema = z.object({
   quorum: z.coerce.number({ message: "Give the quorum as a whole number." }).int("Give the quorum as a whole number.").min(1, "The quorum is at least 1 voting member.").max(30, "The quorum is at most 30 voting members."),
 });
 
-export const SESSION_VALUES = ["open", "closed"] as const;
+const SESSION_VALUES = ["open", "closed"] as const;
 
 export const sessionAttendanceSchema = z.object({
   meetingId: id("meeting"),

@@ -40,7 +40,7 @@ import { addMemberSchema, changeChairSchema, declarationSchema, minutesApproveSc
 const field = (status: 409 | 422, message: string, f: string) => new HttpError(status, message, { field: f });
 
 /** The member row of the caller on this trial's committee, if any. */
-export async function committeeSeat(access: TrialAccess): Promise<{ committee: CommitteeMember[]; seat: CommitteeMember | undefined }> {
+async function committeeSeat(access: TrialAccess): Promise<{ committee: CommitteeMember[]; seat: CommitteeMember | undefined }> {
   const committee = await fetchCommittee(access.trial.id);
   return { committee, seat: committee.find((m) => m.userId === access.user.id) };
 }

@@ -55,7 +55,7 @@ export async function castVote(access: TrialAccess, raw: unknown, now = new Date
 export type Quorum = { required: number; charterQuorum: number | null; designVersion: number | null; votingPresent: number; votingMembers: number; quorate: boolean };
 
 /** Whether the closed session of a meeting was quorate: voting members recorded present against the charter's quorum. */
-export async function closedSessionQuorum(meetingId: number, analysisId: number, committee: CommitteeMember[]): Promise<Quorum> {
+async function closedSessionQuorum(meetingId: number, analysisId: number, committee: CommitteeMember[]): Promise<Quorum> {
   const [charter, attendance] = await Promise.all([fetchCharterQuorum(analysisId), fetchSessionAttendance(meetingId)]);
   const voting = committee.filter(isVoting);
   const present = new Set(attendance.filter((a) => a.session === "closed" && a.attended).map((a) => a.userId));

@@ -11,7 +11,7 @@
  */
 
 /** First characters a spreadsheet may treat as the start of a formula: OWASP's list, plus the full-width forms of = + - @. */
-export const FORMULA_TRIGGERS = ["=", "+", "-", "@", "\t", "\r", "\uFF1D", "\uFF0B", "\uFF0D", "\uFF20"] as const;
+const FORMULA_TRIGGERS = ["=", "+", "-", "@", "\t", "\r", "\uFF1D", "\uFF0B", "\uFF0D", "\uFF20"] as const;
 
 /** A cell that is one plain decimal number ("-3", "-0.25", "1e-4"): a spreadsheet reads it as a number, never a formula. */
 const PLAIN_NUMBER = /^-?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;

@@ -24,14 +24,14 @@ import { z } from "zod";
 /** Files larger than this are refused before they are read. */
 export const MAX_UPLOAD_BYTES = 5 * 1024 * 1024;
 /** More patients than any phase II look; guards memory and the transaction size. */
-export const MAX_PATIENT_ROWS = 20_000;
+const MAX_PATIENT_ROWS = 20_000;
 /** The report lists at most this many problems; the total is always given. */
-export const MAX_REPORTED_ISSUES = 500;
+const MAX_REPORTED_ISSUES = 500;
 
 export const PATIENT_CSV_COLUMNS = ["subject_id", "arm", "enrolment_date", "evaluable", "response", "toxicity"] as const;
-export type PatientCsvColumn = (typeof PATIENT_CSV_COLUMNS)[number];
+type PatientCsvColumn = (typeof PATIENT_CSV_COLUMNS)[number];
 /** Columns a file may add; without `treated`, every patient enrolled by the cut-off counts as treated. */
-export const OPTIONAL_PATIENT_CSV_COLUMNS = ["treated"] as const;
+const OPTIONAL_PATIENT_CSV_COLUMNS = ["treated"] as const;
 type AnyColumn = PatientCsvColumn | (typeof OPTIONAL_PATIENT_CSV_COLUMNS)[number];
 
 export type ArmRole = "single" | "experimental" | "control";
@@ -46,7 +46,7 @@ export type PatientCsvContext = {
 };
 
 /** One problem: where (line, column) and what is wrong, in words a data manager can act on. */
-export type CsvIssue = { line: number | null; column: string | null; message: string };
+type CsvIssue = { line: number | null; column: string | null; message: string };
 
 export type PatientRecord = {
   subjectId: string;
@@ -69,7 +69,7 @@ export type PatientRecord = {
 };
 
 /** treated and toxicities are numbers exactly when the design has a safety rule. */
-export type DerivedArmCounts = ArmCounts & { pending: number };
+type DerivedArmCounts = ArmCounts & { pending: number };
 
 /** Rows enrolled after the cut-off, left out of the look: how many, and which (at most MAX_REPORTED_ISSUES listed). */
 export type ExcludedRows = { count: number; cutoffDate: string; rows: Array<{ line: number; subjectId: string; enrolmentDate: string }> };
@@ -106,7 +106,7 @@ const FLAG_TRUE = new Set(["yes", "y", "1", "true"]);
 const FLAG_FALSE = new Set(["no", "n", "0", "false"]);
 const FLAG_HINT = "use yes/no, 1/0 or true/false";
 /** The evaluable cell's third value: evaluable later, response not yet known at the cut-off. */
-export const PENDING_VALUE = "pending";
+const PENDING_VALUE = "pending";
 
 /** A yes/no cell; empty becomes null so the cross-field rules can say what is missing. */
 function flagSchema(what: string) {

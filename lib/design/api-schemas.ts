@@ -33,12 +33,12 @@ export function parseDesignForTrial(spec: unknown, designType: "single" | "two")
 const thresholdValue = z.number({ message: "Enter a number." }).min(0, "Must be at least 0.").max(1, "Must be at most 1.");
 
 /** An inclusive grid from..to by step on [0, 1]. */
-export const gridRangeSchema = z
+const gridRangeSchema = z
   .object({ from: thresholdValue, to: thresholdValue, step: z.number({ message: "Enter a number." }).gt(0, "The step must be above 0.").max(1, "The step can be at most 1.") })
   .refine((r) => r.to >= r.from, { message: "'to' must be at least 'from'.", path: ["to"] })
   .refine((r) => Math.floor((r.to - r.from) / r.step + 1e-9) + 1 <= 200, { message: "At most 200 values per threshold.", path: ["step"] });
 
-export type GridRange = z.infer<typeof gridRangeSchema>;
+type GridRange = z.infer<typeof gridRangeSchema>;
 
 /** The values of a grid range, rounded to 1e-9 so 0.1 + 0.05 steps do not drift. */
 export function expandGrid(r: GridRange): number[] {
@@ -47,7 +47,7 @@ export function expandGrid(r: GridRange): number[] {
 }
 
 /** The largest grid one calibration may search (keeps a job to tens of seconds on two cores). */
-export const MAX_CALIBRATION_POINTS = 20_000;
+const MAX_CALIBRATION_POINTS = 20_000;
 
 export const calibrationBodySchema = z
   .object({
@@ -64,7 +64,6 @@ export const calibrationBodySchema = z
     path: ["thetaL"],
   });
 
-export type CalibrationBody = z.infer<typeof calibrationBodySchema>;
 
 /**
  * Work allowed in one two-arm search, in (grid points) x (sum over looks of the per-arm look size
@@ -72,7 +71,7 @@ export type CalibrationBody = z.infer<typeof calibrationBodySchema>;
  * grid at 100 per arm with a look every 10 is 6.2e7 and runs in about half a minute on the two-core demo
  * machine; the limit keeps a search to about a minute.
  */
-export const TWO_ARM_SEARCH_BUDGET = 1e8;
+const TWO_ARM_SEARCH_BUDGET = 1e8;
 
 /** The largest number of grid points a two-arm search of this design may have. */
 export function maxTwoArmSearchPoints(design: TwoArmDesign): number {

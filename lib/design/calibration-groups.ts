@@ -7,14 +7,14 @@
 import type { CalibratedDesign } from "@/lib/stats/calibration";
 
 export type ThresholdSet = Pick<CalibratedDesign, "thetaT" | "thetaL" | "thetaU">;
-export type CalibrationGroup = { design: CalibratedDesign; thresholds: ThresholdSet[] };
+type CalibrationGroup = { design: CalibratedDesign; thresholds: ThresholdSet[] };
 
 /**
  * Operating characteristics closer than this are the same: the searches' arithmetic differs by
  * rounding only (about 1e-15) between threshold sets that give the same boundaries, and no two
  * different boundaries give type I error, power and average sample sizes all within 1e-12.
  */
-export const SAME_OC_TOLERANCE = 1e-12;
+const SAME_OC_TOLERANCE = 1e-12;
 
 const OC_KEYS = ["typeIError", "power", "expectedSampleSizeNull", "expectedSampleSizeTarget", "pEarlyTerminationNull"] as const;
 

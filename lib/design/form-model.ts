@@ -57,7 +57,7 @@ export const PRIOR_FAMILY_LABELS: Record<PriorFamily, string> = {
 
 const str = (v: number | null | undefined) => (v === null || v === undefined ? "" : String(v));
 
-export function priorToForm(p: PriorSpec): PriorForm {
+function priorToForm(p: PriorSpec): PriorForm {
   const f: PriorForm = { family: p.family, a: "1", b: "1", mean: "0.3", ess: "10", weight: "0.8" };
   if (p.family === "beta") Object.assign(f, { a: str(p.a), b: str(p.b) });
   if (p.family === "informative") Object.assign(f, { mean: str(p.mean), ess: str(p.ess) });
@@ -137,7 +137,7 @@ export function num(s: string): number {
   return Number(t);
 }
 
-export function priorFromForm(f: PriorForm): unknown {
+function priorFromForm(f: PriorForm): unknown {
   switch (f.family) {
     case "uniform":
     case "jeffreys":

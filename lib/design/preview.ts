@@ -20,7 +20,7 @@ import {
 import { safetyBoundaries } from "@/lib/stats/boundaries";
 import { summarisePrior } from "./prior-summary";
 
-export type OcSummary = {
+type OcSummary = {
   pDeclareSuccess: number;
   pEarlyTermination: number;
   pEarlyFutility: number;
@@ -30,7 +30,7 @@ export type OcSummary = {
 };
 
 /** Joint response-and-safety characteristics at one true toxicity rate (response and toxicity assumed independent). */
-export type SafetyOcSummary = {
+type SafetyOcSummary = {
   pSafetyStop: number;
   pEarlySafety: number;
   pEarlyFutility: number;
@@ -38,9 +38,9 @@ export type SafetyOcSummary = {
   pDeclareSuccess: number;
   expectedSampleSize: number;
 };
-export type SafetyOcRow = { q: number; atNull: SafetyOcSummary; atTarget: SafetyOcSummary };
+type SafetyOcRow = { q: number; atNull: SafetyOcSummary; atTarget: SafetyOcSummary };
 
-export type PriorPreview = { label: string; mean: number; ess: number; density: { x: number[]; y: number[] } };
+type PriorPreview = { label: string; mean: number; ess: number; density: { x: number[]; y: number[] } };
 
 export type SingleArmPreview = {
   arms: "single";
@@ -92,7 +92,7 @@ export type TwoArmPreview = {
 export type DesignPreview = SingleArmPreview | TwoArmPreview;
 
 /** One true rate of the OC curve; early termination split by reason (it is also given as the total). */
-export type CurvePoint = { rate: number; pDeclareSuccess: number; expectedSampleSize: number; pEarlyTermination: number; pEarlyFutility: number; pEarlyEfficacy: number };
+type CurvePoint = { rate: number; pDeclareSuccess: number; expectedSampleSize: number; pEarlyTermination: number; pEarlyFutility: number; pEarlyEfficacy: number };
 
 function curvePoint(rate: number, oc: OperatingCharacteristics | TwoArmOperatingCharacteristics): CurvePoint {
   return { rate, pDeclareSuccess: oc.pDeclareSuccess, expectedSampleSize: oc.expectedSampleSize, pEarlyTermination: oc.pEarlyTermination, pEarlyFutility: oc.pEarlyFutility, pEarlyEfficacy: oc.pEarlyEfficacy };
@@ -141,7 +141,7 @@ function summary(oc: OperatingCharacteristics | TwoArmOperatingCharacteristics):
 }
 
 /** Rates 0, step, 2 step, ..., 1 (exact decimals, so 0.3 is 0.3 and lines up with p0 and p1). */
-export function rateGrid(steps: number): number[] {
+function rateGrid(steps: number): number[] {
   return Array.from({ length: steps + 1 }, (_, i) => Math.round((i / steps) * 1e6) / 1e6);
 }
 

@@ -10,7 +10,7 @@ import { betaPdf } from "@/lib/stats/distributions";
 export const effectiveSampleSize = (prior: MixtureBeta): number => moritaEffectiveSampleSize(prior);
 export { negLogDensityCurvature };
 
-export type PriorSummary = {
+type PriorSummary = {
   components: MixtureBeta;
   mean: number;
   /** Effective sample size after Morita, Thall & Mueller (2008); 0 when the log density is convex at the mean. */

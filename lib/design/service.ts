@@ -48,7 +48,7 @@ export function designSignedRecord(trialId: number, version: number, spec: Desig
 // Trials
 // ---------------------------------------------------------------------------------------------
 
-export type CreateTrialResult = { ok: true; trialId: number } | { ok: false; fieldErrors: Record<string, string[]> };
+type CreateTrialResult = { ok: true; trialId: number } | { ok: false; fieldErrors: Record<string, string[]> };
 
 /**
  * Creates a trial and its arms. The creator becomes its unblinded statistician unless they are an

@@ -6,7 +6,7 @@
  * No imports, so client components can use it without pulling in the engine.
  */
 
-export type ThresholdWord = {
+type ThresholdWord = {
   /** The main label, in plain words. */
   word: string;
   /** The published notation, shown small beside the word. */

@@ -7,19 +7,19 @@ import type { SearchedPoint } from "./chunked-calibration";
  * What best_json holds: the best designs, the searched (type I error, power) points for the chart and
  * the number of arms. Rows written before the two-arm search hold a bare array of best designs (one arm).
  */
-export type StoredResults = { arms: "single" | "two"; best: CalibratedDesign[]; points: SearchedPoint[] };
+type StoredResults = { arms: "single" | "two"; best: CalibratedDesign[]; points: SearchedPoint[] };
 
 export function storedResultsJson(r: StoredResults): string {
   return JSON.stringify(r);
 }
 
-export function parseStoredResults(json: string): StoredResults {
+function parseStoredResults(json: string): StoredResults {
   const v = JSON.parse(json) as CalibratedDesign[] | StoredResults;
   if (Array.isArray(v)) return { arms: "single", best: v, points: [] };
   return { arms: v.arms === "two" ? "two" : "single", best: Array.isArray(v.best) ? v.best : [], points: Array.isArray(v.points) ? v.points : [] };
 }
 
-export type CalibrationJobStatus = "running" | "done" | "cancelled" | "failed";
+type CalibrationJobStatus = "running" | "done" | "cancelled" | "failed";
 
 export type CalibrationJob = {
   id: string;

@@ -29,7 +29,7 @@ import { eventLoopWatcher, pauseBeforeNextSlice } from "./back-off";
 /** Searches at once on the whole server: each one takes a share of the same CPUs. */
 export const MAX_RUNNING_JOBS = 2;
 /** The running process touches its job at least this often (more often while chunks complete). */
-export const HEARTBEAT_MS = 5_000;
+const HEARTBEAT_MS = 5_000;
 /** Finished jobs are kept this long for the page to fetch the results. */
 const KEEP_MS = 24 * 60 * 60 * 1000;
 

@@ -25,7 +25,7 @@ export type ChunkedCalibrationInput = {
 /** One searched grid point for the chart: type I error and power, rounded to 4 decimals. */
 export type SearchedPoint = [typeIError: number, power: number];
 /** The chart needs the cloud's shape, not every point: beyond this many distinct rounded points, later ones are dropped. */
-export const MAX_CHART_POINTS = 4000;
+const MAX_CHART_POINTS = 4000;
 
 export type ChunkedProgress = {
   progress: number;
@@ -38,7 +38,7 @@ export type ChunkedProgress = {
 };
 
 /** The same order the searches use: smallest expected sample size under the null, then higher power. */
-export function mergeBest(lists: CalibratedDesign[][], keep: number): CalibratedDesign[] {
+function mergeBest(lists: CalibratedDesign[][], keep: number): CalibratedDesign[] {
   return lists
     .flat()
     .sort((u, v) => u.expectedSampleSizeNull - v.expectedSampleSizeNull || v.power - u.power)
@@ -49,7 +49,7 @@ const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resol
 const round4 = (v: number) => Math.round(v * 1e4) / 1e4;
 
 /** The chunks of a search, in the order they run. */
-export function calibrationChunks(input: ChunkedCalibrationInput): { thetaTGrid: number[]; thetaUGrid: number[] | null }[] {
+function calibrationChunks(input: ChunkedCalibrationInput): { thetaTGrid: number[]; thetaUGrid: number[] | null }[] {
   const split = input.design.arms === "two" && input.thetaUGrid && input.thetaUGrid.length > 1;
   return input.thetaTGrid.flatMap((t) => (split ? (input.thetaUGrid as number[]).map((u) => ({ thetaTGrid: [t], thetaUGrid: [u] })) : [{ thetaTGrid: [t], thetaUGrid: input.thetaUGrid }]));
 }

@@ -20,7 +20,7 @@ import type { PreviewTask } from "./workers/preview.worker";
 import { computeReviewJson, type ReviewTask } from "./workers/review.worker";
 import { captureOutcome, unwrapOutcome, type WorkerOutcome } from "./workers/worker-errors";
 
-export type WorkerKind = "calibration" | "preview" | "review";
+type WorkerKind = "calibration" | "preview" | "review";
 
 /**
  * Threads per pool. The build and demo machine has 2 cores: one calibration thread and one preview
@@ -30,7 +30,7 @@ const MAX_THREADS: Record<WorkerKind, number> = { calibration: 1, preview: 1, re
 /** Idle threads exit after this long, so an idle server holds no extra memory. */
 const IDLE_TIMEOUT_MS = 60_000;
 
-export function workersDir(): string {
+function workersDir(): string {
   return process.env.CAIRN_WORKERS_DIR || path.join(process.cwd(), ".workers");
 }
 

@@ -17,14 +17,14 @@ import { formatMeetingTime } from "@/lib/packets/meeting-time";
 import { closedNoticeMail, openPacketMail, reminderMail } from "./templates";
 
 /** Roles that receive the open report as an attachment, and roles that get a link to the closed one. */
-export const OPEN_ATTACHMENT_ROLES = ["coordinator", "sponsor"] as const;
-export const CLOSED_LINK_ROLES = ["dmc_member", "unblinded_statistician"] as const;
+const OPEN_ATTACHMENT_ROLES = ["coordinator", "sponsor"] as const;
+const CLOSED_LINK_ROLES = ["dmc_member", "unblinded_statistician"] as const;
 
-export function meetingLink(trialId: number, meetingId: number): string {
+function meetingLink(trialId: number, meetingId: number): string {
   return `${config.appUrl().replace(/\/$/, "")}/trials/${trialId}/meetings/${meetingId}#packets`;
 }
 
-export type QueuedPacketMail = { ids: number[]; openVersion: number; closedVersion: number | null; recipients: number };
+type QueuedPacketMail = { ids: number[]; openVersion: number; closedVersion: number | null; recipients: number };
 
 /**
  * Records the packet e-mails of a meeting: the latest open report attached for sponsor and

@@ -19,9 +19,9 @@ export const MAIL_LEASE = "mail";
 
 export type SchedulerTick = { leader: boolean; remindersQueued: number; outcomes: Record<number, AttemptOutcome> };
 
-export type SchedulerOptions = { holder: string; leaseMs: number; policy?: RetryPolicy; now?: () => Date };
+type SchedulerOptions = { holder: string; leaseMs: number; policy?: RetryPolicy; now?: () => Date };
 
-export function newHolderId(): string {
+function newHolderId(): string {
   return `${os.hostname()}:${process.pid}:${randomUUID().slice(0, 8)}`.slice(0, 128);
 }
 
@@ -34,7 +34,7 @@ export async function runSchedulerTick(opts: SchedulerOptions): Promise<Schedule
   return { leader: true, remindersQueued: ids.length, outcomes };
 }
 
-export type MailScheduler = { holder: string; stop: () => Promise<void>; tickNow: () => Promise<SchedulerTick | null> };
+type MailScheduler = { holder: string; stop: () => Promise<void>; tickNow: () => Promise<SchedulerTick | null> };
 
 /**
  * Starts a scheduler in this process: one tick at once, then one per interval. Ticks never overlap

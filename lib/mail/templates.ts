@@ -6,9 +6,9 @@
  */
 import { CAUTION_TEXT } from "@/lib/caution";
 
-export type MailContent = { subject: string; text: string };
+type MailContent = { subject: string; text: string };
 
-export type PacketMailContext = {
+type PacketMailContext = {
   trialCode: string;
   trialTitle: string;
   meetingWhen: string;

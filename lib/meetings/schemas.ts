@@ -14,7 +14,6 @@ export const scheduleMeetingSchema = z.object({
   reminderDaysBefore: z.coerce.number({ message: "Enter a whole number of days." }).int("Enter a whole number of days.").min(0, "Enter 0 to 60 days.").max(60, "Enter 0 to 60 days."),
 });
 
-export type ScheduleMeetingInput = z.infer<typeof scheduleMeetingSchema>;
 
 /** Reads the schedule form (checkboxes arrive as repeated fields). */
 export function scheduleFormValues(form: FormData) {

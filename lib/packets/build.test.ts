@@ -8,20 +8,11 @@ import { documentText, packetContentHash, pdfSafeText, type PacketChart } from "
 import type { OpenPacketInput } from "./open-content";
 import type { ClosedPacketInput } from "./closed-content";
 import { niceTicks } from "./render-pdf";
+import { SINGLE_ARM_DEMO_DESIGN } from "@/db/seeds/demo-designs";
 
-// An invented single-arm scenario (the demo trial's design): Beta(0.6, 0.4) prior, p0 = 0.2,
-// nMax = 40, looks at 10/20/30/40, predictive rule thetaT = 0.9, thetaL = 0.05, safety qmax = 0.3.
-const design: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "beta", a: 0.6, b: 0.4 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 40,
-  looks: { kind: "list", sizes: [10, 20, 30, 40] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: { qmax: 0.3, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
-};
+// The demo trial's design: Beta(0.6, 0.4) prior, p0 = 0.2, nMax = 40, looks at 10/20/30/40,
+// predictive rule thetaT = 0.9, thetaL = 0.05, safety qmax = 0.3.
+const design: SingleArmDesign = SINGLE_ARM_DEMO_DESIGN;
 
 function openInput(over: Partial<OpenPacketInput["trial"]> = {}): OpenPacketInput {
   return {

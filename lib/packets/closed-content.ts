@@ -10,7 +10,7 @@ import type { LookDecision, MixtureBeta } from "@/lib/stats/types";
 import type { PacketChart, PacketSection } from "./document";
 
 /** Same palette as components/charts/plot.tsx (CAIRN_COLOURS), repeated here because that module is client-only. */
-export const PACKET_COLOURS = {
+const PACKET_COLOURS = {
   futility: "#9a5b06",
   efficacy: "#17707a",
   safety: "#a02a5a",

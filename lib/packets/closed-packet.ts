@@ -18,7 +18,7 @@ import type { PacketDocument } from "./document";
 import { loadOpenPacketInput, type MeetingPacketInput } from "./open-packet";
 import { storePacketIfChanged, type GeneratedPacket } from "./store";
 
-export type ClosedPacketResult = GeneratedPacket | { audience: "closed"; skipped: string };
+type ClosedPacketResult = GeneratedPacket | { audience: "closed"; skipped: string };
 
 /**
  * The closed packet document, or the reason it cannot be made yet. CLOSED: arm-level counts are
@@ -72,7 +72,7 @@ export async function prepareClosedPacket(trial: TrialRow, meetingId: number, us
  * packet's method section may carry the notation), e.g. "Predictive probability (Lee & Liu 2008):
  * final success bar (θT) 0.9; interim futility floor (θL) 0.05; no early-success stopping".
  */
-export function ruleWords(rule: { kind: string; thetaT: number; futilityThreshold: number; efficacyStopping: boolean; efficacyThreshold: number | null }, arms: "single" | "two"): string {
+function ruleWords(rule: { kind: string; thetaT: number; futilityThreshold: number; efficacyStopping: boolean; efficacyThreshold: number | null }, arms: "single" | "two"): string {
   const kind = rule.kind === "predictive" ? "predictive" : "posterior";
   const w = (key: "thetaT" | "futilityThreshold" | "efficacyThreshold") => {
     const t = thresholdWord(key, kind);

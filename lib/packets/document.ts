@@ -9,7 +9,7 @@ import { createHash } from "node:crypto";
 
 export type PacketAudience = "open" | "closed";
 
-export type ChartSeries = {
+type ChartSeries = {
   name: string;
   /** line: joined points; step: horizontal step through the points; points: markers only. */
   kind: "line" | "step" | "points" | "vline";

@@ -31,11 +31,11 @@ function wallIn(instant: number, tz: string): string {
 }
 
 /** Offset of the zone from UTC at an instant, in minutes (east positive). */
-export function zoneOffsetMinutes(instant: number, tz: string): number {
+function zoneOffsetMinutes(instant: number, tz: string): number {
   return tzOffset(tz, new Date(instant));
 }
 
-export type ZonedParse = { ok: true; utc: Date } | { ok: false; error: string };
+type ZonedParse = { ok: true; utc: Date } | { ok: false; error: string };
 
 /**
  * The UTC instant of a wall-clock time ("2026-12-10T15:00") in a zone. A time skipped by a clock

@@ -7,7 +7,7 @@
 import PDFDocument from "pdfkit";
 import { pdfSafeText, type PacketBlock, type PacketChart, type PacketDocument } from "./document";
 
-export type RenderMeta = { version: number; contentHash: string; engineVersion: string; generatedAt: Date; generatedBy: string };
+type RenderMeta = { version: number; contentHash: string; engineVersion: string; generatedAt: Date; generatedBy: string };
 
 const INK = "#1f1d19";
 const MUTED = "#5e584c";

@@ -55,7 +55,7 @@ function resolveImport(from: string, spec: string): string | null {
 }
 
 /** The project modules reachable from an entry point through static and dynamic imports. */
-export function importClosure(entry: string): string[] {
+function importClosure(entry: string): string[] {
   const seen = new Set<string>();
   const stack = [path.join(ROOT, entry)];
   while (stack.length) {

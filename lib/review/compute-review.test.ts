@@ -12,23 +12,14 @@ import { decideAtLook } from "@/lib/stats/decision";
 import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { ENGINE_VERSION } from "@/lib/stats/version";
 import { StatsDomainError } from "@/lib/stats/validate";
+import { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN } from "@/db/seeds/demo-designs";
 
 const close = (actual: number, expected: number, tol: number) => {
   expect(Math.abs(actual - expected), `expected ${expected}, got ${actual}, tolerance ${tol}`).toBeLessThanOrEqual(tol);
 };
 
-// An invented single-arm design shaped like Cairn's demo trial (Beta(0.6, 0.4) prior, p0 = 0.2).
-const SINGLE: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "beta", a: 0.6, b: 0.4 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 40,
-  looks: { kind: "list", sizes: [10, 20, 30, 40] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: { qmax: 0.3, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
-};
+// The demo trial's single-arm design (Beta(0.6, 0.4) prior, p0 = 0.2, nMax = 40, safety Beta(0.6, 1.4)).
+const SINGLE: SingleArmDesign = SINGLE_ARM_DEMO_DESIGN;
 
 const singleInput = (over: Partial<ReviewInput> = {}): ReviewInput => ({
   design: SINGLE,
@@ -154,18 +145,8 @@ describe("predictive probability against the published example", () => {
 });
 
 describe("two arms", () => {
-  const TWO: TwoArmDesign = {
-    arms: "two",
-    priorT: { family: "uniform" },
-    priorC: { family: "uniform" },
-    controlRate: 0.3,
-    experimentalRate: 0.5,
-    delta: 0,
-    nMaxPerArm: 30,
-    looks: { kind: "list", sizes: [15, 30] },
-    rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
-    safety: null,
-  };
+  // The demo's two-arm design with a uniform control prior and 30 per arm, looks at 15 and 30.
+  const TWO: TwoArmDesign = { ...TWO_ARM_DEMO_DESIGN, priorC: { family: "uniform" }, nMaxPerArm: 30, looks: { kind: "list", sizes: [15, 30] } };
   const input: ReviewInput = {
     design: TWO,
     arms: [

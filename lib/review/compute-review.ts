@@ -107,7 +107,7 @@ export type LookReview = {
  * observed (which may differ from the planned look size), beside the boundaries at the planned size.
  * Two arms: the experimental arm's boundary, read at the observed control count and control n.
  */
-export type ObservedBoundaryRow = {
+type ObservedBoundaryRow = {
   lookNumber: number;
   plannedN: number | null;
   n: number;
@@ -124,7 +124,7 @@ export type ObservedBoundaryRow = {
 };
 
 /** The safety counterpart: the toxicity boundary at the actual denominator and at the planned size. */
-export type ObservedSafetyRow = {
+type ObservedSafetyRow = {
   lookNumber: number;
   plannedN: number | null;
   n: number;
@@ -163,7 +163,7 @@ export type SafetyReview = {
   curves: Curves;
 };
 
-export type SensitivityRow = {
+type SensitivityRow = {
   key: "design" | "uniform" | "sceptical";
   label: string;
   description: string;

@@ -14,7 +14,7 @@ import { notFoundError, conflict } from "@/lib/http";
 import { armPosterior, reproducibilityRecord, type ReviewInput, type ReviewLook } from "./compute-review";
 
 /** The design version a review is computed under (the one the look is on: locked looks keep theirs). */
-export type ReviewDesignVersion = { id: number; version: number; status: "draft" | "locked" | "superseded"; lockedAt: Date | null };
+type ReviewDesignVersion = { id: number; version: number; status: "draft" | "locked" | "superseded"; lockedAt: Date | null };
 
 export type ReviewContext = { input: ReviewInput; analysis: AnalysisOpenRow; looks: AnalysisOpenRow[]; designVersion: ReviewDesignVersion };
 

@@ -28,7 +28,6 @@ export const recommendationSchema = z.object({
   password: signingPasswordSchema,
 });
 
-export type RecommendationInput = z.infer<typeof recommendationSchema>;
 
 export type RecommendationFormState = {
   ok?: string;

@@ -18,7 +18,7 @@ import { recommendationSchema } from "./recommendation-schema";
 import { fetchCommittee } from "@/db/queries/committee";
 import { committeeDecisionFacts } from "@/lib/committee/votes";
 
-export type RecordedRecommendation = { id: number; analysisId: number; decision: string; correctsId: number | null; signatureId: number; recordedAt: string };
+type RecordedRecommendation = { id: number; analysisId: number; decision: string; correctsId: number | null; signatureId: number; recordedAt: string };
 
 /**
  * @throws ZodError for invalid input (422), HttpError 422 for a wrong password, 404 when the

@@ -7,31 +7,24 @@
 import { describe, expect, it } from "vitest";
 import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
 import { computeReview, type ReviewInput } from "./compute-review";
+import { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN } from "@/db/seeds/demo-designs";
 import { REPRODUCTION_SCRIPT_HEADER, reproductionScript, reproductionScriptFileName } from "./reproduction-script";
 
-// Invented designs, of the demo's shape.
+// Variants of the demo designs: a robust mixture prior, 30 patients and efficacy stopping (one arm);
+// a posterior rule with a margin, 30 per arm (two arms).
 const single: SingleArmDesign = {
-  arms: "single",
+  ...SINGLE_ARM_DEMO_DESIGN,
   prior: { family: "robustMixture", mean: 0.25, ess: 8, weight: 0.7 },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
   nMax: 30,
   looks: { kind: "list", sizes: [10, 20, 30] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: true, efficacyThreshold: 0.99 },
-  safety: { qmax: 0.3, prior: { family: "beta", a: 0.6, b: 1.4 }, thetaS: 0.9 },
+  rule: { ...SINGLE_ARM_DEMO_DESIGN.rule, efficacyStopping: true, efficacyThreshold: 0.99 },
 };
 const two: TwoArmDesign = {
-  arms: "two",
-  priorT: { family: "uniform" },
-  priorC: { family: "informative", mean: 0.3, ess: 10 },
-  controlRate: 0.3,
-  experimentalRate: 0.5,
+  ...TWO_ARM_DEMO_DESIGN,
   delta: 0.05,
   nMaxPerArm: 30,
   looks: { kind: "list", sizes: [15, 30] },
   rule: { kind: "posterior", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: false, efficacyThreshold: null },
-  safety: null,
 };
 
 function singleInput(): ReviewInput {

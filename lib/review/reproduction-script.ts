@@ -23,7 +23,7 @@ export const REPRODUCTION_SCRIPT_HEADER = "# Cairn reproduction script (base R) 
 /** Differences above this fail the comparison the script prints (and the test command's check). */
 export const REPRODUCTION_TOLERANCE = 1e-8;
 
-export type ReproductionScriptArgs = {
+type ReproductionScriptArgs = {
   trialCode: string;
   input: ReviewInput;
   review: Review;

@@ -37,7 +37,7 @@ export function reviewInputSha256(input: ReviewInput): string {
   return createHash("sha256").update(canonical(rest), "utf8").digest("hex");
 }
 
-export function reviewCacheKey(ctx: ReviewContext): ReviewCacheKey {
+function reviewCacheKey(ctx: ReviewContext): ReviewCacheKey {
   return { analysisId: ctx.analysis.id, reviewVersion: ctx.analysis.review_version, engineVersion: ENGINE_VERSION, inputSha256: reviewInputSha256(ctx.input) };
 }
 

@@ -19,7 +19,7 @@ import { pendingOutlookSingleArm, pendingOutlookTwoArm, type PendingCell, type P
 import { singleArmBoundaryAtN, twoArmBoundaryAtN, type ReviewArmCounts, type ReviewInput } from "./compute-review";
 
 /** The counts of one arm at the look under review: responders / evaluable / pending. */
-export type ArmNow = { armId: number; label: string; responders: number; evaluable: number; pending: number };
+type ArmNow = { armId: number; label: string; responders: number; evaluable: number; pending: number };
 
 export type CountsNow = { arms: "single"; single: ArmNow } | { arms: "two"; experimental: ArmNow; control: ArmNow };
 
@@ -34,7 +34,7 @@ function arm(input: ReviewInput, role: "single" | "experimental" | "control"): A
 }
 
 /** The look under review's counts per arm. */
-export function countsNow(input: ReviewInput): CountsNow {
+function countsNow(input: ReviewInput): CountsNow {
   if (input.design.arms === "single") return { arms: "single", single: arm(input, "single") };
   return { arms: "two", experimental: arm(input, "experimental"), control: arm(input, "control") };
 }
@@ -82,7 +82,7 @@ export type WhatIfQuery =
   | { arms: "single"; patients: number; responders: number }
   | { arms: "two"; patientsT: number; respondersT: number; patientsC: number; respondersC: number };
 
-export type WhatIfPoint = { n: number; responders: number; nControl: number | null; respondersControl: number | null };
+type WhatIfPoint = { n: number; responders: number; nControl: number | null; respondersControl: number | null };
 
 export type WhatIfAnswer = {
   from: WhatIfPoint;

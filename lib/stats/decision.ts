@@ -26,12 +26,12 @@ import {
 import { requireData, requireFinite, requireProbability, StatsDomainError } from "./validate";
 
 /** Interim counts of a single-arm trial. `toxicities` is required when the design has a safety rule. */
-export type SingleArmLookData = { n: number; responders: number; toxicities?: number | null };
+type SingleArmLookData = { n: number; responders: number; toxicities?: number | null };
 /**
  * Interim counts of a two-arm trial. The safety rule, when present, watches the experimental arm:
  * `toxicitiesT` patients with toxicity among its nT.
  */
-export type TwoArmLookData = {
+type TwoArmLookData = {
   nT: number;
   respondersT: number;
   nC: number;
@@ -62,7 +62,7 @@ export type LookEvaluation = {
 // ---------------------------------------------------------------------------------------------
 
 /** Check a monitoring rule. @throws StatsDomainError naming the field and rule broken. */
-export function validateRule(rule: MonitoringRule): void {
+function validateRule(rule: MonitoringRule): void {
   if (!rule || typeof rule !== "object") throw new StatsDomainError("rule", rule, "must be a monitoring rule object");
   if (rule.kind !== "predictive" && rule.kind !== "posterior" && rule.kind !== "uncertainStandard")
     throw new StatsDomainError("rule.kind", rule.kind, 'must be "predictive", "posterior" or "uncertainStandard"');
@@ -84,7 +84,7 @@ export function validateRule(rule: MonitoringRule): void {
 }
 
 /** Check an uncertain standard rate's Beta(a, b) and return it as a one-component mixture. */
-export function validateStandard(name: string, standard: StandardRatePrior | null | undefined): MixtureBeta {
+function validateStandard(name: string, standard: StandardRatePrior | null | undefined): MixtureBeta {
   if (!standard || typeof standard !== "object") throw new StatsDomainError(name, standard, "must be a Beta(a, b) for the standard rate");
   requireFinite(`${name}.a`, standard.a);
   requireFinite(`${name}.b`, standard.b);

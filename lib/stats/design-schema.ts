@@ -12,7 +12,7 @@ const threshold = (what: string) =>
 const count = (what: string, max = 2000) =>
   z.number({ message: `${what} must be a number.` }).int(`${what} must be a whole number.`).min(1, `${what} must be at least 1.`).max(max, `${what} can be at most ${max}.`);
 
-export const priorSpecSchema = z.discriminatedUnion("family", [
+const priorSpecSchema = z.discriminatedUnion("family", [
   z.object({ family: z.literal("uniform") }),
   z.object({ family: z.literal("jeffreys") }),
   z.object({
@@ -29,17 +29,17 @@ export const priorSpecSchema = z.discriminatedUnion("family", [
   }),
 ]);
 
-export const lookScheduleSchema = z.discriminatedUnion("kind", [
+const lookScheduleSchema = z.discriminatedUnion("kind", [
   z.object({ kind: z.literal("list"), sizes: z.array(count("A look size")).min(1, "List at least one look.").max(500, "At most 500 looks.") }),
   z.object({ kind: z.literal("every"), first: count("The first look"), every: count("The look spacing") }),
 ]);
 
-export const standardRatePriorSchema = z.object({
+const standardRatePriorSchema = z.object({
   a: z.number({ message: "aS must be a number." }).gt(0, "aS must be greater than 0.").max(100_000, "aS can be at most 100000."),
   b: z.number({ message: "bS must be a number." }).gt(0, "bS must be greater than 0.").max(100_000, "bS can be at most 100000."),
 });
 
-export const monitoringRuleSchema = z
+const monitoringRuleSchema = z
   .object({
     kind: z.enum(["predictive", "posterior", "uncertainStandard"]),
     thetaT: threshold("The final success threshold"),
@@ -65,7 +65,7 @@ const margin = (what: string) =>
  * Two forms in one object so that stored fixed-limit rules (no `kind`) parse to exactly what was
  * stored; the refinements require the fields each form needs.
  */
-export const safetyRuleSchema = z
+const safetyRuleSchema = z
   .object({
     kind: z.enum(["fixedLimit", "uncertainStandard"]).optional(),
     qmax: prob("The toxicity limit").optional(),
@@ -122,7 +122,7 @@ export const twoArmDesignSchema = z
   })
   .refine((d) => looksWithin(d.nMaxPerArm, d.looks), { message: "Every look must be at or below the maximum sample size per arm.", path: ["looks"] });
 
-export const designSchema = z.union([singleArmDesignSchema, twoArmDesignSchema]);
+const designSchema = z.union([singleArmDesignSchema, twoArmDesignSchema]);
 
 /** Parses a stored or submitted design; throws ZodError on anything else. */
 export function parseDesign(input: unknown): Design {

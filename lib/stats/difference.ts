@@ -73,7 +73,7 @@ function kronrod15(f: (t: number) => number, a: number, b: number): Panel {
  * the largest error estimate until the summed estimate is at most absTol (> 0) or maxPanels is
  * reached. Returns the value and the summed error estimate. f must be finite on (a, b).
  */
-export function integrateGaussKronrod(
+function integrateGaussKronrod(
   f: (t: number) => number,
   a: number,
   b: number,
@@ -147,7 +147,7 @@ function gaussLegendre(n: number): { nodes: Float64Array; weights: Float64Array 
 const { nodes: GL_NODES, weights: GL_WEIGHTS } = gaussLegendre(64);
 
 /** Absolute error target for one pair of components (the mixture total stays well below 1e-8). */
-export const PAIR_ABS_TOL = 1e-10;
+const PAIR_ABS_TOL = 1e-10;
 
 /**
  * P(X - Y > delta) for X ~ Beta(aT, bT), Y ~ Beta(aC, bC) independent; shapes > 0, delta in (-1, 1).

@@ -25,7 +25,7 @@ export function requireMixture(name: string, m: MixtureBeta): void {
 }
 
 /** The vague component of a robust mixture (Schmidli et al. 2014 use a unit-information prior; Cairn uses Beta(1, 1)). */
-export const VAGUE_COMPONENT = { a: 1, b: 1 } as const;
+const VAGUE_COMPONENT = { a: 1, b: 1 } as const;
 
 /** Resolve a prior specification to its mixture-of-Betas form. */
 export function resolvePrior(spec: PriorSpec): MixtureBeta {

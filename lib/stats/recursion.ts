@@ -42,7 +42,7 @@ export function efficacyBottom(stat: Float64Array, threshold: number): number {
 }
 
 /** Per-look stopping probabilities written by the recursions (length = number of looks). */
-export type LookArrays = { fut: Float64Array; eff: Float64Array; cont: Float64Array };
+type LookArrays = { fut: Float64Array; eff: Float64Array; cont: Float64Array };
 
 export function lookArrays(K: number): LookArrays {
   return { fut: new Float64Array(K), eff: new Float64Array(K), cont: new Float64Array(K) };

@@ -32,7 +32,7 @@ export function mulberry32(seed: number): () => number {
   };
 }
 
-export type SimulatedOperatingCharacteristics = {
+type SimulatedOperatingCharacteristics = {
   seed: number;
   trials: number;
   /** Per look, the fraction of trials stopping there (final look: no success / success). */
@@ -224,7 +224,7 @@ export function simulateTwoArmTrials(
   return summarise(opts.seed, opts.trials, looks, fut, eff, sumN, sumN2);
 }
 
-export type SimulatedSafetyAwareOperatingCharacteristics = {
+type SimulatedSafetyAwareOperatingCharacteristics = {
   seed: number;
   trials: number;
   pEarlyFutility: number;

@@ -14,7 +14,7 @@ export type PriorSpec =
   | { family: "robustMixture"; mean: number; ess: number; weight: number };
 
 /** One Beta component of a (possibly one-component) mixture. */
-export type BetaComponent = { weight: number; a: number; b: number };
+type BetaComponent = { weight: number; a: number; b: number };
 /** The resolved form every computation works with: weights sum to 1. */
 export type MixtureBeta = BetaComponent[];
 
@@ -56,8 +56,8 @@ export type MonitoringRule = {
  *   with the standard toxicity rate qS ~ Beta(standard.a, standard.b) independent of q.
  * Specs stored before the second form existed have no `kind` and mean the fixed limit.
  */
-export type FixedLimitSafetyRule = { kind?: "fixedLimit"; qmax: number; prior: PriorSpec; thetaS: number };
-export type UncertainStandardSafetyRule = {
+type FixedLimitSafetyRule = { kind?: "fixedLimit"; qmax: number; prior: PriorSpec; thetaS: number };
+type UncertainStandardSafetyRule = {
   kind: "uncertainStandard";
   standard: StandardRatePrior;
   /** Added to qS; 0 compares with the standard itself, a positive margin tolerates that much more toxicity. */
@@ -106,7 +106,7 @@ export type TwoArmDesign = {
 
 export type Design = SingleArmDesign | TwoArmDesign;
 
-export type StopReason = "futility" | "efficacy" | "safety";
+type StopReason = "futility" | "efficacy" | "safety";
 /** The outcome at a look: stop with a reason, continue, or (at nMax) success / no success. */
 export type LookDecision =
   | { action: "continue"; reason: string }

@@ -29,7 +29,7 @@ import { requireCount, requireData, StatsDomainError } from "./validate";
  *   (final look: no success); null when no count among them does (futility is already out of the
  *   way). Equal to `ahead` when every outcome ends in futility.
  */
-export type LookAhead = {
+type LookAhead = {
   /** Planned look size (cumulative evaluable patients; per arm for two arms). */
   n: number;
   final: boolean;
@@ -58,14 +58,14 @@ export type SingleArmWhatItTakes = {
 const plural = (k: number, one: string, many: string) => `${k} ${k === 1 ? one : many}`;
 
 /** Responders among `ahead` still to come that put x + y at or above `min` (null: none can). */
-export function atLeastAmong(x: number, ahead: number, min: number | null): number | null {
+function atLeastAmong(x: number, ahead: number, min: number | null): number | null {
   if (min === null) return null;
   const need = Math.max(0, min - x);
   return need <= ahead ? need : null;
 }
 
 /** Largest y in 0..ahead with x + y at or below `max` (null: no y). */
-export function atMostAmong(x: number, ahead: number, max: number | null): number | null {
+function atMostAmong(x: number, ahead: number, max: number | null): number | null {
   if (max === null || max < x) return null;
   return Math.min(ahead, max - x);
 }

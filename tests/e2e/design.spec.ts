@@ -12,6 +12,7 @@ import { calibrateSingleArm } from "@/lib/stats/calibration";
 import { groupByCharacteristics } from "@/lib/design/calibration-groups";
 import { formatBoundary, formatProbability } from "@/lib/format";
 import type { SingleArmDesign, TwoArmDesign } from "@/lib/stats/types";
+import { SINGLE_ARM_DEMO_DESIGN, TWO_ARM_DEMO_DESIGN } from "@/db/seeds/demo-designs";
 
 const suffix = `${Date.now() % 1_000_000}`;
 
@@ -66,17 +67,8 @@ test("a statistician designs a single-arm trial, calibrates it and locks it with
   await expect(page.getByTestId("preview-status")).toHaveText("waiting for valid inputs");
   await page.getByLabel("p1, target rate").fill("0.4");
 
-  const design: SingleArmDesign = {
-    arms: "single",
-    prior: { family: "beta", a: 0.6, b: 0.4 },
-    p0: 0.2,
-    p1: 0.4,
-    delta: 0,
-    nMax: 40,
-    looks: { kind: "list", sizes: [10, 20, 30] },
-    rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-    safety: null,
-  };
+  // The demo's single-arm design, with looks at 10, 20 and 30 and no safety rule (as typed above).
+  const design: SingleArmDesign = { ...SINGLE_ARM_DEMO_DESIGN, looks: { kind: "list", sizes: [10, 20, 30] }, safety: null };
   const engine = typeIErrorAndPower(design);
   await waitForPreview(page);
   await expect(page.getByTestId("oc-type-i-error")).toHaveText(formatProbability(engine.typeIError));
@@ -178,18 +170,8 @@ test("a statistician designs a two-arm trial and the operating characteristics m
   await page.getByLabel("Maximum sample size per arm").fill("40");
   await page.getByLabel("Stop early for efficacy").check();
   await page.getByLabel("Early-success bar θU", { exact: true }).fill("0.99");
-  const design: TwoArmDesign = {
-    arms: "two",
-    priorT: { family: "uniform" },
-    priorC: { family: "informative", mean: 0.3, ess: 10 },
-    controlRate: 0.3,
-    experimentalRate: 0.5,
-    delta: 0,
-    nMaxPerArm: 40,
-    looks: { kind: "every", first: 20, every: 10 },
-    rule: { kind: "predictive", thetaT: 0.95, futilityThreshold: 0.1, efficacyStopping: true, efficacyThreshold: 0.99 },
-    safety: null,
-  };
+  // The demo's two-arm design with 40 per arm and looks every 10 from 20 (as typed above).
+  const design: TwoArmDesign = { ...TWO_ARM_DEMO_DESIGN, nMaxPerArm: 40, looks: { kind: "every", first: 20, every: 10 } };
   const engine = twoArmTypeIErrorAndPower(design);
   await waitForPreview(page);
   await expect(page.getByTestId("oc-type-i-error")).toHaveText(formatProbability(engine.typeIError));

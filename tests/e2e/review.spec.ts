@@ -9,12 +9,17 @@ import { expect, test, type Page } from "@playwright/test";
 import { ACCOUNTS, signIn } from "./support/accounts";
 import { findOutcomeData } from "./support/authorization-matrix";
 import { betaCdf } from "@/lib/stats/distributions";
+import { SINGLE_ARM_DEMO_DESIGN } from "@/db/seeds/demo-designs";
 
 // The review page computes on the server and Plotly loads lazily: allow for a loaded shared machine.
 test.describe.configure({ mode: "serial", timeout: 300_000 });
 
-/** The demo single-arm design's prior, Beta(0.6, 0.4) (db/seeds/demo.ts). */
-const PRIOR = { a: 0.6, b: 0.4 };
+/** The demo single-arm design's prior, Beta(0.6, 0.4) (db/seeds/demo-designs.ts). */
+const PRIOR = (() => {
+  const p = SINGLE_ARM_DEMO_DESIGN.prior;
+  if (p.family !== "beta") throw new Error("the demo single-arm design's prior is expected to be a Beta prior");
+  return p;
+})();
 let trialPath = "";
 let reviewPath = "";
 let recordedLabel = "";

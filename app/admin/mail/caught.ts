@@ -17,12 +17,12 @@ const summarySchema = z.object({
   subject: z.string(),
   attachments: z.array(z.object({ filename: z.string().nullable(), contentType: z.string(), size: z.number() })),
 });
-export type CaughtMessage = z.infer<typeof summarySchema>;
+type CaughtMessage = z.infer<typeof summarySchema>;
 
 /** Catcher ids are a time stamp and a short random suffix; anything else is refused (no path tricks). */
-export const CAUGHT_ID = /^[0-9A-Za-z-]{10,80}$/;
+const CAUGHT_ID = /^[0-9A-Za-z-]{10,80}$/;
 
-export function mailDir(): string {
+function mailDir(): string {
   return path.resolve(config.mailCatcherDir());
 }
 

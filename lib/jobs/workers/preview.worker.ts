@@ -10,7 +10,7 @@ import { lowerThisThreadPriority } from "./lower-priority";
 
 lowerThisThreadPriority();
 
-export type PreviewLabels = { arm?: string; experimental?: string; control?: string };
+type PreviewLabels = { arm?: string; experimental?: string; control?: string };
 export type PreviewTask = { design: Design; labels: PreviewLabels };
 
 export default function previewTask(task: PreviewTask): WorkerOutcome<DesignPreview> {

@@ -7,7 +7,7 @@ import { StatsDomainError } from "@/lib/stats/validate";
 
 export type WorkerOutcome<T> = { ok: true; value: T } | { ok: false; error: WorkerError };
 
-export type WorkerError =
+type WorkerError =
   | { kind: "domain"; argument: string; value: string; rule: string }
   | { kind: "other"; name: string; message: string };
 

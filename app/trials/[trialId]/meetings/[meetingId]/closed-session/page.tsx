@@ -11,6 +11,7 @@ import type { RecommendationDecision } from "@/db/types";
 import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
 import { CommitteeForm } from "@/components/committee/committee-form";
+import { MinutesCard } from "@/components/committee/minutes-card";
 import { approveMinutesAction, saveClosedMinutesAction } from "../committee/actions";
 import { castVoteAction, recordCommitteeRecommendationAction } from "./actions";
 
@@ -46,7 +47,6 @@ export default async function ClosedSessionPage({ params }: { params: Promise<{ 
   const current = recommendations.find((r) => !r.correctedById && !r.superseded);
   const live = meeting.status !== "cancelled";
   const hidden = { trialId: trial.id, meetingId: meeting.id };
-  const latestDraft = minutes[0] && !minutes[0].approved ? minutes[0] : null;
 
   return (
     <div className="flex flex-col gap-4">
@@ -123,35 +123,7 @@ export default async function ClosedSessionPage({ params }: { params: Promise<{ 
         ) : null}
       </Card>
 
-      <Card title="Closed session minutes">
-        <ul className="flex flex-col gap-3 text-sm" aria-label="Closed minutes versions">
-          {minutes.map((m) => (
-            <li key={m.id} data-testid="closed-minutes-version">
-              <p className="font-medium">Version {m.version} {m.approved ? <Badge tone="lichen">approved by {m.approvedBy}</Badge> : <Badge tone="amber">draft</Badge>}</p>
-              <p className="whitespace-pre-wrap text-stone-700">{m.body}</p>
-            </li>
-          ))}
-        </ul>
-        {minutes.length === 0 ? <p className="text-sm text-stone-600">No closed minutes yet.</p> : null}
-        {live ? (
-          <div className="mt-3 max-w-2xl">
-            <CommitteeForm
-              action={saveClosedMinutesAction}
-              label="Draft the closed minutes"
-              hidden={{ ...hidden, rowVersion: latestDraft?.rowVersion ?? "" }}
-              fields={[{ kind: "textarea", name: "body", label: latestDraft ? `Closed minutes (editing draft version ${latestDraft.version})` : minutes.length ? "Closed minutes (a correction: a new version)" : "Closed minutes", hint: "Closed: only the DMC and the unblinded statistician read this.", rows: 6, defaultValue: latestDraft?.body ?? minutes[0]?.body ?? "" }]}
-              submit="Save draft"
-              pendingLabel="Saving…"
-              variant="secondary"
-            />
-          </div>
-        ) : null}
-        {isChair && latestDraft ? (
-          <div className="mt-3 max-w-md">
-            <CommitteeForm action={approveMinutesAction} label="Approve the closed minutes" hidden={{ ...hidden, session: "closed" }} fields={[{ kind: "password", name: "password", label: "Password (electronic signature)" }]} submit={`Approve version ${latestDraft.version}`} pendingLabel="Signing…" />
-          </div>
-        ) : null}
-      </Card>
+      <MinutesCard session="closed" minutes={minutes} hidden={hidden} mayDraft={live} mayApprove={isChair} saveAction={saveClosedMinutesAction} approveAction={approveMinutesAction} />
     </div>
   );
 }

@@ -15,6 +15,7 @@ import type { RecommendationDecision } from "@/db/types";
 import { Card } from "@/components/ui/card";
 import { Badge } from "@/components/ui/badge";
 import { CommitteeForm } from "@/components/committee/committee-form";
+import { MinutesCard } from "@/components/committee/minutes-card";
 import { approveMinutesAction, declareConflictsAction, recordClosedAttendanceAction, recordOpenAttendanceAction, saveOpenMinutesAction, sendLetterAction, signLetterAction } from "./actions";
 
 export const metadata: Metadata = { title: "Committee meeting" };
@@ -60,7 +61,6 @@ export default async function MeetingCommitteePage({ params }: { params: Promise
     people.set(m.userId, e);
   }
   const closedEligible = [...new Set([...committee.map((m) => m.userId), ...memberships.filter((m) => m.role === "unblinded_statistician").map((m) => m.userId)])];
-  const latestDraft = minutes[0] && !minutes[0].approved ? minutes[0] : null;
   const mayDraft = allows(principal, "manageMeetings") || allows(principal, "recordRecommendation");
   const myDeclaration = declarations.find((d) => d.userId === user.id);
   const letterMail = isChair || allows(principal, "manageMeetings") ? (await fetchEmailsForMeeting(meeting.id)).filter((e) => e.kind === "recommendation_letter") : [];
@@ -132,35 +132,7 @@ export default async function MeetingCommitteePage({ params }: { params: Promise
         ) : null}
       </Card>
 
-      <Card title="Open session minutes">
-        <ul className="flex flex-col gap-3 text-sm" aria-label="Open minutes versions">
-          {minutes.map((m) => (
-            <li key={m.id} data-testid="open-minutes-version">
-              <p className="font-medium">Version {m.version} {m.approved ? <Badge tone="lichen">approved by {m.approvedBy}</Badge> : <Badge tone="amber">draft</Badge>}</p>
-              <p className="whitespace-pre-wrap text-stone-700">{m.body}</p>
-            </li>
-          ))}
-        </ul>
-        {minutes.length === 0 ? <p className="text-sm text-stone-600">No open minutes yet.</p> : null}
-        {mayDraft && live ? (
-          <div className="mt-3 max-w-2xl">
-            <CommitteeForm
-              action={saveOpenMinutesAction}
-              label="Draft the open minutes"
-              hidden={{ ...hidden, rowVersion: latestDraft?.rowVersion ?? "" }}
-              fields={[{ kind: "textarea", name: "body", label: latestDraft ? `Open minutes (editing draft version ${latestDraft.version})` : minutes.length ? "Open minutes (a correction: a new version)" : "Open minutes", hint: "Open: everyone on the trial, blinded roles included, reads the open minutes.", rows: 6, defaultValue: latestDraft?.body ?? minutes[0]?.body ?? "" }]}
-              submit="Save draft"
-              pendingLabel="Saving…"
-              variant="secondary"
-            />
-          </div>
-        ) : null}
-        {isChair && latestDraft ? (
-          <div className="mt-3 max-w-md">
-            <CommitteeForm action={approveMinutesAction} label="Approve the open minutes" hidden={{ ...hidden, session: "open" }} fields={[{ kind: "password", name: "password", label: "Password (electronic signature)" }]} submit={`Approve version ${latestDraft.version}`} pendingLabel="Signing…" />
-          </div>
-        ) : null}
-      </Card>
+      <MinutesCard session="open" minutes={minutes} hidden={hidden} mayDraft={mayDraft && live} mayApprove={isChair} saveAction={saveOpenMinutesAction} approveAction={approveMinutesAction} />
 
       <Card title="Recommendation letter to the sponsor">
         <ul className="flex flex-col gap-1 text-sm" aria-label="Letter versions">
