@@ -47,6 +47,27 @@ describe("formError: the same rules as errorResponse, as form state", () => {
   });
 });
 
+describe("formError with fieldsBeside: a refusal naming a field is shown beside it", () => {
+  it("maps an HttpError's details.field to that field, with the form's top line asking to check the fields", () => {
+    const e = new HttpError(422, "Choose a time in the future.", { field: "scheduledLocal" });
+    expect(formError(e, { fieldsBeside: true })).toEqual({ error: "Check the highlighted fields.", fieldErrors: { scheduledLocal: ["Choose a time in the future."] } });
+    // Without the option (forms that show only a message) the message itself is the form's message.
+    expect(formError(e)).toEqual({ error: "Choose a time in the future." });
+  });
+
+  it("leaves an HttpError without a field as the form's message", () => {
+    expect(formError(new HttpError(409, "Only a scheduled meeting can be cancelled."), { fieldsBeside: true })).toEqual({ error: "Only a scheduled meeting can be cancelled." });
+    expect(formError(new HttpError(409, "Refused.", { field: 3 }), { fieldsBeside: true })).toEqual({ error: "Refused." });
+  });
+
+  it("keys a zod error's sentences by the top-level field (a list's items under the list)", () => {
+    const parsed = z.object({ ids: z.array(z.coerce.number().int("Choose a listed person.")), days: z.number().max(60, "Enter 0 to 60 days.") }).safeParse({ ids: ["1", "1.5"], days: "x" });
+    const state = formError(parsed.error, { fieldsBeside: true });
+    expect(state.error).toBe("Check the highlighted fields.");
+    expect(state.fieldErrors).toEqual({ ids: ["Choose a listed person."], days: ["Enter a number."] });
+  });
+});
+
 describe("formAction", () => {
   it("returns the action's own state when it succeeds, and the mapped error when it throws", async () => {
     const ok = formAction(async (n: number) => ({ ok: `saved ${n}` }));

@@ -6,17 +6,15 @@ import { createAccountWithLink, grantTrialRole, reissuePasswordLink, revokeTrial
 import { ensureMailWorker, deliverWithRetries } from "@/lib/mail/delivery";
 import { accountActionSchema, assignRoleSchema, createAccountSchema, removeRoleSchema, type FormState } from "./schemas";
 import type { PublicUser, TrialRole } from "@/db/types";
-import { HttpError } from "@/lib/http";
 import { formError } from "@/lib/form-action";
 
 /**
- * An HttpError becomes a message on the form (a field error when it names a field); anything else
- * (the database down, a fault) is mapped by formError, so it too reaches the form, never the error page.
+ * Any failure becomes form state through the one mapping (lib/form-action.ts): a refusal naming a
+ * field is shown beside that field, anything else (the database down, a fault) as the form's
+ * message, never the error page.
  */
 function refused(e: unknown, values?: Record<string, string>): FormState {
-  if (!(e instanceof HttpError)) return { ...formError(e), values };
-  const field = (e.details as { field?: string } | undefined)?.field;
-  return field ? { error: "Check the highlighted fields.", fieldErrors: { [field]: [e.message] }, values } : { error: e.message, values };
+  return { ...formError(e, { fieldsBeside: true }), values };
 }
 
 async function admin(): Promise<PublicUser | FormState> {

@@ -33,6 +33,11 @@ export async function fetchMemberships(filter: { trialId?: number } = {}, tx: Tx
   return q;
 }
 
+/** The trials on which this person holds `role`, by trial id (the order locks are taken in). */
+export async function fetchTrialsWithRole(userId: number, role: TrialRole, tx: Tx = db): Promise<{ trialId: number; trialCode: string }[]> {
+  return tx("trial_memberships as m").join("trials as t", "t.id", "m.trial_id").where({ "m.user_id": userId, "m.role": role }).orderBy("m.trial_id").select("m.trial_id as trialId", "t.code as trialCode");
+}
+
 export async function fetchMembershipById(id: number, tx: Tx = db) {
   return tx("trial_memberships").where({ id }).first();
 }

@@ -27,7 +27,7 @@ import {
   updateUserPassword,
 } from "@/db/queries/users";
 import { fetchPasswordLinkByHash, fetchPasswordLinkForUpdate, insertPasswordLink, markPasswordLinkUsed, revokeOpenPasswordLinks } from "@/db/queries/password-links";
-import { deleteMembership, fetchActiveRoleHoldersForUpdate, fetchMembershipById, fetchRolesOnTrial, insertMembership } from "@/db/queries/memberships";
+import { deleteMembership, fetchActiveRoleHoldersForUpdate, fetchMembershipById, fetchRolesOnTrial, fetchTrialsWithRole, insertMembership } from "@/db/queries/memberships";
 import { insertEmails } from "@/db/queries/emails";
 import { fetchTrial } from "@/db/queries/trials";
 import type { PasswordLinkRow, PublicUser, TrialRole, UserRow } from "@/db/types";
@@ -174,7 +174,36 @@ export async function changeOwnPassword(user: PublicUser, currentPassword: strin
   });
 }
 
-/** Deactivates (or reactivates) an account; deactivation ends its sessions at once. Never deletes. */
+/**
+ * The rule that every trial keeps an active unblinded statistician: the closed review, locking looks
+ * and preparing the closed packet need one, and a trial left without one cannot be monitored. Refuses
+ * (409, naming the person and the trial or trials) when `userId` is the only active holder on any of
+ * `trials`; the holders' rows stay locked until the transaction ends, so two administrators removing
+ * the last two at once cannot both see "one more left". Used by revokeTrialRole (one role) and
+ * setAccountActive (every trial the account is unblinded statistician on).
+ */
+async function keepAnUnblindedStatistician(tx: Tx, userId: number, userName: string | undefined, trials: { trialId: number; trialCode: string | undefined }[]): Promise<void> {
+  const leftWithout: string[] = [];
+  for (const t of trials) {
+    const holders = await fetchActiveRoleHoldersForUpdate(tx, t.trialId, "unblinded_statistician");
+    if (!holders.some((h) => h.userId !== userId)) leftWithout.push(t.trialCode ?? "this trial");
+  }
+  if (leftWithout.length === 0) return;
+  const on = leftWithout.length === 1 ? leftWithout[0] : `${leftWithout.slice(0, -1).join(", ")} and ${leftWithout.at(-1)}`;
+  throw conflict(`${userName ?? "This person"} is the last unblinded statistician on ${on}. Give the role to someone else first: the trial needs one to review looks and prepare the closed packet.`);
+}
+
+/** Two administrators changing the same trial's roles or accounts at once: the loser changes nothing and may try again. */
+function rolesRace(e: unknown): never {
+  if ((e as { code?: string }).code === "ER_LOCK_DEADLOCK") throw conflict("Someone else changed this trial's roles at the same moment. Nothing was changed; try again.");
+  throw e;
+}
+
+/**
+ * Deactivates (or reactivates) an account; deactivation ends its sessions at once. Never deletes.
+ * Refused for the last active administrator, and for an account that is the last active unblinded
+ * statistician of a trial (keepAnUnblindedStatistician).
+ */
 export async function setAccountActive(admin: PublicUser, userId: number, active: boolean): Promise<PublicUser> {
   if (userId === admin.id) throw conflict(active ? "You are already active." : "You cannot deactivate your own account; another administrator must.");
   return writeTransaction(async (tx) => {
@@ -182,6 +211,7 @@ export async function setAccountActive(admin: PublicUser, userId: number, active
     if (!user) throw notFoundError("That account");
     if (Boolean(user.is_active) === active) throw conflict(`${user.name} is already ${active ? "active" : "deactivated"}.`);
     if (!active && user.is_admin && (await countActiveAdmins(tx)) <= 1) throw conflict("This is the last active administrator; it cannot be deactivated.");
+    if (!active) await keepAnUnblindedStatistician(tx, user.id, user.name, await fetchTrialsWithRole(user.id, "unblinded_statistician", tx));
     await updateUserActive(tx, userId, active);
     await appendAudit(tx, {
       actorUserId: admin.id,
@@ -195,7 +225,7 @@ export async function setAccountActive(admin: PublicUser, userId: number, active
       newValues: { isActive: active, account: user.email, by: admin.email },
     });
     return { id: user.id, email: user.email, name: user.name, isAdmin: Boolean(user.is_admin), isActive: active };
-  });
+  }).catch(rolesRace);
 }
 
 /** Gives a trial role under the separation-of-duties rule; the audit row names who gave it and to whom. */
@@ -225,24 +255,14 @@ export async function grantTrialRole(admin: PublicUser, input: { userId: number;
   });
 }
 
-/**
- * Removes one role on one trial. Refused for the last active unblinded statistician of a trial: the
- * closed review, locking looks and preparing the closed packet need one, and a trial left without
- * one cannot be monitored (give the role to someone else first).
- */
+/** Removes one role on one trial. Refused for the last active unblinded statistician of a trial (keepAnUnblindedStatistician). */
 export async function revokeTrialRole(admin: PublicUser, membershipId: number): Promise<void> {
   try {
     await writeTransaction(async (tx) => {
       const m = await fetchMembershipById(membershipId, tx);
       if (!m) throw notFoundError("That role assignment");
       const user = await fetchUserById(m.user_id, tx);
-      if (m.role === "unblinded_statistician") {
-        const holders = await fetchActiveRoleHoldersForUpdate(tx, m.trial_id, "unblinded_statistician");
-        const trial = await fetchTrial(m.trial_id, tx);
-        if (!holders.some((h) => h.id !== m.id)) {
-          throw conflict(`${user?.name ?? "This person"} is the last unblinded statistician on ${trial?.code ?? "this trial"}. Give the role to someone else first: the trial needs one to review looks and prepare the closed packet.`);
-        }
-      }
+      if (m.role === "unblinded_statistician") await keepAnUnblindedStatistician(tx, m.user_id, user?.name, [{ trialId: m.trial_id, trialCode: (await fetchTrial(m.trial_id, tx))?.code }]);
       await deleteMembership(tx, m.id);
       await appendAudit(tx, {
         actorUserId: admin.id,
@@ -256,8 +276,6 @@ export async function revokeTrialRole(admin: PublicUser, membershipId: number): 
       });
     });
   } catch (e) {
-    // Two removals racing on the same trial's rows: the loser changes nothing and may try again.
-    if ((e as { code?: string }).code === "ER_LOCK_DEADLOCK") throw conflict("Someone else changed this trial's roles at the same moment. Nothing was changed; try again.");
-    throw e;
+    rolesRace(e);
   }
 }

@@ -116,6 +116,15 @@ function decideTrialAccess(user: PublicUser, { trial, roles }: AccessFacts, cap:
     : { user, trial, roles, principal, unblinded: false, reader: blindDb, closed: null };
 }
 
+/**
+ * For services: re-checks that an access already obtained allows `cap`, with the same 403 words as
+ * requireTrialAccess, so a service called with a weaker access (a sponsor's, a DMC member's) refuses
+ * before it reads or writes anything.
+ */
+export function assertCapability(access: TrialAccess, cap: Capability): void {
+  if (!allows(access.principal, cap)) throw forbiddenError(describe(cap));
+}
+
 /** For pages: the same checks, answered the way a browser expects (sign-in redirect, 404 page, 403 page). */
 export async function authorizePage(trialId: number, cap: Capability): Promise<TrialAccess> {
   try {

@@ -7,92 +7,52 @@
 import { formId } from "@/lib/route-params";
 import { after } from "next/server";
 import { revalidatePath } from "next/cache";
-import { writeTransaction } from "@/db/knex";
-import { appendAudit } from "@/db/audit";
 import { requireTrialAccess, type TrialAccess } from "@/lib/auth";
-import { HttpError, publicErrorMessage } from "@/lib/http";
-import { fetchAnalysisOpen } from "@/db/queries/open-status";
-import { fetchMemberships } from "@/db/queries/memberships";
-import { fetchAttendees, fetchMeeting, insertMeeting, recordAttendance, updateMeetingStatus } from "@/db/queries/meetings";
-import { requeueFailedEmail, fetchEmail } from "@/db/queries/emails";
-import { zonedWallTimeToUtc } from "@/lib/packets/meeting-time";
+import { HttpError } from "@/lib/http";
+import { formAction } from "@/lib/form-action";
+import * as meetings from "@/lib/meetings/service";
 import { generateOpenPacket } from "@/lib/packets/open-packet";
 import { queueDueReminders, queuePacketMail } from "@/lib/mail/outbox";
 import { deliverWithRetries, ensureMailWorker } from "@/lib/mail/delivery";
-import { attendanceSchema, emailRefSchema, meetingRefSchema, scheduleFormValues, scheduleMeetingSchema, type MeetingFormState } from "@/lib/meetings/schemas";
+import { meetingRefSchema, scheduleFormValues, type MeetingFormState } from "@/lib/meetings/schemas";
 
-async function access(trialIdRaw: FormDataEntryValue | null): Promise<TrialAccess | MeetingFormState> {
-  try {
-    return await requireTrialAccess(formId(trialIdRaw), "manageMeetings");
-  } catch (e) {
-    if (e instanceof HttpError) return { error: e.message };
-    throw e;
-  }
+/**
+ * Every meeting action: the access check for the trial named in the form, then the act; whatever
+ * either throws (a refusal, a field refused, the database down) becomes the form's state through
+ * the one mapping (lib/form-action.ts), never the error page.
+ */
+function meetingAct(form: FormData, act: (access: TrialAccess) => Promise<MeetingFormState>): Promise<MeetingFormState> {
+  return formAction(async () => act(await requireTrialAccess(formId(form.get("trialId")), "manageMeetings")), { fieldsBeside: true })();
 }
-const isState = (a: TrialAccess | MeetingFormState): a is MeetingFormState => !("trial" in a);
+
+/** The meeting named by the form's hidden fields. */
+function meetingRef(form: FormData): number {
+  const ref = meetingRefSchema.safeParse({ trialId: form.get("trialId"), meetingId: form.get("meetingId") });
+  if (!ref.success) throw new HttpError(422, "That meeting is not valid.");
+  return ref.data.meetingId;
+}
 
 function deliverLater(ids: number[]): void {
   ensureMailWorker();
-  after(async () => {
-    try {
-      await deliverWithRetries(ids);
-    } catch (e) {
-      console.error("[cairn] background mail delivery stopped; the retry sweep will pick the messages up", e);
-    }
-  });
+  try {
+    after(async () => {
+      try {
+        await deliverWithRetries(ids);
+      } catch (e) {
+        console.error("[cairn] background mail delivery stopped; the retry sweep will pick the messages up", e);
+      }
+    });
+  } catch {
+    // Called outside a request (a test or a script): the mail worker's sweep sends the messages.
+  }
 }
 
 export async function scheduleMeeting(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
-  const a = await access(form.get("trialId"));
-  if (isState(a)) return a;
-  const parsed = scheduleMeetingSchema.safeParse(scheduleFormValues(form));
-  if (!parsed.success) return { error: "Check the highlighted fields.", fieldErrors: parsed.error.flatten().fieldErrors };
-  const v = parsed.data;
-  const when = zonedWallTimeToUtc(v.scheduledLocal, v.timeZone);
-  if (!when.ok) return { error: "Check the highlighted fields.", fieldErrors: { scheduledLocal: [when.error] } };
-  if (when.utc.getTime() < Date.now()) return { error: "Check the highlighted fields.", fieldErrors: { scheduledLocal: ["Choose a time in the future."] } };
-  const analysis = await fetchAnalysisOpen(v.analysisId);
-  if (!analysis || analysis.trial_id !== a.trial.id) return { error: "Check the highlighted fields.", fieldErrors: { analysisId: ["Choose an analysis of this trial."] } };
-  const members = new Set((await fetchMemberships({ trialId: a.trial.id })).map((m) => m.userId));
-  if (v.attendeeIds.some((id) => !members.has(id))) return { error: "Check the highlighted fields.", fieldErrors: { attendeeIds: ["Attendees must be members of this trial."] } };
-  const meetingId = await writeTransaction(async (tx) => {
-    const id = await insertMeeting(tx, {
-      trialId: a.trial.id,
-      analysisId: v.analysisId,
-      scheduledAt: when.utc,
-      timeZone: v.timeZone,
-      openAgenda: v.openAgenda,
-      closedAgenda: v.closedAgenda,
-      reminderDaysBefore: v.reminderDaysBefore,
-      createdBy: a.user.id,
-      attendeeUserIds: v.attendeeIds,
-    });
-    await appendAudit(tx, {
-      actorUserId: a.user.id,
-      actorEmail: a.user.email,
-      trialId: a.trial.id,
-      action: "meeting_scheduled",
-      entityType: "meeting",
-      entityId: id,
-      visibility: "open",
-      newValues: { lookNumber: analysis.look_number, scheduledAt: when.utc.toISOString(), timeZone: v.timeZone, attendees: v.attendeeIds, reminderDaysBefore: v.reminderDaysBefore, openAgenda: v.openAgenda },
-    });
-    // Closed text (db/classification.ts) goes only into a closed row, never into the open one above.
-    if (v.closedAgenda.trim())
-      await appendAudit(tx, {
-        actorUserId: a.user.id,
-        actorEmail: a.user.email,
-        trialId: a.trial.id,
-        action: "meeting_closed_agenda_set",
-        entityType: "meeting",
-        entityId: id,
-        visibility: "closed",
-        newValues: { closedAgenda: v.closedAgenda },
-      });
-    return id;
+  return meetingAct(form, async (a) => {
+    const { meetingId } = await meetings.scheduleMeeting(a, scheduleFormValues(form));
+    revalidatePath(`/trials/${a.trial.id}/meetings`);
+    return { ok: "Meeting scheduled.", meetingId };
   });
-  revalidatePath(`/trials/${a.trial.id}/meetings`);
-  return { ok: "Meeting scheduled.", meetingId };
 }
 
 /**
@@ -101,100 +61,54 @@ export async function scheduleMeeting(_prev: MeetingFormState, form: FormData): 
  * closed data, so a blinded organiser's request cannot cause a closed read.
  */
 export async function generateOpenPacketAction(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
-  const a = await access(form.get("trialId"));
-  if (isState(a)) return a;
-  const ref = meetingRefSchema.safeParse({ trialId: form.get("trialId"), meetingId: form.get("meetingId") });
-  if (!ref.success) return { error: "That meeting is not valid." };
-  try {
-    const r = await generateOpenPacket(a.trial, ref.data.meetingId, a.user, new Date());
-    revalidatePath(`/trials/${a.trial.id}/meetings/${ref.data.meetingId}`);
+  return meetingAct(form, async (a) => {
+    const meetingId = meetingRef(form);
+    const r = await generateOpenPacket(a.trial, meetingId, a.user, new Date());
+    revalidatePath(`/trials/${a.trial.id}/meetings/${meetingId}`);
     return { ok: `Open report: version ${r.version}${r.created ? " (new)" : " (unchanged)"}.` };
-  } catch (e) {
-    if (e instanceof HttpError) return { error: publicErrorMessage(e, a.unblinded) };
-    throw e;
-  }
+  });
 }
 
 export async function sendPacket(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
-  const a = await access(form.get("trialId"));
-  if (isState(a)) return a;
-  const ref = meetingRefSchema.safeParse({ trialId: form.get("trialId"), meetingId: form.get("meetingId") });
-  if (!ref.success) return { error: "That meeting is not valid." };
-  try {
-    const q = await queuePacketMail(a.trial, ref.data.meetingId, a.user);
+  return meetingAct(form, async (a) => {
+    const meetingId = meetingRef(form);
+    const q = await queuePacketMail(a.trial, meetingId, a.user);
     deliverLater(q.ids);
-    revalidatePath(`/trials/${a.trial.id}/meetings/${ref.data.meetingId}`);
+    revalidatePath(`/trials/${a.trial.id}/meetings/${meetingId}`);
     return { ok: `Sending ${q.ids.length} messages to ${q.recipients} people (open report v${q.openVersion}${q.closedVersion ? `, closed report v${q.closedVersion} by link` : ""}). Delivery status is below.` };
-  } catch (e) {
-    if (e instanceof HttpError) return { error: e.message };
-    throw e;
-  }
+  });
 }
 
 export async function sendDueReminders(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
-  const a = await access(form.get("trialId"));
-  if (isState(a)) return a;
-  const ids = await queueDueReminders({ trialId: a.trial.id, actor: a.user });
-  if (ids.length) deliverLater(ids);
-  revalidatePath(`/trials/${a.trial.id}/meetings`);
-  return { ok: ids.length ? `Sending ${ids.length} reminder${ids.length === 1 ? "" : "s"}.` : "No reminders are due: each meeting's reminder goes out once, from its reminder day on." };
+  return meetingAct(form, async (a) => {
+    const ids = await queueDueReminders({ trialId: a.trial.id, actor: a.user });
+    if (ids.length) deliverLater(ids);
+    revalidatePath(`/trials/${a.trial.id}/meetings`);
+    return { ok: ids.length ? `Sending ${ids.length} reminder${ids.length === 1 ? "" : "s"}.` : "No reminders are due: each meeting's reminder goes out once, from its reminder day on." };
+  });
 }
 
 export async function saveAttendance(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
-  const a = await access(form.get("trialId"));
-  if (isState(a)) return a;
-  const parsed = attendanceSchema.safeParse({ trialId: form.get("trialId"), meetingId: form.get("meetingId"), rowVersion: form.get("rowVersion"), attendedIds: form.getAll("attendedIds") });
-  if (!parsed.success) return { error: "The attendance form is not valid." };
-  const { meetingId, rowVersion, attendedIds } = parsed.data;
-  const meeting = await fetchMeeting(a.trial.id, meetingId);
-  if (!meeting) return { error: "That meeting was not found." };
-  if (meeting.status === "cancelled") return { error: "This meeting was cancelled." };
-  if (new Date(meeting.scheduled_at).getTime() > Date.now()) return { error: "Attendance can be recorded once the meeting has started." };
-  const invited = new Set((await fetchAttendees(meetingId)).map((x) => x.userId));
-  if (attendedIds.some((id) => !invited.has(id))) return { error: "Only invited people can be recorded as attending." };
-  const saved = await writeTransaction(async (tx) => {
-    const ok = await recordAttendance(tx, meetingId, rowVersion, attendedIds);
-    if (!ok) return false;
-    await appendAudit(tx, { actorUserId: a.user.id, actorEmail: a.user.email, trialId: a.trial.id, action: "meeting_attendance_recorded", entityType: "meeting", entityId: meetingId, visibility: "open", newValues: { attended: attendedIds, status: "held" } });
-    return true;
+  return meetingAct(form, async (a) => {
+    const { meetingId } = await meetings.recordMeetingAttendance(a, { meetingId: form.get("meetingId"), rowVersion: form.get("rowVersion"), attendedIds: form.getAll("attendedIds") });
+    revalidatePath(`/trials/${a.trial.id}/meetings/${meetingId}`);
+    return { ok: "Attendance recorded; the meeting is marked as held." };
   });
-  if (!saved) return { error: "Someone else changed this meeting since you opened it. Reload the page and record attendance again." };
-  revalidatePath(`/trials/${a.trial.id}/meetings/${meetingId}`);
-  return { ok: "Attendance recorded; the meeting is marked as held." };
 }
 
 export async function cancelMeeting(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
-  const a = await access(form.get("trialId"));
-  if (isState(a)) return a;
-  const parsed = attendanceSchema.pick({ trialId: true, meetingId: true, rowVersion: true }).safeParse({ trialId: form.get("trialId"), meetingId: form.get("meetingId"), rowVersion: form.get("rowVersion") });
-  if (!parsed.success) return { error: "That meeting is not valid." };
-  const meeting = await fetchMeeting(a.trial.id, parsed.data.meetingId);
-  if (!meeting) return { error: "That meeting was not found." };
-  if (meeting.status !== "scheduled") return { error: "Only a scheduled meeting can be cancelled." };
-  const saved = await writeTransaction(async (tx) => {
-    if (!(await updateMeetingStatus(tx, meeting.id, parsed.data.rowVersion, "cancelled"))) return false;
-    await appendAudit(tx, { actorUserId: a.user.id, actorEmail: a.user.email, trialId: a.trial.id, action: "meeting_cancelled", entityType: "meeting", entityId: meeting.id, visibility: "open", oldValues: { status: meeting.status }, newValues: { status: "cancelled" } });
-    return true;
+  return meetingAct(form, async (a) => {
+    const { meetingId } = await meetings.cancelMeeting(a, { meetingId: form.get("meetingId"), rowVersion: form.get("rowVersion") });
+    revalidatePath(`/trials/${a.trial.id}/meetings/${meetingId}`);
+    return { ok: "Meeting cancelled." };
   });
-  if (!saved) return { error: "Someone else changed this meeting since you opened it. Reload the page." };
-  revalidatePath(`/trials/${a.trial.id}/meetings/${meeting.id}`);
-  return { ok: "Meeting cancelled." };
 }
 
 export async function retryFailedEmail(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
-  const a = await access(form.get("trialId"));
-  if (isState(a)) return a;
-  const parsed = emailRefSchema.safeParse({ trialId: form.get("trialId"), emailId: form.get("emailId") });
-  if (!parsed.success) return { error: "That message is not valid." };
-  const msg = await fetchEmail(parsed.data.emailId);
-  if (!msg || msg.trial_id !== a.trial.id) return { error: "That message was not found." };
-  const ok = await writeTransaction(async (tx) => {
-    if (!(await requeueFailedEmail(tx, msg.id, new Date()))) return false;
-    await appendAudit(tx, { actorUserId: a.user.id, actorEmail: a.user.email, trialId: a.trial.id, action: "email_requeued", entityType: "email_message", entityId: msg.id, visibility: "open", newValues: { to: msg.to_address } });
-    return true;
+  return meetingAct(form, async (a) => {
+    const r = await meetings.retryFailedEmail(a, { emailId: form.get("emailId") });
+    deliverLater([r.emailId]);
+    if (r.meetingId) revalidatePath(`/trials/${a.trial.id}/meetings/${r.meetingId}`);
+    return { ok: `Sending again to ${r.toAddress}.` };
   });
-  if (!ok) return { error: "Only a failed message can be sent again." };
-  deliverLater([msg.id]);
-  if (msg.meeting_id) revalidatePath(`/trials/${a.trial.id}/meetings/${msg.meeting_id}`);
-  return { ok: `Sending again to ${msg.to_address}.` };
 }
