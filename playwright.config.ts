@@ -19,8 +19,10 @@ export default defineConfig({
   // whatever worker is free. Both lanes hold on a two-core machine (docs: DEVELOPERS.md, "Browser tests").
   workers: Number(process.env.CAIRN_E2E_WORKERS ?? 2),
   projects: [
-    { name: "reads", testMatch: READS, fullyParallel: true },
+    // Flows first: the scheduler hands a free worker the first queued job whose project is under its
+    // limit, so the flows' next file is always taken at once and the reads fill the other worker.
     { name: "flows", testIgnore: READS, fullyParallel: false, workers: 1 },
+    { name: "reads", testMatch: READS, fullyParallel: true },
   ],
   retries: 0,
   // Bounds on a hang, not latency checks: the suite runs on a shared two-core machine where one
