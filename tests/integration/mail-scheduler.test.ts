@@ -47,17 +47,27 @@ async function caught(): Promise<ParsedMail[]> {
 }
 const toAddress = (m: ParsedMail) => (Array.isArray(m.to) ? m.to[0] : m.to)?.value[0]?.address ?? "";
 
-/** Runs one scheduler process to the end; resolves with what it printed. */
-function schedulerProcess(startAt: number, everyMs: number, forMs: number): Promise<{ holder: string; led: { remindersQueued: number; outcomes: Record<string, string> }[] }> {
-  return new Promise((resolve, reject) => {
-    const child = spawn(path.resolve("node_modules/.bin/tsx"), ["--conditions=react-server", "tests/integration/support/mail-scheduler-process.ts", String(startAt), String(everyMs), String(forMs)], {
-      env: process.env,
-      stdio: ["ignore", "pipe", "pipe"],
-    });
-    let out = "";
-    let err = "";
-    child.stdout.on("data", (d: Buffer) => (out += d.toString()));
-    child.stderr.on("data", (d: Buffer) => (err += d.toString()));
+type SchedulerRun = { holder: string; led: { remindersQueued: number; outcomes: Record<string, string> }[] };
+
+/**
+ * Starts one scheduler process; `ready` resolves once it has loaded and connected, `go()` lets it
+ * begin its rounds, and `done` resolves with what it printed at the end.
+ */
+function schedulerProcess(everyMs: number, forMs: number): { ready: Promise<void>; go: () => void; done: Promise<SchedulerRun> } {
+  const child = spawn(path.resolve("node_modules/.bin/tsx"), ["--conditions=react-server", "tests/integration/support/mail-scheduler-process.ts", String(everyMs), String(forMs)], {
+    env: process.env,
+    stdio: ["pipe", "pipe", "pipe"],
+  });
+  let out = "";
+  let err = "";
+  let markReady: () => void = () => undefined;
+  const ready = new Promise<void>((resolve) => (markReady = resolve));
+  child.stdout.on("data", (d: Buffer) => {
+    out += d.toString();
+    if (/^ready$/m.test(out)) markReady();
+  });
+  child.stderr.on("data", (d: Buffer) => (err += d.toString()));
+  const done = new Promise<SchedulerRun>((resolve, reject) => {
     child.once("exit", (code) => {
       if (code !== 0) return reject(new Error(`scheduler process exited with ${code}:\n${err}`));
       try {
@@ -67,6 +77,7 @@ function schedulerProcess(startAt: number, everyMs: number, forMs: number): Prom
       }
     });
   });
+  return { ready: Promise.race([ready, done.then(() => undefined)]), go: () => child.stdin.end("go\n"), done };
 }
 
 beforeAll(async () => {
@@ -93,9 +104,11 @@ afterAll(async () => {
 
 describe("the mail scheduler", () => {
   it("sends a reminder due in the past exactly once when two processes run the scheduler at the same time", async () => {
-    // Both processes wait for the same instant (tsx takes a few seconds to start on a loaded machine).
-    const startAt = Date.now() + 8_000;
-    const [a, b] = await Promise.all([schedulerProcess(startAt, 150, 3_000), schedulerProcess(startAt, 150, 3_000)]);
+    // Both processes load (a few seconds each on a loaded machine), then begin together on one signal.
+    const procs = [schedulerProcess(150, 3_000), schedulerProcess(150, 3_000)];
+    await Promise.all(procs.map((p) => p.ready));
+    for (const p of procs) p.go();
+    const [a, b] = await Promise.all(procs.map((p) => p.done));
     expect(a.holder).not.toBe(b.holder);
     const queued = [...a.led, ...b.led].reduce((n, t) => n + t.remindersQueued, 0);
     expect(queued).toBe(INVITEES.length);
