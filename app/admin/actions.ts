@@ -1,9 +1,8 @@
 "use server";
 import { revalidatePath } from "next/cache";
-import { after } from "next/server";
 import { requireAdmin } from "@/lib/auth";
 import { createAccountWithLink, grantTrialRole, reissuePasswordLink, revokeTrialRole, setAccountActive } from "@/lib/auth/accounts";
-import { ensureMailWorker, deliverWithRetries } from "@/lib/mail/delivery";
+import { deliverAfterResponse } from "@/lib/mail/delivery";
 import { accountActionSchema, assignRoleSchema, createAccountSchema, removeRoleSchema, type FormState } from "./schemas";
 import type { PublicUser, TrialRole } from "@/db/types";
 import { formError } from "@/lib/form-action";
@@ -26,21 +25,6 @@ async function admin(): Promise<PublicUser | FormState> {
 }
 const isState = (a: PublicUser | FormState): a is FormState => !("id" in a);
 
-function sendLater(emailId: number): void {
-  ensureMailWorker();
-  try {
-    after(async () => {
-      try {
-        await deliverWithRetries([emailId]);
-      } catch (e) {
-        console.error("[cairn] background mail delivery stopped; the retry sweep will pick the message up", e);
-      }
-    });
-  } catch {
-    // Called outside a request (a test or a script): the mail worker's sweep sends the message.
-  }
-}
-
 const linkShown = (l: { url: string; expiresAt: Date }, forName: string) => ({ url: l.url, expiresAt: `${l.expiresAt.toISOString().slice(0, 16).replace("T", " ")} UTC`, forName });
 
 export async function createAccount(_prev: FormState, form: FormData): Promise<FormState> {
@@ -51,7 +35,7 @@ export async function createAccount(_prev: FormState, form: FormData): Promise<F
   if (!parsed.success) return { error: "Check the highlighted fields.", fieldErrors: parsed.error.flatten().fieldErrors, values };
   try {
     const created = await createAccountWithLink(a, parsed.data);
-    sendLater(created.emailId);
+    deliverAfterResponse([created.emailId]);
     revalidatePath("/admin");
     return { ok: `Account created for ${parsed.data.name}. A set-password link was e-mailed to ${parsed.data.email.toLowerCase()}.`, link: linkShown(created, parsed.data.name) };
   } catch (e) {
@@ -67,7 +51,7 @@ export async function sendPasswordLink(_prev: FormState, form: FormData): Promis
   if (!parsed.success) return { error: "That account is not valid." };
   try {
     const link = await reissuePasswordLink(a, parsed.data.userId);
-    sendLater(link.emailId);
+    deliverAfterResponse([link.emailId]);
     revalidatePath("/admin");
     return { ok: "A new set-password link was e-mailed; earlier links no longer work.", link: linkShown(link, "this account") };
   } catch (e) {

@@ -12,6 +12,7 @@ import { claimEmail, fetchDueEmailIds, fetchEmail, markEmailAttemptFailed, markE
 import { fetchPacketPdf } from "@/db/queries/packets";
 import { fetchLetterById } from "@/db/queries/committee";
 import { fetchTrial } from "@/db/queries/trials";
+import { after } from "next/server";
 import { mailFrom, mailTransport } from "./transport";
 
 export type RetryPolicy = { maxAttempts: number; delaysMs: number[]; leaseMs: number };
@@ -111,4 +112,24 @@ export function ensureMailWorker(): void {
     (m) => m.ensureMailScheduler(),
     (e) => console.error("[cairn] the mail scheduler could not start", e),
   );
+}
+
+/**
+ * For server actions that have just recorded mail: delivers it after the response is sent (Next's
+ * `after`), so a slow or dead mail server never holds up the page. Outside a request (a test, a
+ * script) there is no "after": the mail scheduler's sweep sends the messages.
+ */
+export function deliverAfterResponse(ids: number[]): void {
+  ensureMailWorker();
+  try {
+    after(async () => {
+      try {
+        await deliverWithRetries(ids);
+      } catch (e) {
+        console.error("[cairn] background mail delivery stopped; the retry sweep will pick the messages up", e);
+      }
+    });
+  } catch {
+    // No request to run after: the sweep picks the messages up.
+  }
 }

@@ -10,7 +10,7 @@ import { actAs, currentClaims, currentSession } from "./support/as-user";
 vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null), sessionClaims: vi.fn(() => currentClaims()) }));
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }));
 // Delivery is tested in mail.test.ts; here its background sweep would add audit rows mid-test.
-vi.mock("@/lib/mail/delivery", () => ({ ensureMailWorker: vi.fn(), deliverWithRetries: vi.fn(async () => ({})) }));
+vi.mock("@/lib/mail/delivery", () => ({ ensureMailWorker: vi.fn(), deliverWithRetries: vi.fn(async () => ({})), deliverAfterResponse: vi.fn() }));
 
 import { assignRole, createAccount, deactivateAccount, reactivateAccount, sendPasswordLink } from "@/app/admin/actions";
 import { setPassword } from "@/app/set-password/actions";

@@ -9,7 +9,7 @@ import { actAs, currentClaims, currentSession } from "./support/as-user";
 
 vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null), sessionClaims: vi.fn(() => currentClaims()) }));
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }));
-vi.mock("@/lib/mail/delivery", () => ({ ensureMailWorker: vi.fn(), deliverWithRetries: vi.fn(async () => ({})) }));
+vi.mock("@/lib/mail/delivery", () => ({ ensureMailWorker: vi.fn(), deliverWithRetries: vi.fn(async () => ({})), deliverAfterResponse: vi.fn() }));
 
 import { deactivateAccount, removeRole } from "@/app/admin/actions";
 import { revokeTrialRole, setAccountActive } from "@/lib/auth/accounts";

@@ -5,7 +5,6 @@
  * response (next/server `after`), so a slow or dead mail server never holds up the page.
  */
 import { formId } from "@/lib/route-params";
-import { after } from "next/server";
 import { revalidatePath } from "next/cache";
 import { requireTrialAccess, type TrialAccess } from "@/lib/auth";
 import { HttpError } from "@/lib/http";
@@ -13,7 +12,7 @@ import { formAction } from "@/lib/form-action";
 import * as meetings from "@/lib/meetings/service";
 import { generateOpenPacket } from "@/lib/packets/open-packet";
 import { queueDueReminders, queuePacketMail } from "@/lib/mail/outbox";
-import { deliverWithRetries, ensureMailWorker } from "@/lib/mail/delivery";
+import { deliverAfterResponse } from "@/lib/mail/delivery";
 import { meetingRefSchema, scheduleFormValues, type MeetingFormState } from "@/lib/meetings/schemas";
 
 /**
@@ -30,21 +29,6 @@ function meetingRef(form: FormData): number {
   const ref = meetingRefSchema.safeParse({ trialId: form.get("trialId"), meetingId: form.get("meetingId") });
   if (!ref.success) throw new HttpError(422, "That meeting is not valid.");
   return ref.data.meetingId;
-}
-
-function deliverLater(ids: number[]): void {
-  ensureMailWorker();
-  try {
-    after(async () => {
-      try {
-        await deliverWithRetries(ids);
-      } catch (e) {
-        console.error("[cairn] background mail delivery stopped; the retry sweep will pick the messages up", e);
-      }
-    });
-  } catch {
-    // Called outside a request (a test or a script): the mail worker's sweep sends the messages.
-  }
 }
 
 export async function scheduleMeeting(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
@@ -73,7 +57,7 @@ export async function sendPacket(_prev: MeetingFormState, form: FormData): Promi
   return meetingAct(form, async (a) => {
     const meetingId = meetingRef(form);
     const q = await queuePacketMail(a.trial, meetingId, a.user);
-    deliverLater(q.ids);
+    deliverAfterResponse(q.ids);
     revalidatePath(`/trials/${a.trial.id}/meetings/${meetingId}`);
     return { ok: `Sending ${q.ids.length} messages to ${q.recipients} people (open report v${q.openVersion}${q.closedVersion ? `, closed report v${q.closedVersion} by link` : ""}). Delivery status is below.` };
   });
@@ -82,7 +66,7 @@ export async function sendPacket(_prev: MeetingFormState, form: FormData): Promi
 export async function sendDueReminders(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
   return meetingAct(form, async (a) => {
     const ids = await queueDueReminders({ trialId: a.trial.id, actor: a.user });
-    if (ids.length) deliverLater(ids);
+    if (ids.length) deliverAfterResponse(ids);
     revalidatePath(`/trials/${a.trial.id}/meetings`);
     return { ok: ids.length ? `Sending ${ids.length} reminder${ids.length === 1 ? "" : "s"}.` : "No reminders are due: each meeting's reminder goes out once, from its reminder day on." };
   });
@@ -107,7 +91,7 @@ export async function cancelMeeting(_prev: MeetingFormState, form: FormData): Pr
 export async function retryFailedEmail(_prev: MeetingFormState, form: FormData): Promise<MeetingFormState> {
   return meetingAct(form, async (a) => {
     const r = await meetings.retryFailedEmail(a, { emailId: form.get("emailId") });
-    deliverLater([r.emailId]);
+    deliverAfterResponse([r.emailId]);
     if (r.meetingId) revalidatePath(`/trials/${a.trial.id}/meetings/${r.meetingId}`);
     return { ok: `Sending again to ${r.toAddress}.` };
   });

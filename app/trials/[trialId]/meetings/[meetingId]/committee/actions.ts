@@ -4,14 +4,13 @@
  * (open ones here; closed ones only for unblinded callers), and the letter to the sponsor. Votes
  * and the committee's recommendation are in ../closed-session/actions.ts.
  */
-import { after } from "next/server";
 import { revalidatePath } from "next/cache";
 import { allows, type TrialAccess } from "@/lib/auth";
 import { forbiddenError } from "@/lib/http";
 import { approveMinutes, declareConflicts, recordSessionAttendance, saveMinutesDraft } from "@/lib/committee/service";
 import { queueLetterMail, signRecommendationLetter } from "@/lib/committee/letter";
 import { committeeAct, formFields } from "@/lib/committee/action-support";
-import { deliverWithRetries, ensureMailWorker } from "@/lib/mail/delivery";
+import { deliverAfterResponse } from "@/lib/mail/delivery";
 import type { CommitteeFormState } from "@/lib/committee/schemas";
 
 const refresh = (a: TrialAccess, form: FormData) => {
@@ -91,14 +90,7 @@ export async function signLetterAction(_prev: CommitteeFormState, form: FormData
 export async function sendLetterAction(_prev: CommitteeFormState, form: FormData): Promise<CommitteeFormState> {
   return committeeAct(form, "recordRecommendation", async (a) => {
     const q = await queueLetterMail(a, formFields(form));
-    ensureMailWorker();
-    after(async () => {
-      try {
-        await deliverWithRetries(q.ids);
-      } catch (e) {
-        console.error("[cairn] background mail delivery stopped; the retry sweep will pick the messages up", e);
-      }
-    });
+    deliverAfterResponse(q.ids);
     refresh(a, form);
     return `Sending letter version ${q.version} to ${q.recipients} sponsor contact${q.recipients === 1 ? "" : "s"}. Delivery is logged on the meeting page.`;
   });
