@@ -35,9 +35,9 @@ import { queueLetterMail, signRecommendationLetter } from "@/lib/committee/lette
 import { recordRecommendation } from "@/lib/review/record-recommendation";
 import { deliverWithRetries, type RetryPolicy } from "@/lib/mail/delivery";
 import { CAUTION_TEXT } from "@/lib/caution";
-import type { SingleArmDesign } from "@/lib/stats/types";
 import type { PublicUser } from "@/db/types";
 import { db, giveRole, makeTrial, makeUser, ownerKnex, resetDatabase } from "./support/db";
+import { smallSingleArmDesign } from "./support/designs";
 import { freePort } from "./support/free-port";
 
 const PORT = await freePort();
@@ -47,17 +47,7 @@ process.env.NEXTAUTH_URL = "http://localhost:3999";
 process.env.MAIL_FROM = "Cairn test <cairn@test.example>";
 const FAST: RetryPolicy = { maxAttempts: 3, delaysMs: [200, 400], leaseMs: 60_000 };
 
-const DESIGN: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "uniform" },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 30,
-  looks: { kind: "list", sizes: [10, 20, 30] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: null,
-};
+const DESIGN = smallSingleArmDesign();
 
 type User = PublicUser & { password: string };
 let trialId: number;

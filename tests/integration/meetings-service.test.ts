@@ -23,20 +23,10 @@ import { insertEmails } from "@/db/queries/emails";
 import { cancelMeeting, recordMeetingAttendance, retryFailedEmail, scheduleMeeting } from "@/lib/meetings/service";
 import { scheduleMeeting as scheduleMeetingAction } from "@/app/trials/[trialId]/meetings/actions";
 import type { PublicUser } from "@/db/types";
-import type { SingleArmDesign } from "@/lib/stats/types";
 import { db, giveRole, killMidTransaction, makeTrial, makeUser, resetDatabase } from "./support/db";
+import { smallSingleArmDesign } from "./support/designs";
 
-const DESIGN: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "uniform" },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 30,
-  looks: { kind: "list", sizes: [15, 30] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: null,
-};
+const DESIGN = smallSingleArmDesign([15, 30]);
 const CLOSED_AGENDA = "Closed session: weigh the response imbalance between the halves of the cohort (invented)";
 const REFUSED = "Your role on this trial does not allow managing DMC meetings.";
 

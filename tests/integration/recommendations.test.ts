@@ -17,25 +17,15 @@ import { insertDesignVersion, markDesignLocked } from "@/db/queries/designs";
 import { insertSignature, recordHash } from "@/db/queries/signatures";
 import { createPlannedLooks } from "@/db/queries/analyses";
 import { replaceArmCounts } from "@/db/queries/closed";
-import type { SingleArmDesign } from "@/lib/stats/types";
 import type { PublicUser } from "@/db/types";
 import { db, giveRole, killMidTransaction, makeTrial, makeUser, resetDatabase } from "./support/db";
+import { smallSingleArmDesign } from "./support/designs";
 import { lockAnalysis, reopenAnalysis } from "@/lib/analyses/service";
 import { fetchAuditEvents } from "@/db/audit";
 import { loadReproducibilityRecord } from "@/lib/review/load-review";
 import { fetchTrial } from "@/db/queries/trials";
 
-const DESIGN: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "uniform" },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 30,
-  looks: { kind: "list", sizes: [10, 20, 30] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: null,
-};
+const DESIGN = smallSingleArmDesign();
 
 let trialId: number;
 let otherTrialId: number;
