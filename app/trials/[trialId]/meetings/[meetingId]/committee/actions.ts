@@ -6,9 +6,8 @@
  */
 import { after } from "next/server";
 import { revalidatePath } from "next/cache";
-import { allows, type TrialAccess } from "@/lib/auth";
-import { forbiddenError } from "@/lib/http";
-import { approveMinutes, declareConflicts, recordSessionAttendance, saveMinutesDraft } from "@/lib/committee/service";
+import type { TrialAccess } from "@/lib/auth";
+import { approveMinutes, declareConflicts, mayDraftOpenMinutes, recordSessionAttendance, saveMinutesDraft } from "@/lib/committee/service";
 import { queueLetterMail, signRecommendationLetter } from "@/lib/committee/letter";
 import { committeeAct, formFields } from "@/lib/committee/action-support";
 import { deliverWithRetries, ensureMailWorker } from "@/lib/mail/delivery";
@@ -20,11 +19,6 @@ const refresh = (a: TrialAccess, form: FormData) => {
     revalidatePath(`/trials/${a.trial.id}/meetings/${m}/committee`);
     revalidatePath(`/trials/${a.trial.id}/meetings/${m}/closed-session`);
   }
-};
-
-/** Open-session minutes are drafted by the meeting's organisers and by committee members. */
-const mayDraftOpenMinutes = (a: TrialAccess) => {
-  if (!allows(a.principal, "manageMeetings") && !allows(a.principal, "recordRecommendation")) throw forbiddenError("writing the minutes");
 };
 
 export async function recordOpenAttendanceAction(_prev: CommitteeFormState, form: FormData): Promise<CommitteeFormState> {
