@@ -14,10 +14,13 @@ import "server-only";
  * saved, uploaded and again when the look is locked (countsProblems), so a locked look always holds
  * data the review can analyse.
  *
- * Callers (route handlers, tests) have already authorized the actor with enterData.
+ * Each write takes the caller's TrialAccess (lib/auth: requireTrialAccess in route handlers,
+ * checkTrialAccess in tests) and re-checks enterData itself before it reads or writes anything: a
+ * service is callable from anywhere, so it does not trust that its caller checked. It acts on
+ * access.trial only.
  */
 import { createHash } from "node:crypto";
-import { db, writeTransaction, type ClosedReader, type Tx } from "@/db/knex";
+import { db, writeTransaction, type Tx } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
 import { fetchAnalysisForUpdate, fetchNeighbourCutoffs, updateAnalysisOpenFields, type AnalysisLockedRow } from "@/db/queries/analyses";
 import {
@@ -36,6 +39,7 @@ import { fetchArms } from "@/db/queries/trials";
 import { fetchDesign } from "@/db/queries/designs";
 import { insertSignature } from "@/db/queries/signatures";
 import type { AnalysisOpenRow, ArmRow, PublicUser } from "@/db/types";
+import { assertCapability, closedConnection, type TrialAccess } from "@/lib/auth";
 import { HttpError, conflict, notFoundError } from "@/lib/http";
 import { confirmSigner } from "@/lib/auth/signature";
 import { decodeCsvBytes, NotCsvError, parsePatientCsv, type ArmRef, type PatientCsvResult } from "@/lib/csv/patient-outcomes";
@@ -141,7 +145,9 @@ async function checkCutoffOrder(tx: Tx, a: AnalysisLockedRow, cutoff: string) {
 
 const actorFields = (actor: PublicUser) => ({ actorUserId: actor.id, actorEmail: actor.email });
 
-export async function openLookForEntry(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
+export async function openLookForEntry(access: TrialAccess, analysisId: number, body: unknown) {
+  assertCapability(access, "enterData");
+  const { user: actor, trial: { id: trialId } } = access;
   const input = openLookSchema.parse(body);
   return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);
@@ -162,7 +168,9 @@ export async function openLookForEntry(actor: PublicUser, trialId: number, analy
   });
 }
 
-export async function saveArmCounts(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
+export async function saveArmCounts(access: TrialAccess, analysisId: number, body: unknown) {
+  assertCapability(access, "enterData");
+  const { user: actor, trial: { id: trialId } } = access;
   const ctx = await loadLookContext(trialId, analysisId);
   const input = saveCountsSchema({ armIds: ctx.arms.map((x) => x.id), safetyRule: ctx.safetyRule, maxPerArm: ctx.maxPerArm }).parse(body);
   const counts: ArmCountsInput[] = input.counts.map((c) => ({
@@ -264,7 +272,11 @@ function withCountsProblems(preview: UploadPreview, problems: CountsProblem[]): 
   return { ok: false, rowCount: preview.rowCount, issueCount: issues.length, issues, excluded: preview.excluded };
 }
 
-export async function previewPatientUpload(trialId: number, analysisId: number, bytes: Uint8Array, closed: ClosedReader): Promise<UploadPreview> {
+/** Checks a file against a look and writes nothing; it reads the neighbouring locked looks' counts (closed data). */
+export async function previewPatientUpload(access: TrialAccess, analysisId: number, bytes: Uint8Array): Promise<UploadPreview> {
+  assertCapability(access, "enterData");
+  const closed = closedConnection(access);
+  const trialId = access.trial.id;
   const ctx = await loadLookContext(trialId, analysisId);
   const { result, preview } = checkUpload(ctx, bytes);
   if (!result.ok) return preview;
@@ -275,7 +287,9 @@ export async function previewPatientUpload(trialId: number, analysisId: number, 
  * Re-validates the file (a preview is never trusted), then replaces the look's patient rows and
  * counts in one transaction. Any bad row, or any failure on the way, writes nothing.
  */
-export async function confirmPatientUpload(actor: PublicUser, trialId: number, analysisId: number, bytes: Uint8Array, opts: { rowVersion: number; fileName?: string }) {
+export async function confirmPatientUpload(access: TrialAccess, analysisId: number, bytes: Uint8Array, opts: { rowVersion: number; fileName?: string }) {
+  assertCapability(access, "enterData");
+  const { user: actor, trial: { id: trialId } } = access;
   const ctx = await loadLookContext(trialId, analysisId);
   const { result, preview } = checkUpload(ctx, bytes);
   if (!result.ok || !preview.ok)
@@ -336,7 +350,9 @@ export async function confirmPatientUpload(actor: PublicUser, trialId: number, a
 }
 
 /** Locks a look with the statistician's e-signature over its cut-off and counts. */
-export async function lockAnalysis(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
+export async function lockAnalysis(access: TrialAccess, analysisId: number, body: unknown) {
+  assertCapability(access, "enterData");
+  const { user: actor, trial: { id: trialId } } = access;
   const input = lockAnalysisSchema.parse(body);
   await confirmSigner(actor, input.password);
   const ctx = await loadLookContext(trialId, analysisId);
@@ -387,7 +403,9 @@ export async function lockAnalysis(actor: PublicUser, trialId: number, analysisI
  * The reason is free text about closed data, so it goes to a closed audit row; the open row says
  * only that a correction was opened.
  */
-export async function reopenAnalysis(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
+export async function reopenAnalysis(access: TrialAccess, analysisId: number, body: unknown) {
+  assertCapability(access, "enterData");
+  const { user: actor, trial: { id: trialId } } = access;
   const input = reopenAnalysisSchema.parse(body);
   const current = await fetchAnalysisOpen(analysisId);
   const afterReview = current?.trial_id === trialId && current.status === "reviewed";
@@ -447,7 +465,9 @@ export async function reopenAnalysis(actor: PublicUser, trialId: number, analysi
  * be corrected by hand) and records the switch with its reason as a closed audit entry (the old
  * row count and the counts they gave). Uploading a file later makes the look patient-level again.
  */
-export async function switchToCountLevel(actor: PublicUser, trialId: number, analysisId: number, body: unknown) {
+export async function switchToCountLevel(access: TrialAccess, analysisId: number, body: unknown) {
+  assertCapability(access, "enterData");
+  const { user: actor, trial: { id: trialId } } = access;
   const input = switchToCountLevelSchema.parse(body);
   return writeTransaction(async (tx) => {
     const a = await lockLook(tx, trialId, analysisId, input.rowVersion);

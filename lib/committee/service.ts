@@ -3,8 +3,10 @@ import "server-only";
  * The committee's open acts: who sits on it and who chairs (an administrator's acts), attendance per
  * session, conflict-of-interest declarations, and minutes (drafts, the chair's signed approval,
  * corrections as new versions). Each function takes a TrialAccess the caller obtained with the
- * capability named beside it, validates with zod, writes in one transaction with one audit row
- * per act, and throws HttpError/ZodError for anything refused (nothing is written then).
+ * capability named beside it and re-checks that capability itself before it reads or writes
+ * anything (a service is callable from anywhere, so it does not trust its caller), then the
+ * committee seat where one is needed; it validates with zod, writes in one transaction with one
+ * audit row per act, and throws HttpError/ZodError for anything refused (nothing is written then).
  * Closed-session minutes pass through here only for writing, and only for an unblinded caller; the
  * text of closed minutes goes only into closed audit rows. Votes and the committee's recommendation
  * are closed acts: lib/committee/votes.ts and lib/review/record-recommendation.ts.
@@ -32,7 +34,7 @@ import {
   type CommitteeMember,
 } from "@/db/queries/committee";
 import type { MeetingRow } from "@/db/types";
-import type { TrialAccess } from "@/lib/auth";
+import { allows, assertCapability, type TrialAccess } from "@/lib/auth";
 import { confirmSigner } from "@/lib/auth/signature";
 import { conflict, forbiddenError, HttpError, notFoundError } from "@/lib/http";
 import { addMemberSchema, changeChairSchema, declarationSchema, minutesApproveSchema, minutesDraftSchema, quorumSchema, sessionAttendanceSchema } from "./schemas";
@@ -60,6 +62,7 @@ export async function meetingOf(access: TrialAccess, meetingId: number): Promise
 
 /** manageCommittee (administrator): puts a DMC member or the unblinded statistician on the committee. */
 export async function addCommitteeMember(access: TrialAccess, raw: unknown): Promise<{ id: number }> {
+  assertCapability(access, "manageCommittee");
   const input = addMemberSchema.parse(raw);
   const roles = (await fetchMemberships({ trialId: access.trial.id })).filter((m) => m.userId === input.userId).map((m) => m.role);
   if (roles.length === 0) throw field(422, "Only a member of this trial can sit on its committee.", "userId");
@@ -79,6 +82,7 @@ export async function addCommitteeMember(access: TrialAccess, raw: unknown): Pro
 
 /** manageCommittee (administrator): makes a voting member the chair; the former chair stays a voting member. Audited. */
 export async function changeCommitteeChair(access: TrialAccess, raw: unknown): Promise<void> {
+  assertCapability(access, "manageCommittee");
   const input = changeChairSchema.parse(raw);
   await writeTransaction(async (tx) => {
     await lockCommittee(tx, access.trial.id);
@@ -112,6 +116,7 @@ export async function changeCommitteeChair(access: TrialAccess, raw: unknown): P
  * is never changed: without a draft, start an amendment first.
  */
 export async function setCharterQuorum(access: TrialAccess, raw: unknown): Promise<{ designVersion: number }> {
+  assertCapability(access, "editDesign");
   const input = quorumSchema.parse(raw);
   return writeTransaction(async (tx) => {
     const draft = await fetchDraftDesignForUpdate(tx, access.trial.id);
@@ -123,13 +128,16 @@ export async function setCharterQuorum(access: TrialAccess, raw: unknown): Promi
 }
 
 /**
- * Attendance of one session. Open session: manageMeetings or the committee's chair. Closed
- * session: unblinded callers only (the closed session is theirs), and only committee members
+ * Attendance of one session. Open session: manageMeetings. Closed session: unblinded callers only
+ * (viewClosed: the closed session is theirs), and only committee members
  * and the trial's unblinded statisticians can be recorded as present.
  */
 export async function recordSessionAttendance(access: TrialAccess, raw: unknown, now = new Date()): Promise<void> {
+  // The session decides the capability, so it is read first (a missing one is a ZodError on `session`).
+  const session = sessionAttendanceSchema.pick({ session: true }).parse(raw).session;
+  if (session === "open") assertCapability(access, "manageMeetings");
+  else if (!access.unblinded) throw forbiddenError("recording the closed session");
   const input = sessionAttendanceSchema.parse(raw);
-  if (input.session === "closed" && !access.unblinded) throw forbiddenError("recording the closed session");
   const meeting = await meetingOf(access, input.meetingId);
   if (new Date(meeting.scheduled_at).getTime() > now.getTime()) throw conflict("Attendance can be recorded once the meeting has started.");
   const [memberships, committee] = await Promise.all([fetchMemberships({ trialId: access.trial.id }), fetchCommittee(access.trial.id)]);
@@ -150,6 +158,7 @@ export async function recordSessionAttendance(access: TrialAccess, raw: unknown,
 
 /** recordRecommendation (a DMC member on the committee's voting list): the signed declaration at the start of a meeting. */
 export async function declareConflicts(access: TrialAccess, raw: unknown, now = new Date()): Promise<void> {
+  assertCapability(access, "recordRecommendation");
   const input = declarationSchema.parse(raw);
   const meeting = await meetingOf(access, input.meetingId);
   const { seat } = await committeeSeat(access);
@@ -176,14 +185,21 @@ export async function declareConflicts(access: TrialAccess, raw: unknown, now = 
   });
 }
 
+/** Open-session minutes are drafted by the meeting's organisers (manageMeetings) and by committee members (recordRecommendation). */
+export function mayDraftOpenMinutes(access: TrialAccess): void {
+  if (!allows(access.principal, "manageMeetings") && !allows(access.principal, "recordRecommendation")) throw forbiddenError("writing the minutes");
+}
+
 /**
  * Drafts minutes. Open minutes: manageMeetings or a committee member; closed minutes: unblinded
  * callers only. Edits the latest draft when its row version is given; starts a new version when
  * the latest is approved (a correction) or there is none.
  */
 export async function saveMinutesDraft(access: TrialAccess, raw: unknown, now = new Date()): Promise<{ version: number; created: boolean }> {
+  const session = minutesDraftSchema.pick({ session: true }).parse(raw).session;
+  if (session === "open") mayDraftOpenMinutes(access);
+  else if (!access.unblinded) throw forbiddenError("writing the closed minutes");
   const input = minutesDraftSchema.parse(raw);
-  if (input.session === "closed" && !access.unblinded) throw forbiddenError("writing the closed minutes");
   const meeting = await meetingOf(access, input.meetingId);
   return writeTransaction(async (tx) => {
     const latest = await fetchLatestMinutesForUpdate(tx, meeting.id, input.session);
@@ -217,6 +233,7 @@ export async function saveMinutesDraft(access: TrialAccess, raw: unknown, now = 
 
 /** The chair's signed approval of the latest draft of one session's minutes. Closed minutes: the chair is unblinded by role. */
 export async function approveMinutes(access: TrialAccess, raw: unknown, now = new Date()): Promise<{ version: number }> {
+  assertCapability(access, "recordRecommendation");
   const input = minutesApproveSchema.parse(raw);
   if (input.session === "closed" && !access.unblinded) throw forbiddenError("approving the closed minutes");
   const meeting = await meetingOf(access, input.meetingId);

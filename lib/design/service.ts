@@ -23,18 +23,14 @@ import { insertMembership, fetchAnyRoleHeld } from "@/db/queries/memberships";
 import { insertSignature, recordHash } from "@/db/queries/signatures";
 import { createPlannedLooks } from "@/db/queries/analyses";
 import type { PublicUser } from "@/db/types";
-import { allows, type TrialAccess } from "@/lib/auth";
+import { assertCapability, type TrialAccess } from "@/lib/auth";
 import { confirmSigner, signingPasswordSchema } from "@/lib/auth/signature";
-import { HttpError, conflict, forbiddenError, notFoundError } from "@/lib/http";
+import { HttpError, conflict, notFoundError } from "@/lib/http";
 import { expandLooks } from "@/lib/stats/looks";
 import type { Design } from "@/lib/stats/types";
 import { amendBodySchema, parseDesignForTrial } from "./api-schemas";
 import { armsFor, type NewTrialInput } from "./trial-schema";
 import { setDraftDesignQuorum } from "@/db/queries/committee";
-
-function need(access: TrialAccess, cap: "editDesign" | "lockDesign"): void {
-  if (!allows(access.principal, cap)) throw forbiddenError(cap === "lockDesign" ? "locking the design" : "editing the design");
-}
 
 const STATUS_WORDS = { draft: "a draft", locked: "the locked charter version", superseded: "a superseded version" } as const;
 
@@ -105,7 +101,7 @@ async function designOfTrial(access: TrialAccess, designId: number): Promise<Des
 
 /** The first draft of a trial's design. Refused when a draft exists (edit it) or a version is locked (amend it). */
 export async function createDraftDesign(access: TrialAccess, specInput: unknown): Promise<DesignRecord> {
-  need(access, "editDesign");
+  assertCapability(access, "editDesign");
   const spec = parseDesignForTrial(specInput, access.trial.design_type);
   const { user, trial } = access;
   const id = await writeTransaction(async (tx) => {
@@ -135,7 +131,7 @@ export async function createDraftDesign(access: TrialAccess, specInput: unknown)
  * concurrency): a stale save is a 409 and writes nothing.
  */
 export async function updateDraftDesign(access: TrialAccess, designId: number, rowVersion: number, specInput: unknown): Promise<DesignRecord> {
-  need(access, "editDesign");
+  assertCapability(access, "editDesign");
   await designOfTrial(access, designId);
   const spec = parseDesignForTrial(specInput, access.trial.design_type);
   const { user, trial } = access;
@@ -171,7 +167,7 @@ export async function updateDraftDesign(access: TrialAccess, designId: number, r
  * creates the planned analyses from the looks.
  */
 export async function lockDesign(access: TrialAccess, designId: number, rowVersion: number, passwordInput: unknown): Promise<DesignRecord> {
-  need(access, "lockDesign");
+  assertCapability(access, "lockDesign");
   await designOfTrial(access, designId);
   const password = signingPasswordSchema.parse(passwordInput);
   const { user, trial } = access;
@@ -228,7 +224,7 @@ export async function lockDesign(access: TrialAccess, designId: number, rowVersi
 
 /** Starts an amendment: a new draft version copied from the locked charter version, with a required reason. */
 export async function amendDesign(access: TrialAccess, designId: number, reasonInput: unknown): Promise<DesignRecord> {
-  need(access, "editDesign");
+  assertCapability(access, "editDesign");
   await designOfTrial(access, designId);
   const reason = amendBodySchema.shape.reason.parse(reasonInput);
   const { user, trial } = access;

@@ -2,8 +2,8 @@ import "server-only";
 /**
  * Records the DMC's recommendation for a locked analysis with an electronic signature, in one
  * transaction: signature, recommendation row, analysis marked reviewed, one audit row. Shared by
- * the server action and the route handler; both have already called requireTrialAccess(...,
- * "recordRecommendation").
+ * the server actions and the route handler; it takes their TrialAccess and re-checks
+ * recordRecommendation itself before it reads or writes anything.
  */
 import { writeTransaction } from "@/db/knex";
 import { appendAudit } from "@/db/audit";
@@ -11,7 +11,7 @@ import { insertSignature } from "@/db/queries/signatures";
 import { updateAnalysisOpenFields } from "@/db/queries/analyses";
 import { fetchCurrentRecommendationIds, insertRecommendation } from "@/db/queries/recommendations";
 import { fetchAnalysisForUpdate } from "@/db/queries/analyses";
-import type { TrialAccess } from "@/lib/auth";
+import { assertCapability, type TrialAccess } from "@/lib/auth";
 import { confirmSigner } from "@/lib/auth/signature";
 import { conflict, HttpError, notFoundError } from "@/lib/http";
 import { recommendationSchema } from "./recommendation-schema";
@@ -21,13 +21,14 @@ import { committeeDecisionFacts } from "@/lib/committee/votes";
 type RecordedRecommendation = { id: number; analysisId: number; decision: string; correctsId: number | null; signatureId: number; recordedAt: string };
 
 /**
- * @throws ZodError for invalid input (422), HttpError 422 for a wrong password, 404 when the
+ * @throws HttpError 403 without recordRecommendation; ZodError for invalid input (422), HttpError 422 for a wrong password, 404 when the
  *   analysis is not this trial's, 409 when the analysis is not locked, when a first recommendation
  *   already exists (record a correction instead), or when the corrected entry is not the current one.
  *   When the trial has a committee: 403 unless the caller chairs it, 422 without the meeting, 409
  *   when that meeting's closed session was not quorate, a voter declared a conflict, or nobody voted.
  */
 export async function recordRecommendation(access: TrialAccess, analysisId: number, raw: unknown): Promise<RecordedRecommendation> {
+  assertCapability(access, "recordRecommendation");
   const input = recommendationSchema.parse(raw);
   // With a committee the recommendation is the committee's: only its chair records it, at a meeting.
   const committee = await fetchCommittee(access.trial.id);

@@ -29,6 +29,9 @@ import { db, giveRole, killMidTransaction, makeTrial, makeUser, ownerKnex, reset
 import jstat from "jstat";
 import type { TrialRow } from "@/db/types";
 import { switchToCountLevel } from "@/lib/analyses/service";
+import { checkTrialAccess } from "@/lib/auth";
+/** The statistician's access for the data-entry services (they re-check enterData themselves). */
+const enter = (u: Parameters<typeof checkTrialAccess>[0], trialId: number) => checkTrialAccess(u, trialId, "enterData");
 
 type Statistician = PublicUser & { password: string };
 let stat: Statistician;
@@ -112,30 +115,30 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
   });
 
   it("saving counts on a planned look is refused (409) and writes nothing", async () => {
-    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-05-31", counts: counts([10, 9, 4], [10, 9, 2]) }), 409);
+    await expectNothingWritten(a1, async () => saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 1, cutoffDate: "2026-05-31", counts: counts([10, 9, 4], [10, 9, 2]) }), 409);
   });
 
   it("opening a look writes one open audit row", async () => {
-    await expectOneAuditRow("open", "analysis_opened", () => openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-05-31" }));
+    await expectOneAuditRow("open", "analysis_opened", async () => openLookForEntry(await enter(stat, t.trialId), a1, { rowVersion: 1, cutoffDate: "2026-05-31" }));
     expect(await look(a1)).toMatchObject({ status: "open", cutoff_date: "2026-05-31", row_version: 2 });
   });
 
   it("invalid counts are refused with field paths and write nothing", async () => {
-    const err = await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([10, 11, 4], [10, 9, 10]) }));
+    const err = await expectNothingWritten(a1, async () => saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([10, 11, 4], [10, 9, 10]) }));
     expect(err).toBeInstanceOf(ZodError);
     const paths = (err as ZodError).issues.map((i) => i.path.join("."));
     expect(paths).toEqual(expect.arrayContaining(["counts.0.evaluable", "counts.1.responders"]));
-    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([-1, 0, 0], [2.5, 1, 0]) }));
+    await expectNothingWritten(a1, async () => saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([-1, 0, 0], [2.5, 1, 0]) }));
     // An arm missing, and a toxicity count on a design without a safety rule.
-    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([3, 3, 1], [3, 3, 1]).slice(0, 1) }));
-    await expectNothingWritten(a1, () =>
-      saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([3, 3, 1], [3, 3, 1]).map((c) => ({ ...c, toxicities: 1 })) }),
+    await expectNothingWritten(a1, async () => saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([3, 3, 1], [3, 3, 1]).slice(0, 1) }));
+    await expectNothingWritten(a1, async () =>
+      saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([3, 3, 1], [3, 3, 1]).map((c) => ({ ...c, toxicities: 1 })) }),
     );
   });
 
   it("saving counts writes the counts, the pooled total and one closed audit row", async () => {
-    const out = await expectOneAuditRow("closed", "counts_entered", () =>
-      saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([21, 20, 9], [22, 20, 5]) }),
+    const out = await expectOneAuditRow("closed", "counts_entered", async () =>
+      saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 2, cutoffDate: "2026-05-31", counts: counts([21, 20, 9], [22, 20, 5]) }),
     );
     expect(out.enrolledTotal).toBe(43);
     expect(await look(a1)).toMatchObject({ enrolled_total: 43, row_version: 3 });
@@ -149,8 +152,8 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
   it("two concurrent saves from the same version: exactly one wins, the other gets 409, no lost update", async () => {
     const before = await auditCount();
     const results = await Promise.allSettled([
-      saveArmCounts(stat, t.trialId, a1, { rowVersion: 3, cutoffDate: "2026-05-31", counts: counts([24, 22, 10], [23, 21, 6]) }),
-      saveArmCounts(stat, t.trialId, a1, { rowVersion: 3, cutoffDate: "2026-05-31", counts: counts([25, 23, 11], [25, 22, 7]) }),
+      saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 3, cutoffDate: "2026-05-31", counts: counts([24, 22, 10], [23, 21, 6]) }),
+      saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 3, cutoffDate: "2026-05-31", counts: counts([25, 23, 11], [25, 22, 7]) }),
     ]);
     const won = results.filter((r) => r.status === "fulfilled");
     const lost = results.filter((r): r is PromiseRejectedResult => r.status === "rejected");
@@ -170,12 +173,12 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
   });
 
   it("a save from a stale version is refused with 409 and writes nothing", async () => {
-    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 3, cutoffDate: "2026-05-31", counts: counts([1, 1, 1], [1, 1, 1]) }), 409);
+    await expectNothingWritten(a1, async () => saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 3, cutoffDate: "2026-05-31", counts: counts([1, 1, 1], [1, 1, 1]) }), 409);
   });
 
   it("locking needs the right password; a wrong one writes nothing", async () => {
     const failedBefore = await db("audit_events").where({ action: "signature_password_failed" }).count({ n: "*" }).first();
-    const err = await expectNothingWritten(a1, () => lockAnalysis(stat, t.trialId, a1, { rowVersion: 4, password: "not-my-password" }), 422);
+    const err = await expectNothingWritten(a1, async () => lockAnalysis(await enter(stat, t.trialId), a1, { rowVersion: 4, password: "not-my-password" }), 422);
     expect((err as Error).message).toMatch(/password is not correct/);
     const failedAfter = await db("audit_events").where({ action: "signature_password_failed" }).count({ n: "*" }).first();
     expect(Number(failedAfter?.n)).toBe(Number(failedBefore?.n) + 1);
@@ -183,7 +186,7 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
 
   it("locking signs the counts ('analysis locked') and writes one open audit row", async () => {
     const stored = await db("analysis_arm_counts").where({ analysis_id: a1 }).orderBy("arm_id");
-    const out = await expectOneAuditRow("open", "analysis_locked", () => lockAnalysis(stat, t.trialId, a1, { rowVersion: 4, password: stat.password }));
+    const out = await expectOneAuditRow("open", "analysis_locked", async () => lockAnalysis(await enter(stat, t.trialId), a1, { rowVersion: 4, password: stat.password }));
     const l = await look(a1);
     expect(l).toMatchObject({ status: "locked", lock_signature_id: out.signatureId });
     expect(l.locked_at).not.toBeNull();
@@ -211,19 +214,19 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
   });
 
   it("a locked look cannot change (409): counts, upload, open, lock again", async () => {
-    await expectNothingWritten(a1, () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 5, cutoffDate: "2026-05-31", counts: counts([1, 1, 1], [1, 1, 1]) }), 409);
-    await expectNothingWritten(a1, () => confirmPatientUpload(stat, t.trialId, a1, enc(`${HEADER}\nS-1,control,2026-05-01,yes,no,\n`), { rowVersion: 5 }), 409);
-    await expectNothingWritten(a1, () => openLookForEntry(stat, t.trialId, a1, { rowVersion: 5, cutoffDate: "2026-05-31" }), 409);
-    await expectNothingWritten(a1, () => lockAnalysis(stat, t.trialId, a1, { rowVersion: 5, password: stat.password }), 409);
+    await expectNothingWritten(a1, async () => saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 5, cutoffDate: "2026-05-31", counts: counts([1, 1, 1], [1, 1, 1]) }), 409);
+    await expectNothingWritten(a1, async () => confirmPatientUpload(await enter(stat, t.trialId), a1, enc(`${HEADER}\nS-1,control,2026-05-01,yes,no,\n`), { rowVersion: 5 }), 409);
+    await expectNothingWritten(a1, async () => openLookForEntry(await enter(stat, t.trialId), a1, { rowVersion: 5, cutoffDate: "2026-05-31" }), 409);
+    await expectNothingWritten(a1, async () => lockAnalysis(await enter(stat, t.trialId), a1, { rowVersion: 5, password: stat.password }), 409);
   });
 
   it("a correction needs a reason; reopening is an amendment and the old counts stay in the audit trail", async () => {
-    const err = await expectNothingWritten(a1, () => reopenAnalysis(stat, t.trialId, a1, { rowVersion: 5, reason: "typo" }));
+    const err = await expectNothingWritten(a1, async () => reopenAnalysis(await enter(stat, t.trialId), a1, { rowVersion: 5, reason: "typo" }));
     expect(err).toBeInstanceOf(ZodError);
     const reason = "Two responders in the control arm were miscoded at site 3.";
     // Two rows: the open one says a correction was opened; the reason (free text about closed data) is in a closed one.
     const before = await auditCount();
-    await reopenAnalysis(stat, t.trialId, a1, { rowVersion: 5, reason });
+    await reopenAnalysis(await enter(stat, t.trialId), a1, { rowVersion: 5, reason });
     expect(await auditCount()).toBe(before + 2);
     const [closedRow, openRow] = await db("audit_events").orderBy("id", "desc").limit(2);
     expect(openRow).toMatchObject({ action: "analysis_reopened_for_amendment", visibility: "open", reason: null });
@@ -231,8 +234,8 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
     expect((await verifyAuditChain(db)).ok).toBe(true);
     expect(await look(a1)).toMatchObject({ status: "open", amendment_count: 1, locked_at: null, lock_signature_id: null, review_version: 1 });
     const oldCounts = (await db("analysis_arm_counts").where({ analysis_id: a1 }).orderBy("arm_id")).map((c: { enrolled: number }) => c.enrolled);
-    await expectOneAuditRow("closed", "counts_entered", () =>
-      saveArmCounts(stat, t.trialId, a1, { rowVersion: 6, cutoffDate: "2026-05-31", counts: counts([24, 22, 10], [23, 21, 4]), reason }),
+    await expectOneAuditRow("closed", "counts_entered", async () =>
+      saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 6, cutoffDate: "2026-05-31", counts: counts([24, 22, 10], [23, 21, 4]), reason }),
     );
     const row = await lastAudit();
     const oldValues = JSON.parse(row.old_values!);
@@ -245,13 +248,13 @@ describe("two-arm look: open, counts, concurrency, lock, amendment", () => {
 
   it("a cut-off not after the previous look's is refused", async () => {
     const a2 = t.lookIds[1];
-    const err = await expectNothingWritten(a2, () => openLookForEntry(stat, t.trialId, a2, { rowVersion: 1, cutoffDate: "2026-05-31" }), 422);
+    const err = await expectNothingWritten(a2, async () => openLookForEntry(await enter(stat, t.trialId), a2, { rowVersion: 1, cutoffDate: "2026-05-31" }), 422);
     expect((err as Error).message).toMatch(/after the previous look's cut-off \(2026-05-31\)/);
   });
 
   it("a look of another trial is a 404", async () => {
     const other = await trialWithLockedDesign(TWO_ARM_DEMO_DESIGN, "two");
-    await expectNothingWritten(other.lookIds[0], () => openLookForEntry(stat, t.trialId, other.lookIds[0], { rowVersion: 1, cutoffDate: "2026-05-31" }), 404);
+    await expectNothingWritten(other.lookIds[0], async () => openLookForEntry(await enter(stat, t.trialId), other.lookIds[0], { rowVersion: 1, cutoffDate: "2026-05-31" }), 404);
   });
 });
 
@@ -261,7 +264,7 @@ describe("patient-level upload", () => {
   beforeAll(async () => {
     t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
     a1 = t.lookIds[0];
-    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    await openLookForEntry(await enter(stat, t.trialId), a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
   });
   const good = [
     HEADER,
@@ -273,7 +276,7 @@ describe("patient-level upload", () => {
 
   it("preview writes nothing and reports the derived counts", async () => {
     const before = await auditCount();
-    const p = await previewPatientUpload(t.trialId, a1, enc(good), asClosedConnection(db));
+    const p = await previewPatientUpload(await enter(stat, t.trialId), a1, enc(good));
     expect(p).toMatchObject({ ok: true, rowCount: 4, counts: [{ armId: t.arms[0].id, enrolled: 4, evaluable: 3, responders: 2, toxicities: 1 }] });
     expect(await auditCount()).toBe(before);
     expect(await patientRows(a1)).toBe(0);
@@ -289,24 +292,24 @@ describe("patient-level upload", () => {
   ];
   for (const [what, text, message] of BAD) {
     it(`a CSV with ${what} is reported by line and writes nothing on confirm`, async () => {
-      const p = await previewPatientUpload(t.trialId, a1, enc(text), asClosedConnection(db));
+      const p = await previewPatientUpload(await enter(stat, t.trialId), a1, enc(text));
       expect(p.ok).toBe(false);
       if (!p.ok) expect(p.issues.map((i) => i.message).join(" | ")).toMatch(message);
       const v = (await look(a1)).row_version;
-      const err = await expectNothingWritten(a1, () => confirmPatientUpload(stat, t.trialId, a1, enc(text), { rowVersion: v }), 422);
+      const err = await expectNothingWritten(a1, async () => confirmPatientUpload(await enter(stat, t.trialId), a1, enc(text), { rowVersion: v }), 422);
       expect(((err as HttpError).details as { issues: unknown[] }).issues.length).toBeGreaterThan(0);
     });
   }
 
   it("a file that is not CSV (binary) writes nothing", async () => {
     const png = new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13, 0x49, 0x48, 0x44, 0x52]);
-    const p = await previewPatientUpload(t.trialId, a1, png, asClosedConnection(db));
+    const p = await previewPatientUpload(await enter(stat, t.trialId), a1, png);
     expect(p).toMatchObject({ ok: false, issues: [{ line: null, message: expect.stringMatching(/not a CSV file/) }] });
-    await expectNothingWritten(a1, () => confirmPatientUpload(stat, t.trialId, a1, png, { rowVersion: 2 }), 422);
+    await expectNothingWritten(a1, async () => confirmPatientUpload(await enter(stat, t.trialId), a1, png, { rowVersion: 2 }), 422);
   });
 
   it("confirm writes every row and the derived counts in one transaction, with one closed audit row", async () => {
-    const out = await expectOneAuditRow("closed", "patient_data_uploaded", () => confirmPatientUpload(stat, t.trialId, a1, enc(good), { rowVersion: 2, fileName: "look1.csv" }));
+    const out = await expectOneAuditRow("closed", "patient_data_uploaded", async () => confirmPatientUpload(await enter(stat, t.trialId), a1, enc(good), { rowVersion: 2, fileName: "look1.csv" }));
     expect(out.patientRows).toBe(4);
     expect(await patientRows(a1)).toBe(4);
     expect(await look(a1)).toMatchObject({ enrolled_total: 4, row_version: 3 });
@@ -321,7 +324,7 @@ describe("patient-level upload", () => {
     // 1,000 patients need a design that allows them (counts above nMax are refused before any write).
     const big = await trialWithLockedDesign({ ...SINGLE_ARM_DEMO_DESIGN, nMax: 1000, looks: { kind: "list", sizes: [1000] } }, "single");
     const a1 = big.lookIds[0];
-    await openLookForEntry(stat, big.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    await openLookForEntry(await enter(stat, big.trialId), a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
     const v = (await look(a1)).row_version;
     const before = { audits: await auditCount(), rows: await patientRows(a1), counts: await db("analysis_arm_counts").where({ analysis_id: a1 }), look: await look(a1) };
     const lines = [HEADER];
@@ -329,7 +332,7 @@ describe("patient-level upload", () => {
     // The upload inserts all its rows, then waits inside its transaction for the audit chain head.
     let peeked = -1;
     const err = await killMidTransaction(
-      () => confirmPatientUpload(stat, big.trialId, a1, enc(lines.join("\n")), { rowVersion: v }),
+      async () => confirmPatientUpload(await enter(stat, big.trialId), a1, enc(lines.join("\n")), { rowVersion: v }),
       async (owner) => {
         // Mid-transaction: the rows are there, uncommitted (read uncommitted sees them).
         const peek = await owner.transaction(async (trx) => trx("patient_outcomes").where({ analysis_id: a1 }).where("subject_id", "like", "K-%").count({ n: "*" }).first(), {
@@ -352,7 +355,7 @@ describe("patient-level upload", () => {
 
   it("after the failure the same upload goes through", async () => {
     const v = (await look(a1)).row_version;
-    await expectOneAuditRow("closed", "patient_data_uploaded", () => confirmPatientUpload(stat, t.trialId, a1, enc(good), { rowVersion: v }));
+    await expectOneAuditRow("closed", "patient_data_uploaded", async () => confirmPatientUpload(await enter(stat, t.trialId), a1, enc(good), { rowVersion: v }));
   });
 });
 
@@ -367,9 +370,9 @@ const single = (armId: number, c: { enrolled: number; treated: number; evaluable
 /** Opens look `i` at the cut-off, saves the counts and locks it; returns the look's id. */
 async function enterAndLock(t: Awaited<ReturnType<typeof trialWithLockedDesign>>, i: number, cutoffDate: string, counts: unknown[]) {
   const id = t.lookIds[i];
-  await openLookForEntry(stat, t.trialId, id, { rowVersion: (await look(id)).row_version, cutoffDate });
-  await saveArmCounts(stat, t.trialId, id, { rowVersion: (await look(id)).row_version, cutoffDate, counts });
-  await lockAnalysis(stat, t.trialId, id, { rowVersion: (await look(id)).row_version, password: stat.password });
+  await openLookForEntry(await enter(stat, t.trialId), id, { rowVersion: (await look(id)).row_version, cutoffDate });
+  await saveArmCounts(await enter(stat, t.trialId), id, { rowVersion: (await look(id)).row_version, cutoffDate, counts });
+  await lockAnalysis(await enter(stat, t.trialId), id, { rowVersion: (await look(id)).row_version, password: stat.password });
   return id;
 }
 
@@ -402,9 +405,9 @@ describe("finding 1: the safety denominator is the number treated (evaluable for
   it("toxicities above the number treated are refused (422) and write nothing", async () => {
     const t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
     const a1 = t.lookIds[0];
-    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
-    const err = await expectNothingWritten(a1, () =>
-      saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(t.arms[0].id, { enrolled: 21, treated: 7, evaluable: 15, responders: 4, toxicities: 8 }) }),
+    await openLookForEntry(await enter(stat, t.trialId), a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    const err = await expectNothingWritten(a1, async () =>
+      saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(t.arms[0].id, { enrolled: 21, treated: 7, evaluable: 15, responders: 4, toxicities: 8 }) }),
     );
     expect((err as ZodError).issues.map((i) => i.path.join("."))).toEqual(["counts.0.toxicities"]);
   });
@@ -420,9 +423,9 @@ describe("finding 3: lock-time validation against the locked design and the neig
 
   it("counts above the maximum sample size (nMax 40) are refused at save, with a message, and write nothing", async () => {
     const a1 = t.lookIds[0];
-    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
-    const err = await expectNothingWritten(a1, () =>
-      saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(arm, { enrolled: 41, treated: 41, evaluable: 40, responders: 10, toxicities: 2 }) }),
+    await openLookForEntry(await enter(stat, t.trialId), a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    const err = await expectNothingWritten(a1, async () =>
+      saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(arm, { enrolled: 41, treated: 41, evaluable: 40, responders: 10, toxicities: 2 }) }),
     );
     expect((err as ZodError).issues[0].message).toMatch(/maximum sample size for an arm \(40\)/);
     expect(errorResponse(err).status).toBe(422);
@@ -432,7 +435,7 @@ describe("finding 3: lock-time validation against the locked design and the neig
     const a1 = t.lookIds[0];
     // As if stored before this check existed: 41 enrolled, 41 evaluable, more than the design's 40.
     await db("analysis_arm_counts").insert({ analysis_id: a1, arm_id: arm, enrolled: 41, treated: 41, evaluable: 41, responders: 10, toxicities: 2 });
-    const err = await expectNothingWritten(a1, () => lockAnalysis(stat, t.trialId, a1, { rowVersion: 2, password: stat.password }), 422);
+    const err = await expectNothingWritten(a1, async () => lockAnalysis(await enter(stat, t.trialId), a1, { rowVersion: 2, password: stat.password }), 422);
     expect((err as Error).message).toMatch(/^Look 1 was not locked: .*maximum sample size/);
     expect(((err as HttpError).details as { issues: Array<{ path: string }> }).issues.map((i) => i.path)).toEqual(["counts.0.enrolled"]);
     await db("analysis_arm_counts").where({ analysis_id: a1 }).delete();
@@ -440,8 +443,8 @@ describe("finding 3: lock-time validation against the locked design and the neig
 
   it("the extreme data the checks allow (every count at nMax, and every count at 0) lock and the review computes without throwing", async () => {
     const a1 = t.lookIds[0];
-    await saveArmCounts(stat, t.trialId, a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(arm, { enrolled: 0, treated: 0, evaluable: 0, responders: 0, toxicities: 0 }) });
-    await lockAnalysis(stat, t.trialId, a1, { rowVersion: 3, password: stat.password });
+    await saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 2, cutoffDate: "2026-06-30", counts: single(arm, { enrolled: 0, treated: 0, evaluable: 0, responders: 0, toxicities: 0 }) });
+    await lockAnalysis(await enter(stat, t.trialId), a1, { rowVersion: 3, password: stat.password });
     const r0 = (await loadReview(await trialRow(t.trialId), a1, asClosedConnection(db))).review;
     expect(r0.current).toMatchObject({ n: 0, treated: 0, toxicities: 0 });
     const a2 = await enterAndLock(t, 1, "2026-09-30", single(arm, { enrolled: 40, treated: 40, evaluable: 40, responders: 40, toxicities: 40 }));
@@ -463,7 +466,7 @@ describe("finding 3: lock-time validation against the locked design and the neig
     const armId = fresh.arms[0].id;
     await enterAndLock(fresh, 0, "2026-06-30", single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 4, toxicities: 2 }));
     const a2 = fresh.lookIds[1];
-    await openLookForEntry(stat, fresh.trialId, a2, { rowVersion: 1, cutoffDate: "2026-09-30" });
+    await openLookForEntry(await enter(stat, fresh.trialId), a2, { rowVersion: 1, cutoffDate: "2026-09-30" });
     const base = { enrolled: 22, treated: 21, evaluable: 20, responders: 6, toxicities: 3 };
     for (const [field, value] of [
       ["enrolled", 11],
@@ -474,12 +477,12 @@ describe("finding 3: lock-time validation against the locked design and the neig
     ] as const) {
       const bad = { ...base, [field]: value };
       if (field === "enrolled") Object.assign(bad, { treated: 11, evaluable: 10 });
-      const err = await expectNothingWritten(a2, () => saveArmCounts(stat, fresh.trialId, a2, { rowVersion: 2, cutoffDate: "2026-09-30", counts: single(armId, bad) }), 422);
+      const err = await expectNothingWritten(a2, async () => saveArmCounts(await enter(stat, fresh.trialId), a2, { rowVersion: 2, cutoffDate: "2026-09-30", counts: single(armId, bad) }), 422);
       expect((err as Error).message).toMatch(/below the \d+ of locked look 1; counts are cumulative/);
       expect(((err as HttpError).details as { issues: Array<{ path: string }> }).issues.map((i) => i.path)).toContain(`counts.0.${field}`);
     }
     // Equal counts are allowed (no new patient between the looks).
-    await saveArmCounts(stat, fresh.trialId, a2, { rowVersion: 2, cutoffDate: "2026-09-30", counts: single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 4, toxicities: 2 }) });
+    await saveArmCounts(await enter(stat, fresh.trialId), a2, { rowVersion: 2, cutoffDate: "2026-09-30", counts: single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 4, toxicities: 2 }) });
   });
 
   it("a reopened earlier look may not rise above the later locked look's counts, at save or at lock", async () => {
@@ -487,11 +490,11 @@ describe("finding 3: lock-time validation against the locked design and the neig
     const armId = fresh.arms[0].id;
     const a1 = await enterAndLock(fresh, 0, "2026-06-30", single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 4, toxicities: 2 }));
     await enterAndLock(fresh, 1, "2026-09-30", single(armId, { enrolled: 22, treated: 21, evaluable: 20, responders: 6, toxicities: 3 }));
-    await reopenAnalysis(stat, fresh.trialId, a1, { rowVersion: (await look(a1)).row_version, reason: "Site 2 recoded one responder after query." });
+    await reopenAnalysis(await enter(stat, fresh.trialId), a1, { rowVersion: (await look(a1)).row_version, reason: "Site 2 recoded one responder after query." });
     const v = (await look(a1)).row_version;
     const err = await expectNothingWritten(
       a1,
-      () => saveArmCounts(stat, fresh.trialId, a1, { rowVersion: v, cutoffDate: "2026-06-30", counts: single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 7, toxicities: 2 }) }),
+      async () => saveArmCounts(await enter(stat, fresh.trialId), a1, { rowVersion: v, cutoffDate: "2026-06-30", counts: single(armId, { enrolled: 12, treated: 11, evaluable: 10, responders: 7, toxicities: 2 }) }),
       422,
     );
     expect((err as Error).message).toMatch(/responders \(7\) is above the 6 of the later locked look 2/);
@@ -502,7 +505,7 @@ describe("finding 6: CSV rows dated after the cut-off are left out and reported"
   it("the preview lists them, confirm returns the same report, stores only the look's rows and audits the excluded lines", async () => {
     const t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
     const a1 = t.lookIds[0];
-    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    await openLookForEntry(await enter(stat, t.trialId), a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
     const text = [HEADER, "P-01,single,2026-03-02,yes,yes,no", "P-02,single,2026-07-01,yes,no,yes", "P-03,single,2026-06-30,no,,yes", "P-04,single,2026-08-15,yes,yes,no"].join("\n");
     const want = {
       count: 2,
@@ -512,9 +515,9 @@ describe("finding 6: CSV rows dated after the cut-off are left out and reported"
         { line: 5, subjectId: "P-04", enrolmentDate: "2026-08-15" },
       ],
     };
-    const p = await previewPatientUpload(t.trialId, a1, enc(text), asClosedConnection(db));
+    const p = await previewPatientUpload(await enter(stat, t.trialId), a1, enc(text));
     expect(p).toMatchObject({ ok: true, rowCount: 4, includedRows: 2, excluded: want, counts: [{ enrolled: 2, treated: 2, evaluable: 1, responders: 1, toxicities: 1 }] });
-    const out = await expectOneAuditRow("closed", "patient_data_uploaded", () => confirmPatientUpload(stat, t.trialId, a1, enc(text), { rowVersion: 2 }));
+    const out = await expectOneAuditRow("closed", "patient_data_uploaded", async () => confirmPatientUpload(await enter(stat, t.trialId), a1, enc(text), { rowVersion: 2 }));
     expect(out).toMatchObject({ patientRows: 2, enrolledTotal: 2, excluded: want });
     expect((await db("patient_outcomes").where({ analysis_id: a1 }).orderBy("source_line")).map((r: { subject_id: string }) => r.subject_id)).toEqual(["P-01", "P-03"]);
     expect(JSON.parse((await lastAudit()).new_values!).excludedAfterCutoff).toEqual({ count: 2, lines: [3, 5] });
@@ -528,25 +531,25 @@ describe("finding 6: a look is patient-level or count-level, never both", () => 
   beforeAll(async () => {
     t = await trialWithLockedDesign(SINGLE_ARM_DEMO_DESIGN, "single");
     a1 = t.lookIds[0];
-    await openLookForEntry(stat, t.trialId, a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
-    await confirmPatientUpload(stat, t.trialId, a1, enc(file), { rowVersion: 2 });
+    await openLookForEntry(await enter(stat, t.trialId), a1, { rowVersion: 1, cutoffDate: "2026-06-30" });
+    await confirmPatientUpload(await enter(stat, t.trialId), a1, enc(file), { rowVersion: 2 });
   });
 
   it("hand-editing the counts of a patient-level look is refused (409) with how to switch, and writes nothing", async () => {
     const err = await expectNothingWritten(
       a1,
-      () => saveArmCounts(stat, t.trialId, a1, { rowVersion: 3, cutoffDate: "2026-06-30", counts: single(t.arms[0].id, { enrolled: 3, treated: 3, evaluable: 2, responders: 2, toxicities: 1 }) }),
+      async () => saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 3, cutoffDate: "2026-06-30", counts: single(t.arms[0].id, { enrolled: 3, treated: 3, evaluable: 2, responders: 2, toxicities: 1 }) }),
       409,
     );
     expect((err as Error).message).toMatch(/patient-level: its counts are derived from its 2 uploaded patient rows.*switch the look to count-level entry/);
   });
 
   it("the switch needs a reason; with one it removes the patient rows, keeps the counts and records a closed audit entry", async () => {
-    const err = await expectNothingWritten(a1, () => switchToCountLevel(stat, t.trialId, a1, { rowVersion: 3, reason: "fix" }));
+    const err = await expectNothingWritten(a1, async () => switchToCountLevel(await enter(stat, t.trialId), a1, { rowVersion: 3, reason: "fix" }));
     expect(err).toBeInstanceOf(ZodError);
     const counts = await db("analysis_arm_counts").where({ analysis_id: a1 });
     const reason = "The data-capture export for site 4 is late; counts confirmed by phone.";
-    const out = await expectOneAuditRow("closed", "switched_to_count_level", () => switchToCountLevel(stat, t.trialId, a1, { rowVersion: 3, reason }));
+    const out = await expectOneAuditRow("closed", "switched_to_count_level", async () => switchToCountLevel(await enter(stat, t.trialId), a1, { rowVersion: 3, reason }));
     expect(out).toEqual({ rowVersion: 4, dataLevel: "count", removedPatientRows: 2 });
     expect(await patientRows(a1)).toBe(0);
     expect(await db("analysis_arm_counts").where({ analysis_id: a1 })).toEqual(counts);
@@ -556,9 +559,9 @@ describe("finding 6: a look is patient-level or count-level, never both", () => 
   });
 
   it("a count-level look takes typed counts; switching it again is a 409; an upload makes it patient-level again", async () => {
-    await saveArmCounts(stat, t.trialId, a1, { rowVersion: 4, cutoffDate: "2026-06-30", counts: single(t.arms[0].id, { enrolled: 3, treated: 3, evaluable: 2, responders: 2, toxicities: 1 }) });
-    await expectNothingWritten(a1, () => switchToCountLevel(stat, t.trialId, a1, { rowVersion: 5, reason: "Nothing to switch here at all." }), 409);
-    await confirmPatientUpload(stat, t.trialId, a1, enc(file), { rowVersion: 5 });
+    await saveArmCounts(await enter(stat, t.trialId), a1, { rowVersion: 4, cutoffDate: "2026-06-30", counts: single(t.arms[0].id, { enrolled: 3, treated: 3, evaluable: 2, responders: 2, toxicities: 1 }) });
+    await expectNothingWritten(a1, async () => switchToCountLevel(await enter(stat, t.trialId), a1, { rowVersion: 5, reason: "Nothing to switch here at all." }), 409);
+    await confirmPatientUpload(await enter(stat, t.trialId), a1, enc(file), { rowVersion: 5 });
     expect(await patientRows(a1)).toBe(2);
     expect(await db("analysis_arm_counts").where({ analysis_id: a1 }).first()).toMatchObject({ enrolled: 2, evaluable: 2, responders: 1, treated: 2, toxicities: 1 });
   });

@@ -24,6 +24,9 @@ import { createApiToken, revokeApiToken, MAX_TOKEN_DAYS } from "@/lib/auth/api-t
 import { actAs, currentClaims, currentSession, routeContext } from "./support/as-user";
 import { db, resetDatabase } from "./support/db";
 import type { PublicUser } from "@/db/types";
+import { checkTrialAccess } from "@/lib/auth";
+/** The statistician's access for the data-entry services (they re-check enterData themselves). */
+const enter = (u: Parameters<typeof checkTrialAccess>[0], trialId: number) => checkTrialAccess(u, trialId, "enterData");
 
 vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null), sessionClaims: vi.fn(() => currentClaims()) }));
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }));
@@ -74,7 +77,7 @@ beforeAll(async () => {
   two = { id: t2.id, locked: locked2.id };
   // The statistician opens look 3 in the browser (a session); the export job fills it with a token.
   actAs(stat.id);
-  await openLookForEntry(stat, single.id, single.look3, { rowVersion: look3.row_version, cutoffDate: "2026-12-31" });
+  await openLookForEntry(await enter(stat, single.id), single.look3, { rowVersion: look3.row_version, cutoffDate: "2026-12-31" });
   actAs(null);
 });
 

@@ -22,6 +22,8 @@ import { StatsDomainError } from "@/lib/stats/validate";
 import { actAs, currentClaims, currentSession, routeContext } from "./support/as-user";
 import { db, giveRole, makeTrial, makeUser, resetDatabase } from "./support/db";
 import type { PublicUser } from "@/db/types";
+/** The statistician's access for the data-entry services (they re-check enterData themselves). */
+const enter = (u: Parameters<typeof checkTrialAccess>[0], trialId: number) => checkTrialAccess(u, trialId, "enterData");
 
 vi.mock("@/lib/auth/session", () => ({ sessionUserId: vi.fn(async () => currentSession()?.user.id ?? null), sessionClaims: vi.fn(() => currentClaims()) }));
 vi.mock("next/cache", () => ({ revalidatePath: vi.fn(), revalidateTag: vi.fn() }));
@@ -86,9 +88,9 @@ beforeAll(async () => {
   });
   armId = (await db("arms").where({ trial_id: trialId }).first()).id;
   analysisId = (await db("analyses").where({ trial_id: trialId }).orderBy("look_number").first()).id;
-  await openLookForEntry(stat, trialId, analysisId, { rowVersion: 1, cutoffDate: "2026-05-31" });
-  await saveArmCounts(stat, trialId, analysisId, { rowVersion: 2, cutoffDate: "2026-05-31", counts: [{ armId, ...SECRET }] });
-  await lockAnalysis(stat, trialId, analysisId, { rowVersion: 3, password: stat.password });
+  await openLookForEntry(await enter(stat, trialId), analysisId, { rowVersion: 1, cutoffDate: "2026-05-31" });
+  await saveArmCounts(await enter(stat, trialId), analysisId, { rowVersion: 2, cutoffDate: "2026-05-31", counts: [{ armId, ...SECRET }] });
+  await lockAnalysis(await enter(stat, trialId), analysisId, { rowVersion: 3, password: stat.password });
 });
 
 describe("a blinded role cannot recover closed values from the audit trail", () => {

@@ -24,6 +24,8 @@ import { lockAnalysis, reopenAnalysis } from "@/lib/analyses/service";
 import { fetchAuditEvents } from "@/db/audit";
 import { loadReproducibilityRecord } from "@/lib/review/load-review";
 import { fetchTrial } from "@/db/queries/trials";
+/** The statistician's access for the data-entry services (they re-check enterData themselves). */
+const enter = (u: Parameters<typeof checkTrialAccess>[0], trialId: number) => checkTrialAccess(u, trialId, "enterData");
 
 const DESIGN = smallSingleArmDesign();
 
@@ -205,9 +207,9 @@ describe("correction after review (finding 6): reopening a reviewed look starts 
     const look = await lookRow();
     expect(look.status).toBe("reviewed");
     const before = { ...(await counts()), look };
-    expect(await statusOf(reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason }))).toBe(422);
-    expect(await statusOf(reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason, password: "wrong-password" }))).toBe(422);
-    expect(await statusOf(reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason: "short", password: stat.password }))).toBe("zod");
+    expect(await statusOf(reopenAnalysis(await enter(stat, trialId), lockedLook, { rowVersion: look.row_version, reason }))).toBe(422);
+    expect(await statusOf(reopenAnalysis(await enter(stat, trialId), lockedLook, { rowVersion: look.row_version, reason, password: "wrong-password" }))).toBe(422);
+    expect(await statusOf(reopenAnalysis(await enter(stat, trialId), lockedLook, { rowVersion: look.row_version, reason: "short", password: stat.password }))).toBe("zod");
     // Nothing is signed or changed; only the wrong password is on record (an open audit row, no secret in it).
     expect({ ...(await counts()), look: await lookRow() }).toEqual({ ...before, audit: before.audit + 1 });
     const failed = await db("audit_events").orderBy("id", "desc").first();
@@ -218,7 +220,7 @@ describe("correction after review (finding 6): reopening a reviewed look starts 
   it("with a reason and the password: review version 2, a signature bound to the reopening, an open audit row without the reason and a closed one with it", async () => {
     const look = await lookRow();
     const auditBefore = (await counts()).audit;
-    const out = await reopenAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, reason, password: stat.password });
+    const out = await reopenAnalysis(await enter(stat, trialId), lockedLook, { rowVersion: look.row_version, reason, password: stat.password });
     expect(out).toMatchObject({ reviewVersion: 2, amendment: look.amendment_count + 1 });
     expect(await lookRow()).toMatchObject({ status: "open", review_version: 2, amendment_count: look.amendment_count + 1, lock_signature_id: null, reviewed_at: null });
     const sig = await db("signatures").where({ id: out.signatureId }).first();
@@ -246,7 +248,7 @@ describe("correction after review (finding 6): reopening a reviewed look starts 
 
   it("after the corrected look is locked again, the DMC records a first recommendation on version 2; only that one is current, and the export names the versions and signatures", async () => {
     let look = await lookRow();
-    await lockAnalysis(stat, trialId, lockedLook, { rowVersion: look.row_version, password: stat.password });
+    await lockAnalysis(await enter(stat, trialId), lockedLook, { rowVersion: look.row_version, password: stat.password });
     const access = await checkTrialAccess(dmc, trialId, "recordRecommendation");
     const rec = await recordRecommendation(access, lockedLook, { ...good, decision: "continue_modified", password: dmc.password });
     expect(rec.correctsId).toBeNull();

@@ -25,6 +25,9 @@ import { expandLooks } from "@/lib/stats/looks";
 import type { TwoArmDesign } from "@/lib/stats/types";
 import type { PublicUser, TrialRow } from "@/db/types";
 import * as lockRoute from "@/app/api/trials/[trialId]/analyses/[analysisId]/lock/route";
+import { checkTrialAccess } from "@/lib/auth";
+/** The statistician's access for the data-entry services (they re-check enterData themselves). */
+const enter = (u: Parameters<typeof checkTrialAccess>[0], trialId: number) => checkTrialAccess(u, trialId, "enterData");
 
 // An invented two-arm study: 40 per arm, looks at 20 and 40 per arm, predictive rule with safety.
 const DESIGN: TwoArmDesign = {
@@ -81,8 +84,8 @@ beforeAll(async () => {
   arms = await db("arms").where({ trial_id: trialId }).orderBy("sort_order");
   lookId = (await db("analyses").where({ trial_id: trialId }).orderBy("look_number").first()).id;
   actAs(stat.id);
-  await openLookForEntry(stat, trialId, lookId, { rowVersion: (await look(lookId)).row_version, cutoffDate: "2026-11-20" });
-  await saveArmCounts(stat, trialId, lookId, { rowVersion: (await look(lookId)).row_version, cutoffDate: "2026-11-20", counts: counts(11, 6) });
+  await openLookForEntry(await enter(stat, trialId), lookId, { rowVersion: (await look(lookId)).row_version, cutoffDate: "2026-11-20" });
+  await saveArmCounts(await enter(stat, trialId), lookId, { rowVersion: (await look(lookId)).row_version, cutoffDate: "2026-11-20", counts: counts(11, 6) });
 });
 
 afterAll(async () => {
@@ -127,9 +130,9 @@ describe("review_cache: a locked look's closed review computed once and kept", (
 
   it("after a correction the old review is never served: reopening drops it, the relock keeps the corrected one", async () => {
     const [before] = await cacheRows(lookId);
-    await reopenAnalysis(stat, trialId, lookId, { rowVersion: (await look(lookId)).row_version, reason: "Two responses in the experimental arm were entered twice." });
+    await reopenAnalysis(await enter(stat, trialId), lookId, { rowVersion: (await look(lookId)).row_version, reason: "Two responses in the experimental arm were entered twice." });
     expect(await cacheRows(lookId)).toHaveLength(0);
-    await saveArmCounts(stat, trialId, lookId, { rowVersion: (await look(lookId)).row_version, cutoffDate: "2026-11-20", counts: counts(9, 6) });
+    await saveArmCounts(await enter(stat, trialId), lookId, { rowVersion: (await look(lookId)).row_version, cutoffDate: "2026-11-20", counts: counts(9, 6) });
     await lockThroughRoute(lookId);
     const rows = await cacheRows(lookId);
     expect(rows).toHaveLength(1);

@@ -23,6 +23,9 @@ import { loadReviewInput } from "@/lib/review/load-review";
 import { computeReview } from "@/lib/review/compute-review";
 import { decideAtLook } from "@/lib/stats/decision";
 import type { PublicUser, TrialRow } from "@/db/types";
+import { checkTrialAccess } from "@/lib/auth";
+/** The statistician's access for the data-entry services (they re-check enterData themselves). */
+const enter = (u: Parameters<typeof checkTrialAccess>[0], trialId: number) => checkTrialAccess(u, trialId, "enterData");
 
 let users: Record<string, number>;
 let single: { trialId: number; analysisId: number };
@@ -127,15 +130,15 @@ describe("pending outcomes", () => {
   it("a typed pending count is stored, checked against enrolled, reaches the review, and leaves the predictive probability as if those patients were simply future ones", async () => {
     const look3 = await db("analyses").where({ trial_id: trial.id, look_number: 3 }).first();
     const arm = await db("arms").where({ trial_id: trial.id }).first();
-    let rv = (await openLookForEntry(stat, trial.id, look3.id, { rowVersion: look3.row_version, cutoffDate: "2026-12-31" })).rowVersion;
+    let rv = (await openLookForEntry(await enter(stat, trial.id), look3.id, { rowVersion: look3.row_version, cutoffDate: "2026-12-31" })).rowVersion;
     const counts = (pending: number | undefined, enrolled = 30) => [{ armId: arm.id, enrolled, treated: 29, evaluable: 26, responders: 8, toxicities: 4, ...(pending === undefined ? {} : { pending }) }];
     // Evaluable 26 + pending 5 > enrolled 30: refused, nothing written.
-    const refused = await saveArmCounts(stat, trial.id, look3.id, { rowVersion: rv, cutoffDate: "2026-12-31", counts: counts(5) }).catch((e) => e);
+    const refused = await saveArmCounts(await enter(stat, trial.id), look3.id, { rowVersion: rv, cutoffDate: "2026-12-31", counts: counts(5) }).catch((e) => e);
     expect(refused instanceof ZodError || refused instanceof HttpError).toBe(true);
     expect(await db("analysis_arm_counts").where({ analysis_id: look3.id })).toHaveLength(0);
-    rv = (await saveArmCounts(stat, trial.id, look3.id, { rowVersion: rv, cutoffDate: "2026-12-31", counts: counts(3) })).rowVersion;
+    rv = (await saveArmCounts(await enter(stat, trial.id), look3.id, { rowVersion: rv, cutoffDate: "2026-12-31", counts: counts(3) })).rowVersion;
     expect((await db("analysis_arm_counts").where({ analysis_id: look3.id }).first()).pending).toBe(3);
-    await lockAnalysis({ ...stat }, trial.id, look3.id, { rowVersion: rv, password: "demo-stat-pass" });
+    await lockAnalysis(await enter({ ...stat }, trial.id), look3.id, { rowVersion: rv, password: "demo-stat-pass" });
 
     const { input } = await loadReviewInput(trial, look3.id, asClosedConnection(db));
     const review = computeReview(input);
@@ -154,14 +157,14 @@ describe("pending outcomes", () => {
   it("the CSV's evaluable = pending rows are stored as pending and counted per arm", async () => {
     const ct = await db("trials").where({ code: "CRN-305" }).first();
     const look2 = await db("analyses").where({ trial_id: ct.id, look_number: 2 }).first();
-    const rv = (await openLookForEntry(stat, ct.id, look2.id, { rowVersion: look2.row_version, cutoffDate: "2026-12-31" })).rowVersion;
+    const rv = (await openLookForEntry(await enter(stat, ct.id), look2.id, { rowVersion: look2.row_version, cutoffDate: "2026-12-31" })).rowVersion;
     const lines = ["subject_id,arm,enrolment_date,evaluable,response,toxicity"];
     // Experimental: 21 evaluable (12 responders), 2 pending; control: 21 evaluable (6 responders), 1 pending.
     for (let i = 0; i < 21; i++) lines.push(`E-${i},experimental,2026-07-01,yes,${i < 12 ? "yes" : "no"},`);
     for (let i = 0; i < 2; i++) lines.push(`EP-${i},experimental,2026-12-01,pending,,`);
     for (let i = 0; i < 21; i++) lines.push(`C-${i},control,2026-07-01,yes,${i < 6 ? "yes" : "no"},`);
     lines.push("CP-0,control,2026-12-02,pending,,");
-    const out = await confirmPatientUpload(stat, ct.id, look2.id, new TextEncoder().encode(lines.join("\n") + "\n"), { rowVersion: rv });
+    const out = await confirmPatientUpload(await enter(stat, ct.id), look2.id, new TextEncoder().encode(lines.join("\n") + "\n"), { rowVersion: rv });
     expect(out.counts.map((c) => [c.evaluable, c.responders, c.pending])).toEqual([
       [21, 12, 2],
       [21, 6, 1],

@@ -5,9 +5,8 @@
  * and the committee's recommendation are in ../closed-session/actions.ts.
  */
 import { revalidatePath } from "next/cache";
-import { allows, type TrialAccess } from "@/lib/auth";
-import { forbiddenError } from "@/lib/http";
-import { approveMinutes, declareConflicts, recordSessionAttendance, saveMinutesDraft } from "@/lib/committee/service";
+import type { TrialAccess } from "@/lib/auth";
+import { approveMinutes, declareConflicts, mayDraftOpenMinutes, recordSessionAttendance, saveMinutesDraft } from "@/lib/committee/service";
 import { queueLetterMail, signRecommendationLetter } from "@/lib/committee/letter";
 import { committeeAct, formFields } from "@/lib/committee/action-support";
 import { deliverAfterResponse } from "@/lib/mail/delivery";
@@ -19,11 +18,6 @@ const refresh = (a: TrialAccess, form: FormData) => {
     revalidatePath(`/trials/${a.trial.id}/meetings/${m}/committee`);
     revalidatePath(`/trials/${a.trial.id}/meetings/${m}/closed-session`);
   }
-};
-
-/** Open-session minutes are drafted by the meeting's organisers and by committee members. */
-const mayDraftOpenMinutes = (a: TrialAccess) => {
-  if (!allows(a.principal, "manageMeetings") && !allows(a.principal, "recordRecommendation")) throw forbiddenError("writing the minutes");
 };
 
 export async function recordOpenAttendanceAction(_prev: CommitteeFormState, form: FormData): Promise<CommitteeFormState> {

@@ -12,6 +12,6 @@ export const dynamic = "force-dynamic";
  */
 export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  const { user } = await requireTrialAccess(trialId, "enterData");
-  return NextResponse.json(await switchToCountLevel(user, trialId, analysisId, await readJson(req, 16 * 1024)));
+  const access = await requireTrialAccess(trialId, "enterData");
+  return NextResponse.json(await switchToCountLevel(access, analysisId, await readJson(req, 16 * 1024)));
 });

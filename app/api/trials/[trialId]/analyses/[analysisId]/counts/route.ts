@@ -10,6 +10,6 @@ export const dynamic = "force-dynamic";
 export const PUT = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
   // A data-capture export job may call this with a personal API token (README, "Machine clients").
-  const { user } = await requireTrialAccess(trialId, "enterData", { bearer: req });
-  return NextResponse.json(await saveArmCounts(user, trialId, analysisId, await readJson(req)));
+  const access = await requireTrialAccess(trialId, "enterData", { bearer: req });
+  return NextResponse.json(await saveArmCounts(access, analysisId, await readJson(req)));
 });

@@ -10,9 +10,9 @@ export const dynamic = "force-dynamic";
 /** Locks an open look with an e-signature ("analysis locked"). Body: { rowVersion, password }. */
 export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  const { user, trial } = await requireTrialAccess(trialId, "enterData");
-  const locked = await lockAnalysis(user, trialId, analysisId, await readJson(req, 16 * 1024));
+  const access = await requireTrialAccess(trialId, "enterData");
+  const locked = await lockAnalysis(access, analysisId, await readJson(req, 16 * 1024));
   // The lock has committed: compute and keep the closed review in the background (worker thread).
-  void warmReviewCache(trial, analysisId);
+  void warmReviewCache(access.trial, analysisId);
   return NextResponse.json(locked);
 });

@@ -9,6 +9,6 @@ export const dynamic = "force-dynamic";
 /** Opens a planned look for entry and sets its data cut-off. Body: { rowVersion, cutoffDate }. */
 export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  const { user } = await requireTrialAccess(trialId, "enterData");
-  return NextResponse.json(await openLookForEntry(user, trialId, analysisId, await readJson(req)));
+  const access = await requireTrialAccess(trialId, "enterData");
+  return NextResponse.json(await openLookForEntry(access, analysisId, await readJson(req)));
 });

@@ -9,6 +9,6 @@ export const dynamic = "force-dynamic";
 /** Reopens a locked look as an amendment. Body: { rowVersion, reason }. */
 export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  const { user } = await requireTrialAccess(trialId, "enterData");
-  return NextResponse.json(await reopenAnalysis(user, trialId, analysisId, await readJson(req, 16 * 1024)));
+  const access = await requireTrialAccess(trialId, "enterData");
+  return NextResponse.json(await reopenAnalysis(access, analysisId, await readJson(req, 16 * 1024)));
 });

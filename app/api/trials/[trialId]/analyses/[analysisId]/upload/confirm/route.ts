@@ -14,8 +14,8 @@ export const dynamic = "force-dynamic";
  */
 export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
-  const { user } = await requireTrialAccess(trialId, "enterData", { bearer: req });
+  const access = await requireTrialAccess(trialId, "enterData", { bearer: req });
   const q = uploadConfirmQuerySchema.parse(Object.fromEntries(new URL(req.url).searchParams));
   const bytes = await readCsvUpload(req);
-  return NextResponse.json(await confirmPatientUpload(user, trialId, analysisId, bytes, q));
+  return NextResponse.json(await confirmPatientUpload(access, analysisId, bytes, q));
 });

@@ -1,5 +1,5 @@
 import { NextResponse } from "next/server";
-import { closedConnection, requireTrialAccess } from "@/lib/auth";
+import { requireTrialAccess } from "@/lib/auth";
 import { handle } from "@/lib/http";
 import { lookIds, type LookRouteParams } from "@/lib/route-params";
 import { previewPatientUpload } from "@/lib/analyses/service";
@@ -15,5 +15,5 @@ export const POST = handle(async (req: Request, ctx: LookRouteParams) => {
   const { trialId, analysisId } = await lookIds(ctx);
   const access = await requireTrialAccess(trialId, "enterData", { bearer: req });
   const bytes = await readCsvUpload(req);
-  return NextResponse.json(await previewPatientUpload(trialId, analysisId, bytes, closedConnection(access)));
+  return NextResponse.json(await previewPatientUpload(access, analysisId, bytes));
 });
