@@ -15,7 +15,7 @@ import { fetchTrialRecipients, insertEmails, type NewEmail } from "@/db/queries/
 import { fetchCommittee, fetchLetters, fetchMeetingRecommendationOpen, insertLetterVersion } from "@/db/queries/committee";
 import { lockMeetingRow } from "@/db/queries/packets";
 import type { RecommendationDecision, TrialRow } from "@/db/types";
-import type { TrialAccess } from "@/lib/auth";
+import { assertCapability, type TrialAccess } from "@/lib/auth";
 import { confirmSigner } from "@/lib/auth/signature";
 import { CAUTION_TEXT } from "@/lib/caution";
 import { DECISION_LABELS } from "@/lib/format";
@@ -91,6 +91,7 @@ const day = (d: Date | string) => new Date(d).toISOString().slice(0, 10);
 
 /** The chair signs the letter for the committee's current recommendation made at this meeting; a new version only when the content changed. */
 export async function signRecommendationLetter(access: TrialAccess, raw: unknown, now = new Date()): Promise<{ id: number; version: number; created: boolean }> {
+  assertCapability(access, "recordRecommendation");
   const input = letterSchema.parse(raw);
   const meeting = await meetingOf(access, input.meetingId);
   const committee = await fetchCommittee(access.trial.id);
@@ -143,6 +144,7 @@ function letterAttachmentName(trialCode: string, version: number): string {
 
 /** Records the letter e-mails (latest version attached) to the sponsor's contacts on the trial; delivery is the outbox's. */
 export async function queueLetterMail(access: TrialAccess, raw: unknown, now = new Date()): Promise<{ ids: number[]; version: number; recipients: number }> {
+  assertCapability(access, "recordRecommendation");
   const input = letterSendSchema.parse(raw);
   const meeting = await meetingOf(access, input.meetingId);
   requireChair(access, await fetchCommittee(access.trial.id));

@@ -11,7 +11,7 @@ import { insertSignature } from "@/db/queries/signatures";
 import { fetchCharterQuorum, fetchCommittee, fetchDeclarations, fetchSessionAttendance, isVoting, quorumInForce, type CommitteeMember } from "@/db/queries/committee";
 import { fetchVotes, insertVote, tallyVotes, type CommitteeVote, type Tally } from "@/db/queries/committee-closed";
 import { fetchAnalysisOpen } from "@/db/queries/open-status";
-import type { TrialAccess } from "@/lib/auth";
+import { assertCapability, type TrialAccess } from "@/lib/auth";
 import { confirmSigner } from "@/lib/auth/signature";
 import { conflict, HttpError } from "@/lib/http";
 import { meetingOf } from "./service";
@@ -19,6 +19,7 @@ import { voteSchema } from "./schemas";
 
 /** A voting member's signed vote on the look a meeting reviews, with an optional closed comment. */
 export async function castVote(access: TrialAccess, raw: unknown, now = new Date()): Promise<{ id: number }> {
+  assertCapability(access, "recordRecommendation");
   const input = voteSchema.parse(raw);
   const meeting = await meetingOf(access, input.meetingId);
   const committee = await fetchCommittee(access.trial.id);

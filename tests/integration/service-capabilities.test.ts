@@ -15,25 +15,17 @@ import { HttpError } from "@/lib/http";
 import { insertDesignVersion } from "@/db/queries/designs";
 import { createPlannedLooks } from "@/db/queries/analyses";
 import type { PublicUser, TrialRole } from "@/db/types";
-import type { SingleArmDesign } from "@/lib/stats/types";
 import * as analyses from "@/lib/analyses/service";
 import * as design from "@/lib/design/service";
 import * as committee from "@/lib/committee/service";
 import * as meetings from "@/lib/meetings/service";
+import * as votes from "@/lib/committee/votes";
+import * as letter from "@/lib/committee/letter";
 import * as review from "@/lib/review/record-recommendation";
 import { db, giveRole, makeTrial, makeUser, ownerKnex, resetDatabase } from "./support/db";
+import { smallSingleArmDesign } from "./support/designs";
 
-const DESIGN: SingleArmDesign = {
-  arms: "single",
-  prior: { family: "uniform" },
-  p0: 0.2,
-  p1: 0.4,
-  delta: 0,
-  nMax: 30,
-  looks: { kind: "list", sizes: [15, 30] },
-  rule: { kind: "predictive", thetaT: 0.9, futilityThreshold: 0.05, efficacyStopping: false, efficacyThreshold: null },
-  safety: null,
-};
+const DESIGN = smallSingleArmDesign([15, 30]);
 
 /** The callers: one per role on the fixture trial, and an administrator with no role on it. */
 type Who = "statistician" | "dmc" | "sponsor" | "coordinator" | "admin";
@@ -126,6 +118,10 @@ const TABLE: Row[] = [
   },
   { module: "committee", name: "saveMinutesDraft", capability: "viewClosed (closed session)", allowed: ["statistician", "dmc"], refused: refusal("writing the closed minutes"), control: 422, act: (a) => committee.saveMinutesDraft(a, { session: "closed" }) },
   { module: "committee", name: "approveMinutes", capability: "recordRecommendation", allowed: ["dmc"], refused: RECOMMEND, control: 422, act: (a) => committee.approveMinutes(a, {}) },
+  // lib/committee/votes.ts and letter.ts: recordRecommendation (a DMC member); the seat and chair checks follow.
+  { module: "votes", name: "castVote", capability: "recordRecommendation", allowed: ["dmc"], refused: RECOMMEND, control: 422, act: (a) => votes.castVote(a, {}) },
+  { module: "letter", name: "signRecommendationLetter", capability: "recordRecommendation", allowed: ["dmc"], refused: RECOMMEND, control: 422, act: (a) => letter.signRecommendationLetter(a, {}) },
+  { module: "letter", name: "queueLetterMail", capability: "recordRecommendation", allowed: ["dmc"], refused: RECOMMEND, control: 422, act: (a) => letter.queueLetterMail(a, {}) },
   // lib/meetings/service.ts: manageMeetings.
   { module: "meetings", name: "scheduleMeeting", capability: "manageMeetings", allowed: ["coordinator", "statistician"], refused: MEET, control: 422, act: (a) => meetings.scheduleMeeting(a, {}) },
   { module: "meetings", name: "recordMeetingAttendance", capability: "manageMeetings", allowed: ["coordinator", "statistician"], refused: MEET, control: 422, act: (a) => meetings.recordMeetingAttendance(a, {}) },
@@ -139,9 +135,10 @@ const TABLE: Row[] = [
 const READS: Record<string, string> = {
   "analyses.loadLookContext": "reads the look's open facts (status, arms, design limits) for pages and handlers that already checked access",
   "committee.meetingOf": "reads a meeting of access.trial (open data) for the acts above and the closed-session actions",
+  "votes.committeeDecisionFacts": "reads the signed votes inside recordRecommendation's transaction, after its capability check",
 };
 
-const MODULES: Record<string, Record<string, unknown>> = { analyses, design, committee, meetings, review };
+const MODULES: Record<string, Record<string, unknown>> = { analyses, design, committee, votes, letter, meetings, review };
 
 /** The access a caller gets with a capability every one of them holds; the service does the real check. */
 const accessOf = (who: Who) => checkTrialAccess(users[who], trialId, "viewOpen");
