@@ -61,23 +61,23 @@ try {
   await upToDate(page);
   await page.locator("figure[data-chart] .js-plotly-plot").first().waitFor({ timeout: 60_000 });
   const charts = await page.locator("figure[data-chart] .js-plotly-plot").count();
-  // Every redraw of every chart, and the time of the last input event, on the page's own clock.
-  await page.evaluate(() => {
-    const w = window as unknown as { draws: number[]; lastInput: number; watched: Set<Element> };
-    w.draws = [];
-    w.lastInput = 0;
-    w.watched = new Set();
-    document.addEventListener("input", () => (w.lastInput = performance.now()), true);
+  // Every redraw of every chart, and the time of the last input event, on the page's own clock. Plain
+  // JavaScript text: tsx would wrap named functions in a helper that does not exist in the page.
+  await page.evaluate(`(() => {
+    window.draws = [];
+    window.lastInput = 0;
+    const watched = new Set();
+    document.addEventListener("input", () => (window.lastInput = performance.now()), true);
     const watch = () => {
       for (const gd of document.querySelectorAll(".js-plotly-plot")) {
-        if (w.watched.has(gd)) continue;
-        w.watched.add(gd);
-        (gd as unknown as { on: (e: string, f: () => void) => void }).on("plotly_afterplot", () => w.draws.push(performance.now()));
+        if (watched.has(gd)) continue;
+        watched.add(gd);
+        gd.on("plotly_afterplot", () => window.draws.push(performance.now()));
       }
     };
     watch();
     new MutationObserver(watch).observe(document.body, { childList: true, subtree: true });
-  });
+  })()`);
   const refresh: number[] = [];
   for (let i = 0; i < edits; i++) {
     await page.evaluate(() => ((window as unknown as { draws: number[] }).draws = []));
