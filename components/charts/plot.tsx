@@ -29,15 +29,7 @@ const Plot = dynamic(
   { ssr: false, loading: () => <p className="text-sm text-stone-600">Drawing chart…</p> },
 );
 
-export const CAIRN_COLOURS = {
-  futility: "#9a5b06",
-  efficacy: "#17707a",
-  safety: "#a02a5a",
-  observed: "#1f1d19",
-  posterior: "#3f7d4f",
-  prior: "#9a9384",
-  control: "#5e584c",
-} as const;
+export { CAIRN_COLOURS } from "@/lib/charts/palette";
 
 /** The options every chart gets: no toolbar, no logo link, no hosted-service links, resizing on. */
 const CAIRN_PLOT_CONFIG = { displayModeBar: false, displaylogo: false, showLink: false, showEditInChartStudio: false, showSendToCloud: false, responsive: true } as const;

@@ -8,17 +8,8 @@ import { formatBoundary, formatProbability, formatRate } from "@/lib/format";
 import type { Review, ReproducibilityRecord } from "@/lib/review/compute-review";
 import type { LookDecision, MixtureBeta } from "@/lib/stats/types";
 import type { PacketChart, PacketSection } from "./document";
+import { CAIRN_COLOURS } from "@/lib/charts/palette";
 
-/** Same palette as components/charts/plot.tsx (CAIRN_COLOURS), repeated here because that module is client-only. */
-const PACKET_COLOURS = {
-  futility: "#9a5b06",
-  efficacy: "#17707a",
-  safety: "#a02a5a",
-  observed: "#1f1d19",
-  posterior: "#3f7d4f",
-  prior: "#9a9384",
-  control: "#5e584c",
-} as const;
 
 export type ClosedPacketInput = {
   review: Review;
@@ -44,7 +35,7 @@ function mixtureText(m: MixtureBeta): string {
 const interval = (i: { lower: number; upper: number }) => `${formatRate(i.lower)} to ${formatRate(i.upper)}`;
 
 function densityChart(review: Review): PacketChart {
-  const colours = [PACKET_COLOURS.posterior, PACKET_COLOURS.control];
+  const colours = [CAIRN_COLOURS.posterior, CAIRN_COLOURS.control];
   let ymax = 0;
   const series: PacketChart["series"] = review.arms.map((a, i) => {
     const pts: Array<[number, number]> = [];
@@ -57,7 +48,7 @@ function densityChart(review: Review): PacketChart {
     });
     return { name: `${a.label} posterior`, kind: "line" as const, colour: colours[i % colours.length], points: pts, dashed: a.role === "control" };
   });
-  if (review.reference.kind === "p0") series.push({ name: `p0 = ${formatRate(review.reference.value)}`, kind: "vline", colour: PACKET_COLOURS.futility, points: [[review.reference.value, 0]], dashed: true });
+  if (review.reference.kind === "p0") series.push({ name: `p0 = ${formatRate(review.reference.value)}`, kind: "vline", colour: CAIRN_COLOURS.futility, points: [[review.reference.value, 0]], dashed: true });
   return { title: "Posterior density of the response rate", xLabel: "Response rate", yLabel: "Density", xRange: [0, 1], yRange: [0, Math.max(1, ymax * 1.08)], series };
 }
 
@@ -75,13 +66,13 @@ function boundaryChart(review: Review): PacketChart {
     yRange: [0, nMax],
     series: [
       // Steps, as on the screen: a boundary holds from one look to the next.
-      { name: "Futility: stop at or below", kind: "step", colour: PACKET_COLOURS.futility, points: fut },
-      { name: "Efficacy (final: success) at or above", kind: "step", colour: PACKET_COLOURS.efficacy, points: eff },
-      { name: "Observed", kind: "line", colour: PACKET_COLOURS.observed, points: [[0, 0], ...obs] },
-      { name: "Observed looks", kind: "points", colour: PACKET_COLOURS.observed, points: obs },
+      { name: "Futility: stop at or below", kind: "step", colour: CAIRN_COLOURS.futility, points: fut },
+      { name: "Efficacy (final: success) at or above", kind: "step", colour: CAIRN_COLOURS.efficacy, points: eff },
+      { name: "Observed", kind: "line", colour: CAIRN_COLOURS.observed, points: [[0, 0], ...obs] },
+      { name: "Observed looks", kind: "points", colour: CAIRN_COLOURS.observed, points: obs },
       // Boundaries at each look's actual evaluable count, where that differs from the plan.
-      { name: "Futility at the observed n", kind: "points", colour: PACKET_COLOURS.futility, points: review.observedBoundaries.filter((o) => o.futilityMax !== null).map((o) => [o.n, o.futilityMax as number] as [number, number]) },
-      { name: "Efficacy at the observed n", kind: "points", colour: PACKET_COLOURS.efficacy, points: review.observedBoundaries.filter((o) => o.efficacyMin !== null).map((o) => [o.n, o.efficacyMin as number] as [number, number]) },
+      { name: "Futility at the observed n", kind: "points", colour: CAIRN_COLOURS.futility, points: review.observedBoundaries.filter((o) => o.futilityMax !== null).map((o) => [o.n, o.futilityMax as number] as [number, number]) },
+      { name: "Efficacy at the observed n", kind: "points", colour: CAIRN_COLOURS.efficacy, points: review.observedBoundaries.filter((o) => o.efficacyMin !== null).map((o) => [o.n, o.efficacyMin as number] as [number, number]) },
     ],
   };
 }
@@ -198,7 +189,7 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
                 yLabel: "Probability",
                 xRange: [0, nMax] as [number, number],
                 yRange: [0, 1] as [number, number],
-                series: [{ name: statLabel, kind: "line" as const, colour: PACKET_COLOURS.posterior, points: ppPoints }, { name: "Looks", kind: "points" as const, colour: PACKET_COLOURS.observed, points: ppPoints }],
+                series: [{ name: statLabel, kind: "line" as const, colour: CAIRN_COLOURS.posterior, points: ppPoints }, { name: "Looks", kind: "points" as const, colour: CAIRN_COLOURS.observed, points: ppPoints }],
               },
             },
           ]
@@ -283,10 +274,10 @@ export function buildClosedSections(input: ClosedPacketInput): PacketSection[] {
               xRange: [0, nMax],
               yRange: [0, nMax],
               series: [
-                { name: "Safety stop at or above", kind: "line", colour: PACKET_COLOURS.safety, points: s.boundary.filter((b) => b.toxicityMin !== null).map((b) => [b.n, b.toxicityMin as number]) },
-                { name: "Observed", kind: "line", colour: PACKET_COLOURS.observed, points: [[0, 0], ...s.observedPath.map((o) => [o.n, o.toxicities] as [number, number])] },
-                { name: "Observed looks", kind: "points", colour: PACKET_COLOURS.observed, points: s.observedPath.map((o) => [o.n, o.toxicities] as [number, number]) },
-                { name: "Safety stop at the observed n", kind: "points", colour: PACKET_COLOURS.safety, points: s.observed.filter((o) => o.toxicityMin !== null).map((o) => [o.n, o.toxicityMin as number] as [number, number]) },
+                { name: "Safety stop at or above", kind: "line", colour: CAIRN_COLOURS.safety, points: s.boundary.filter((b) => b.toxicityMin !== null).map((b) => [b.n, b.toxicityMin as number]) },
+                { name: "Observed", kind: "line", colour: CAIRN_COLOURS.observed, points: [[0, 0], ...s.observedPath.map((o) => [o.n, o.toxicities] as [number, number])] },
+                { name: "Observed looks", kind: "points", colour: CAIRN_COLOURS.observed, points: s.observedPath.map((o) => [o.n, o.toxicities] as [number, number]) },
+                { name: "Safety stop at the observed n", kind: "points", colour: CAIRN_COLOURS.safety, points: s.observed.filter((o) => o.toxicityMin !== null).map((o) => [o.n, o.toxicityMin as number] as [number, number]) },
               ],
             },
           },
