@@ -31,7 +31,7 @@ import { exceedsThreshold } from "./compare";
 import { efficacyBottom, futilityTop, JointRecursion, type RecursionSummary } from "./recursion";
 import { twoArmPredictiveTablesBackward } from "./backward";
 import { monotoneThresholds } from "./predictive";
-import type { CalibratedDesign, CalibrationOptions, CalibrationResult } from "./calibration";
+import { trimBest, type CalibratedDesign, type CalibrationOptions, type CalibrationResult } from "./calibration";
 
 export type TwoArmCalibrationOptions = CalibrationOptions & {
   /** Control rates of the type I error maximum (default TWO_ARM_NULL_CONTROL_RATES; the design's control rate is always added). */
@@ -311,13 +311,13 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
             pEarlyFutilityNull: at0.earlyFutility,
             pEarlyEfficacyNull: at0.earlyEfficacy,
           });
-          if (feasibleList.length > 4 * keep) trim(feasibleList, keep);
+          if (feasibleList.length > 4 * keep) trimBest(feasibleList, keep);
         }
       }
     }
     options.onProgress?.(done / total);
   }
-  trim(feasibleList, keep);
+  trimBest(feasibleList, keep);
   if (!cancelled) options.onProgress?.(1);
   return {
     grid: { thetaT: thetaTGrid.slice(), thetaL: thetaLGrid.slice(), thetaU: thetaUGrid ? thetaUGrid.slice() : null },
@@ -332,8 +332,3 @@ export function calibrateTwoArm(design: TwoArmDesign, options: TwoArmCalibration
   };
 }
 
-/** The order of calibrateSingleArm: smallest expected sample size at the null first, then higher power. */
-function trim(list: TwoArmCalibratedDesign[], keep: number): void {
-  list.sort((u, v) => u.expectedSampleSizeNull - v.expectedSampleSizeNull || v.power - u.power);
-  list.length = Math.min(list.length, keep);
-}

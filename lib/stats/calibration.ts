@@ -199,13 +199,13 @@ export function calibrateSingleArm(design: SingleArmDesign, options: Calibration
             pEarlyFutilityNull: at0.earlyFutility,
             pEarlyEfficacyNull: at0.earlyEfficacy,
           });
-          if (feasibleList.length > 4 * keep) trim(feasibleList, keep);
+          if (feasibleList.length > 4 * keep) trimBest(feasibleList, keep);
         }
       }
     }
     options.onProgress?.(done / total);
   }
-  trim(feasibleList, keep);
+  trimBest(feasibleList, keep);
   if (!cancelled) options.onProgress?.(1);
   return {
     grid: { thetaT: thetaTGrid.slice(), thetaL: thetaLGrid.slice(), thetaU: thetaUGrid ? thetaUGrid.slice() : null },
@@ -220,7 +220,11 @@ export function calibrateSingleArm(design: SingleArmDesign, options: Calibration
   };
 }
 
-function trim(list: CalibratedDesign[], keep: number): void {
+/**
+ * Keeps the `keep` best feasible designs, in the order the searches report them (one arm and two):
+ * smallest expected sample size at the null first, then higher power.
+ */
+export function trimBest<D extends { expectedSampleSizeNull: number; power: number }>(list: D[], keep: number): void {
   list.sort((u, v) => u.expectedSampleSizeNull - v.expectedSampleSizeNull || v.power - u.power);
   list.length = Math.min(list.length, keep);
 }
