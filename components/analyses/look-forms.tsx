@@ -273,7 +273,7 @@ export function SwitchToCountLevelForm({ trialId, analysisId, rowVersion, patien
         with your reason in the audit trail.
       </p>
       <input type="hidden" name="rowVersion" value={rowVersion} />
-      <Field label="Reason for switching to count-level entry" name="reason" error={fe.reason} hint={CLOSED_FIELD_NOTE}>
+      <Field label="Reason for switching to count-level entry" name="reason" id="switch-reason" error={fe.reason} hint={CLOSED_FIELD_NOTE}>
         <TextArea id="switch-reason" name="reason" rows={2} maxLength={1000} invalid={!!fe.reason} />
       </Field>
       <div>

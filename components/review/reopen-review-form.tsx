@@ -46,7 +46,7 @@ export function ReopenReviewForm({ trialId, analysisId, rowVersion, lookNumber, 
       <p className="text-sm text-stone-600">
         This look was reviewed under review version {reviewVersion}. Reopening it lets you correct its data; the recorded recommendations stay as they are and are marked superseded, and the DMC reviews the corrected look again.
       </p>
-      <Field label="Reason for the correction" name="reason" error={fe.reason} hint={CLOSED_FIELD_NOTE}>
+      <Field label="Reason for the correction" name="reason" id="reopen-reason" error={fe.reason} hint={CLOSED_FIELD_NOTE}>
         <TextArea id="reopen-reason" name="reason" rows={2} maxLength={1000} value={reason} onChange={(e) => setReason(e.target.value)} invalid={!!fe.reason} />
       </Field>
       <Field label="Password (electronic signature): review reopened for correction" name="password" id="reopen-password" error={fe.password} hint={`Signing as ${signerName}, meaning "review reopened for correction".`}>
