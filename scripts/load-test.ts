@@ -126,21 +126,26 @@ async function paced(path: string, cookies: string[], duration: number) {
   return { latencies, errors };
 }
 
+/** One row of the report: exact percentiles over every latency. */
+function summary(name: string, path: string, latencies: number[], errors: number) {
+  latencies.sort((a, b) => a - b);
+  return {
+    route: name,
+    path,
+    requests: latencies.length,
+    "req/s": Math.round(latencies.length / seconds),
+    "p50 ms": percentile(latencies, 50).toFixed(1),
+    "p95 ms": percentile(latencies, 95).toFixed(1),
+    "p99 ms": percentile(latencies, 99).toFixed(1),
+    errors,
+  };
+}
+
 async function run(name: string, path: string, cookies: string[]) {
   if (rate > 0) {
     await paced(path, cookies, WARM_UP_SECONDS);
     const { latencies, errors } = await paced(path, cookies, seconds);
-    latencies.sort((a, b) => a - b);
-    return {
-      route: name,
-      path,
-      requests: latencies.length,
-      "req/s": Math.round(latencies.length / seconds),
-      "p50 ms": percentile(latencies, 50).toFixed(1),
-      "p95 ms": percentile(latencies, 95).toFixed(1),
-      "p99 ms": percentile(latencies, 99).toFixed(1),
-      errors,
-    };
+    return summary(name, path, latencies, errors);
   }
   await warmUp(path, cookies);
   const latencies: number[] = [];
@@ -152,18 +157,8 @@ async function run(name: string, path: string, cookies: string[]) {
       statusCounts.set(statusCode, (statusCounts.get(statusCode) ?? 0) + 1);
     });
   });
-  latencies.sort((a, b) => a - b);
   const non2xx = [...statusCounts].filter(([s]) => s < 200 || s >= 300).reduce((s, [, n]) => s + n, 0);
-  return {
-    route: name,
-    path,
-    requests: latencies.length,
-    "req/s": Math.round(latencies.length / seconds),
-    "p50 ms": percentile(latencies, 50).toFixed(1),
-    "p95 ms": percentile(latencies, 95).toFixed(1),
-    "p99 ms": percentile(latencies, 99).toFixed(1),
-    errors: result.errors + result.timeouts + non2xx,
-  };
+  return summary(name, path, latencies, result.errors + result.timeouts + non2xx);
 }
 
 const cookie = await signInCookie(base, "dmc@cairn.example", "demo-dmc-pass");
