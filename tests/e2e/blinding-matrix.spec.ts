@@ -10,7 +10,7 @@
  * next-auth's credentials endpoint, one test per row and trial with soft checks per role.
  * Writes are requested with invalid bodies or empty forms, so nothing changes.
  */
-import { expect, test, request as playwrightRequest, type APIRequestContext } from "@playwright/test";
+import { expect, test, request as playwrightRequest, type APIRequestContext, type APIResponse } from "@playwright/test";
 import { readFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import path from "node:path";
@@ -60,15 +60,24 @@ async function signedInContext(baseURL: string, email: string, password: string)
   return ctx;
 }
 
+async function contextOf(baseURL: string, role: MatrixRole): Promise<APIRequestContext> {
+  if (role === "anonymous") return playwrightRequest.newContext({ baseURL });
+  const who = role === "outsider" ? OUTSIDER : ACCOUNTS[role];
+  return signedInContext(baseURL, who.email, who.password);
+}
+
+/** Whether an answer to a signed-in role says the session is gone. */
+async function sessionEnded(res: APIResponse): Promise<boolean> {
+  if (res.status() === 401) return true;
+  if (res.status() >= 300 && res.status() < 400) return /\/signin(\?|$)/.test(res.headers()["location"] ?? "");
+  return res.status() === 200 && /Sign in to continue/.test(await res.text());
+}
+
 test.beforeAll(async ({ baseURL }) => {
   test.setTimeout(180_000);
   ids = matrixIds();
   actions = actionIds();
-  for (const role of ROLES) {
-    if (role === "anonymous") contexts.set(role, await playwrightRequest.newContext({ baseURL }));
-    else if (role === "outsider") contexts.set(role, await signedInContext(baseURL!, OUTSIDER.email, OUTSIDER.password));
-    else contexts.set(role, await signedInContext(baseURL!, ACCOUNTS[role].email, ACCOUNTS[role].password));
-  }
+  for (const role of ROLES) contexts.set(role, await contextOf(baseURL!, role));
 });
 
 test.afterAll(async () => {
@@ -95,7 +104,7 @@ for (const row of AUTHORIZATION_MATRIX) {
   const trialScoped = row.path.includes("{trial}") || Object.values(row.form ?? {}).some((v) => v.includes("{trial}"));
   for (const key of trialScoped ? TRIAL_KEYS : [undefined]) {
     const label = `${row.kind === "action" ? `action ${row.action!.split("#")[1]} via ${row.path}` : `${row.method} ${row.path}`}${key ? ` on ${key === "single" ? "CRN-201" : key === "two" ? "CRN-305" : "the fixture trial"}` : ""}`;
-    test(label, async () => {
+    test(label, async ({ baseURL }) => {
       test.fixme(!!row.pending, "This page or route is not built yet.");
       const t = key ? ids[key] : undefined;
       const url = fill(row.path, t);
@@ -104,7 +113,15 @@ for (const row of AUTHORIZATION_MATRIX) {
       for (const role of ROLES) {
         const expected = row.expect[role];
         if (expected === null) continue;
-        const res = await requestCell(row, url!, contexts.get(role)!, t);
+        let res = await requestCell(row, url!, contexts.get(role)!, t);
+        // A flow that signs this person out (tests/e2e/sign-in.spec.ts) ends every session of theirs, this
+        // lane's too (lib/auth/options.ts): seen as a sign-in redirect, a 401 or the action's sign-in
+        // refusal where the role was signed in. Sign in again, once, and ask again.
+        if (role !== "anonymous" && (await sessionEnded(res))) {
+          await contexts.get(role)!.dispose();
+          contexts.set(role, await contextOf(baseURL!, role));
+          res = await requestCell(row, url!, contexts.get(role)!, t);
+        }
         const body = await res.text();
         const where = `${label} as ${role}: ${res.status()} ${body.slice(0, 200)}`;
         if (typeof expected === "number") {

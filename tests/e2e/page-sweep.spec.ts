@@ -19,7 +19,7 @@
  * endpoint. On the design studio it waits until the preview is up to date, so its charts are there.
  */
 import AxeBuilder from "@axe-core/playwright";
-import { expect, test, request as playwrightRequest, type Browser, type BrowserContext, type Page } from "@playwright/test";
+import { expect, test, type Browser, type BrowserContext, type Page } from "@playwright/test";
 import { ACCOUNTS } from "./support/accounts";
 import { AUTHORIZATION_MATRIX, ROLES, type MatrixRole } from "./support/authorization-matrix";
 import { OUTSIDER } from "./support/matrix-fixture-data";
@@ -33,17 +33,19 @@ const DESKTOP = { width: 1440, height: 900 };
 const PHONE = { width: 390, height: 844 };
 const REFLOW = { width: 320, height: 800 };
 
-async function contextFor(browser: Browser, baseURL: string, role: MatrixRole): Promise<BrowserContext> {
-  if (role === "anonymous") return browser.newContext({ baseURL, viewport: DESKTOP });
-  const who = role === "outsider" ? OUTSIDER : ACCOUNTS[role];
-  const api = await playwrightRequest.newContext({ baseURL });
-  const { csrfToken } = (await (await api.get("/api/auth/csrf")).json()) as { csrfToken: string };
-  const res = await api.post("/api/auth/callback/credentials", { form: { email: who.email, password: who.password, csrfToken, json: "true", callbackUrl: "/trials" }, maxRedirects: 0 });
+/** Signs a browser context in through the credentials endpoint (its request shares the context's cookies). */
+async function signInto(ctx: BrowserContext, baseURL: string, role: MatrixRole) {
+  const who = role === "outsider" ? OUTSIDER : ACCOUNTS[role as Exclude<MatrixRole, "outsider" | "anonymous">];
+  const { csrfToken } = (await (await ctx.request.get("/api/auth/csrf")).json()) as { csrfToken: string };
+  const res = await ctx.request.post("/api/auth/callback/credentials", { form: { email: who.email, password: who.password, csrfToken, json: "true", callbackUrl: "/trials" }, maxRedirects: 0 });
   const { url } = (await res.json()) as { url: string };
   expect(new URL(url, baseURL).searchParams.get("error"), `sign-in of ${who.email}`).toBeNull();
-  const storageState = await api.storageState();
-  await api.dispose();
-  return browser.newContext({ baseURL, viewport: DESKTOP, storageState });
+}
+
+async function contextFor(browser: Browser, baseURL: string, role: MatrixRole): Promise<BrowserContext> {
+  const ctx = await browser.newContext({ baseURL, viewport: DESKTOP });
+  if (role !== "anonymous") await signInto(ctx, baseURL, role);
+  return ctx;
 }
 
 function fill(template: string, t: TrialIds): string | undefined {
@@ -162,8 +164,16 @@ for (const role of ROLES) {
       const failures: string[] = [];
       for (const { template, path } of paths) {
         await page.setViewportSize(DESKTOP);
-        const res = await page.goto(path);
+        let res = await page.goto(path);
+        // A flow that signs this person out (tests/e2e/sign-in.spec.ts) ends every session of theirs, this
+        // one too (lib/auth/options.ts): the page then sends to sign-in. Sign in again, once, and reopen it.
+        if (role !== "anonymous" && new URL(page.url()).pathname === "/signin") {
+          await signInto(ctx, baseURL!, role);
+          res = await page.goto(path);
+        }
         expect(res?.status(), `${path} as ${role}`).toBe(200);
+        // The page itself, not where a redirect led (a sign-in page also answers 200).
+        expect(new URL(page.url()).pathname, `${path} as ${role}`).toBe(path);
         await settle(page);
         const at = (size: { width: number }) => `${path} as ${role} at ${size.width} px`;
         for (const v of await axeViolations(page)) failures.push(`${at(DESKTOP)}: ${v}`);
