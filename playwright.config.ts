@@ -5,8 +5,11 @@ import { defineConfig } from "@playwright/test";
 const port = Number(process.env.CAIRN_E2E_PORT ?? 3100);
 const smtpPort = Number(process.env.CAIRN_E2E_SMTP_PORT ?? 2526);
 const baseURL = `http://localhost:${port}`;
-/** Specs that only read: they may run beside anything. */
-const READS = ["page-sweep.spec.ts", "blinding-matrix.spec.ts", "headers.spec.ts"].map((f) => `**/${f}`);
+/**
+ * Specs that only read, and hold their sign-ins long enough to need it: they may run beside anything,
+ * and sign in again if a flow's sign-out ends their session (short read-only specs stay in the flows).
+ */
+const READS = ["page-sweep.spec.ts", "blinding-matrix.spec.ts"].map((f) => `**/${f}`);
 
 export default defineConfig({
   testDir: "tests/e2e",
@@ -14,9 +17,9 @@ export default defineConfig({
   outputDir: `test-results/e2e-${port}`,
   // Made once before any test: the authorization matrix's fixture (its ids reach workers by environment).
   globalSetup: "./tests/e2e/support/global-setup.ts",
-  // Two lanes side by side: the flows change the seeded data and run one at a time, in file order;
-  // the reads (every page and route as every role, nothing changed) run beside them and spread over
-  // whatever worker is free. Both lanes hold on a two-core machine (docs: DEVELOPERS.md, "Browser tests").
+  // Two lanes side by side: the flows change the seeded data (and sign people out) and run one at a
+  // time, in file order; the reads (every page and route as every role, nothing changed) run beside
+  // them and spread over whatever worker is free. Both lanes hold on a two-core machine (docs: DEVELOPERS.md, "Browser tests").
   workers: Number(process.env.CAIRN_E2E_WORKERS ?? 2),
   projects: [
     // Flows first: the scheduler hands a free worker the first queued job whose project is under its
