@@ -8,7 +8,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { compareWithMatrix, enumerateAppSurface, exportedActionNames, exportedMethods, isServerActionModule, resolveRoute } from "../e2e/support/app-surface";
-import { AUTHORIZATION_MATRIX, ROLES } from "../e2e/support/authorization-matrix";
+import { AUTHORIZATION_MATRIX, ROLES, findOutcomeData } from "../e2e/support/authorization-matrix";
 
 const ROOT = path.resolve(import.meta.dirname, "../..");
 
@@ -98,5 +98,13 @@ describe("the coverage check reports what a fake app tree adds", () => {
     expect(resolveRoute("/trials/new", ["/trials/[trialId]", "/trials/new"])).toBe("/trials/new");
     expect(resolveRoute("/trials/7", ["/trials/[trialId]", "/trials/new"])).toBe("/trials/[trialId]");
     expect(resolveRoute("/", ["/", "/trials"])).toBe("/");
+  });
+});
+
+describe("the closed-data markers read words, not random tokens", () => {
+  it("finds HPD as a word of the page, and not inside a CSP nonce (a real nonce once held it)", () => {
+    expect(findOutcomeData('<p>95% HPD interval</p>')).toEqual(["posterior summary heading"]);
+    expect(findOutcomeData('<script nonce="SNgb+gX2HPDOoFT0ABfPfQ=="></script>')).toEqual([]);
+    expect(findOutcomeData('<span class="HPD_variable">')).toEqual([]);
   });
 });

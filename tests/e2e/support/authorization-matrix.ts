@@ -244,7 +244,9 @@ export const OUTCOME_MARKERS: { name: string; pattern: RegExp }[] = [
   { name: "toxicity count sentence", pattern: /\b[0-9]+ toxicities in [0-9]+ patients\b/ },
   { name: "seeded rationale", pattern: /well above the futility threshold/ },
   { name: "fixture rationale", pattern: /marram-kestrel/ },
-  { name: "posterior summary heading", pattern: /Posterior response rate|Predictive probability of success \d|HPD/ },
+  // "HPD" as a word of the page, not three letters inside a random token (a CSP nonce, a build id, a font
+  // class): a nonce once held "HPD" and read as a leak.
+  { name: "posterior summary heading", pattern: /Posterior response rate|Predictive probability of success \d|(?<![A-Za-z0-9+/=_-])HPD(?![A-Za-z0-9+/=_-])/ },
 ];
 
 export function findOutcomeData(body: string): string[] {
