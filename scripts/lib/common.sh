@@ -42,11 +42,23 @@ ensure_rscript_installed() {
   if ! command -v Rscript >/dev/null 2>&1; then apt_install r-base-core; fi
 }
 
+native_packages_load() {
+  (cd "$ROOT" && node -e "Promise.all(['rolldown', 'lightningcss', '@tailwindcss/oxide', 'esbuild'].map((m) => import(m))).then(() => process.exit(0), (e) => { console.error(e.message); process.exit(1); })")
+}
+
 ensure_node_modules() {
   local stamp="$ROOT/node_modules/.cairn-lock-stamp"
   if [ ! -f "$stamp" ] || ! cmp -s "$ROOT/package-lock.json" "$stamp"; then
     log "installing npm packages (npm ci)"
     (cd "$ROOT" && npm ci --no-audit --no-fund >/dev/null)
+    # npm ci treats a platform's native package as an optional dependency and goes on without it when it
+    # is skipped (npm/cli#4828); a fresh clone once lost rolldown's, and vitest could not start. Check
+    # the native parts load, and install once more if one does not.
+    if ! native_packages_load; then
+      log "a native package is missing after npm ci; installing again"
+      (cd "$ROOT" && rm -rf node_modules && npm ci --no-audit --no-fund >/dev/null)
+      native_packages_load || die "native packages (rolldown, lightningcss, @tailwindcss/oxide, esbuild) still do not load after npm ci"
+    fi
     cp "$ROOT/package-lock.json" "$stamp"
   fi
 }
