@@ -25,6 +25,8 @@ export const unauthorized = () => new HttpError(401, "Sign in to continue.");
 export const forbiddenError = (what = "this") => new HttpError(403, `Your role on this trial does not allow ${what}.`);
 export const notFoundError = (what = "That record") => new HttpError(404, `${what} was not found.`);
 export const conflict = (message: string) => new HttpError(409, message);
+/** A refusal that concerns one form field: forms show the message beside it (lib/form-action.ts, refusedField). */
+export const fieldRefusal = (status: 409 | 422, message: string, field: string) => new HttpError(status, message, { field });
 
 /**
  * Whether this request's caller is unblinded on the trial it touched, recorded by lib/auth when it

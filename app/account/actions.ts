@@ -9,7 +9,7 @@ import { changePasswordSchema, type ApiTokenFormState, type PasswordFormState, t
 import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { createApiToken, revokeApiToken } from "@/lib/auth/api-tokens";
-import { formError } from "@/lib/form-action";
+import { formError, refusedField } from "@/lib/form-action";
 
 export async function changePassword(_prev: PasswordFormState, form: FormData): Promise<PasswordFormState> {
   let user;
@@ -30,7 +30,7 @@ export async function changePassword(_prev: PasswordFormState, form: FormData): 
     }
   } catch (e) {
     if (!(e instanceof HttpError)) return formError(e);
-    const field = (e.details as { field?: string } | undefined)?.field;
+    const field = refusedField(e);
     return field ? { error: e.message, fieldErrors: { [field]: [e.message] } } : { error: e.message };
   }
   return { ok: "Your password was changed and every session of your account was signed out, this one included. Sign in again with the new password." };

@@ -36,10 +36,9 @@ import {
 import type { MeetingRow } from "@/db/types";
 import { allows, assertCapability, type TrialAccess } from "@/lib/auth";
 import { confirmSigner } from "@/lib/auth/signature";
-import { conflict, forbiddenError, HttpError, notFoundError } from "@/lib/http";
+import { conflict, fieldRefusal, forbiddenError, HttpError, notFoundError } from "@/lib/http";
 import { addMemberSchema, changeChairSchema, declarationSchema, minutesApproveSchema, minutesDraftSchema, quorumSchema, sessionAttendanceSchema } from "./schemas";
 
-const field = (status: 409 | 422, message: string, f: string) => new HttpError(status, message, { field: f });
 
 /** The member row of the caller on this trial's committee, if any. */
 async function committeeSeat(access: TrialAccess): Promise<{ committee: CommitteeMember[]; seat: CommitteeMember | undefined }> {
@@ -65,15 +64,15 @@ export async function addCommitteeMember(access: TrialAccess, raw: unknown): Pro
   assertCapability(access, "manageCommittee");
   const input = addMemberSchema.parse(raw);
   const roles = (await fetchMemberships({ trialId: access.trial.id })).filter((m) => m.userId === input.userId).map((m) => m.role);
-  if (roles.length === 0) throw field(422, "Only a member of this trial can sit on its committee.", "userId");
+  if (roles.length === 0) throw fieldRefusal(422, "Only a member of this trial can sit on its committee.", "userId");
   if (input.role === "statistician" ? !roles.includes("unblinded_statistician") : !roles.includes("dmc_member"))
-    throw field(422, input.role === "statistician" ? "The committee's statistician must hold the unblinded statistician role on this trial." : "Voting members and the chair must hold the DMC member role on this trial.", "role");
+    throw fieldRefusal(422, input.role === "statistician" ? "The committee's statistician must hold the unblinded statistician role on this trial." : "Voting members and the chair must hold the DMC member role on this trial.", "role");
   return writeTransaction(async (tx) => {
     await lockCommittee(tx, access.trial.id);
     const committee = await fetchCommittee(access.trial.id, tx);
-    if (committee.some((m) => m.userId === input.userId)) throw field(409, "That person is already on the committee.", "userId");
+    if (committee.some((m) => m.userId === input.userId)) throw fieldRefusal(409, "That person is already on the committee.", "userId");
     if (input.role === "chair" && committee.some((m) => m.role === "chair"))
-      throw field(409, "The committee already has a chair. A trial has one chair: change the chair instead.", "role");
+      throw fieldRefusal(409, "The committee already has a chair. A trial has one chair: change the chair instead.", "role");
     const id = await insertCommitteeMember(tx, { trialId: access.trial.id, userId: input.userId, role: input.role, createdBy: access.user.id });
     await appendAudit(tx, { actorUserId: access.user.id, actorEmail: access.user.email, trialId: access.trial.id, action: "committee_member_added", entityType: "committee_member", entityId: id, visibility: "open", newValues: { userId: input.userId, role: input.role } });
     return { id };
@@ -88,9 +87,9 @@ export async function changeCommitteeChair(access: TrialAccess, raw: unknown): P
     await lockCommittee(tx, access.trial.id);
     const committee = await fetchCommittee(access.trial.id, tx);
     const next = committee.find((m) => m.id === input.memberId);
-    if (!next) throw field(422, "Choose a member of this committee.", "memberId");
-    if (next.role === "chair") throw field(409, "That member already chairs the committee.", "memberId");
-    if (next.role !== "voting") throw field(422, "The independent statistician does not vote and cannot chair; choose a voting member.", "memberId");
+    if (!next) throw fieldRefusal(422, "Choose a member of this committee.", "memberId");
+    if (next.role === "chair") throw fieldRefusal(409, "That member already chairs the committee.", "memberId");
+    if (next.role !== "voting") throw fieldRefusal(422, "The independent statistician does not vote and cannot chair; choose a voting member.", "memberId");
     const former = committee.find((m) => m.role === "chair");
     // The former chair's row first: the unique index on chair_of_trial_id allows one chair at a time.
     if (former && !(await updateCommitteeRole(tx, former.id, former.rowVersion, access.trial.id, "voting"))) throw conflict("The committee changed since you opened it; nothing was saved. Reload and try again.");
@@ -147,7 +146,7 @@ export async function recordSessionAttendance(access: TrialAccess, raw: unknown,
       : [...committee.map((m) => m.userId), ...memberships.filter((m) => m.role === "unblinded_statistician").map((m) => m.userId)],
   );
   if (input.attendedIds.some((id) => !eligible.has(id)))
-    throw field(422, input.session === "closed" ? "Only committee members and the unblinded statistician attend the closed session." : "Only members of this trial can be recorded as attending.", "attendedIds");
+    throw fieldRefusal(422, input.session === "closed" ? "Only committee members and the unblinded statistician attend the closed session." : "Only members of this trial can be recorded as attending.", "attendedIds");
   const attended = new Set(input.attendedIds);
   await writeTransaction(async (tx) => {
     await tx("meetings").where({ id: meeting.id }).forUpdate().first("id");

@@ -20,11 +20,11 @@ import { fetchMemberships } from "@/db/queries/memberships";
 import { fetchAttendees, fetchMeeting, insertMeeting, recordAttendance, updateMeetingStatus } from "@/db/queries/meetings";
 import { fetchEmail, requeueFailedEmail } from "@/db/queries/emails";
 import { assertCapability, type TrialAccess } from "@/lib/auth";
-import { conflict, HttpError, notFoundError } from "@/lib/http";
+import { conflict, fieldRefusal, HttpError, notFoundError } from "@/lib/http";
 import { zonedWallTimeToUtc } from "@/lib/packets/meeting-time";
 import { attendanceSchema, emailRefSchema, scheduleMeetingSchema } from "./schemas";
 
-const field = (message: string, f: string) => new HttpError(422, message, { field: f });
+const field = (message: string, f: string) => fieldRefusal(422, message, f);
 
 // The forms carry the trial's id for the access check; the service acts on access.trial only.
 const attendanceInput = attendanceSchema.omit({ trialId: true });

@@ -4,6 +4,7 @@ import { revalidatePath } from "next/cache";
 import { ZodError } from "zod";
 import { requireTrialAccess } from "@/lib/auth";
 import { HttpError } from "@/lib/http";
+import { refusedField } from "@/lib/form-action";
 import { recordRecommendation } from "@/lib/review/record-recommendation";
 import type { RecommendationFormState } from "@/lib/review/recommendation-schema";
 
@@ -36,8 +37,7 @@ export async function recordRecommendationAction(_prev: RecommendationFormState,
       return { error: "Check the highlighted fields; nothing was signed.", fieldErrors };
     }
     if (e instanceof HttpError) {
-      const field = (e.details as { field?: string } | undefined)?.field;
-      if (field === "password") return { error: e.message, fieldErrors: { password: [e.message] } };
+      if (refusedField(e) === "password") return { error: e.message, fieldErrors: { password: [e.message] } };
       return { error: e.message };
     }
     throw e;
