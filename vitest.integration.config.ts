@@ -1,8 +1,10 @@
 import { defineConfig } from "vitest/config";
 import path from "node:path";
 
-// Integration tests run against the real MariaDB test database (CAIRN_DB_NAME=cairn_test), one
-// file at a time because they share that database. scripts/test starts MariaDB and migrates first.
+// Integration tests run against the real MariaDB, in parallel files: each worker has its own test
+// database (support/worker-database.ts: cairn_test, cairn_test_2, ...), so the files never share
+// rows. scripts/test starts MariaDB and migrates one database per worker first.
+const workers = Number(process.env.CAIRN_INTEGRATION_WORKERS ?? 2);
 export default defineConfig({
   resolve: {
     alias: {
@@ -14,7 +16,9 @@ export default defineConfig({
   test: {
     include: ["tests/integration/**/*.test.ts"],
     environment: "node",
-    fileParallelism: false,
+    setupFiles: ["tests/integration/support/worker-database.ts"],
+    maxWorkers: workers,
+    fileParallelism: workers > 1,
     testTimeout: 60_000,
     hookTimeout: 60_000,
   },

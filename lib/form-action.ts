@@ -1,7 +1,7 @@
 import "server-only";
 import { randomUUID } from "node:crypto";
 import { unstable_rethrow } from "next/navigation";
-import { flattenError, ZodError } from "zod";
+import { ZodError } from "zod";
 import { callerIsUnblinded, HttpError, isDatabaseDown, publicErrorMessage } from "./http";
 import { StatsDomainError } from "./stats/validate";
 import { errorSummary, issueSentence } from "./form-errors";
@@ -40,11 +40,12 @@ export function formError(e: unknown, options: FormErrorOptions = {}): FormState
     const field = options.fieldsBeside ? refusedField(e) : null;
     return field ? { error: CHECK_FIELDS, fieldErrors: { [field]: [e.message] } } : { error: e.message };
   }
-  if (e instanceof ZodError && options.fieldsBeside) return { error: CHECK_FIELDS, fieldErrors: flattenError(e, issueSentence).fieldErrors };
   if (e instanceof ZodError) {
+    // A form with messages beside its fields keys them by the field (a list's items under the list);
+    // otherwise by the whole path. An issue about the whole form (no path) goes under "form".
     const fieldErrors: Record<string, string[]> = {};
-    for (const issue of e.issues) (fieldErrors[issue.path.join(".") || "form"] ??= []).push(issueSentence(issue));
-    return { error: errorSummary(e.issues), fieldErrors };
+    for (const issue of e.issues) (fieldErrors[(options.fieldsBeside ? issue.path.slice(0, 1) : issue.path).join(".") || "form"] ??= []).push(issueSentence(issue));
+    return { error: options.fieldsBeside ? CHECK_FIELDS : errorSummary(e.issues), fieldErrors };
   }
   if (e instanceof StatsDomainError) return { error: publicErrorMessage(e, callerIsUnblinded()) };
   if (e instanceof WriteNotSavedError) return { error: e.message };

@@ -4,37 +4,25 @@ import { requireUser } from "@/lib/auth";
 import { changeOwnPassword } from "@/lib/auth/accounts";
 import { requestAddress } from "@/lib/auth/client-address";
 import { deliverWithRetries, ensureMailWorker } from "@/lib/mail/delivery";
-import { HttpError } from "@/lib/http";
 import { changePasswordSchema, type ApiTokenFormState, type PasswordFormState, type RevokeFormState } from "./schemas";
 import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { createApiToken, revokeApiToken } from "@/lib/auth/api-tokens";
-import { formError, refusedField } from "@/lib/form-action";
+import { formAction, formError } from "@/lib/form-action";
 
-export async function changePassword(_prev: PasswordFormState, form: FormData): Promise<PasswordFormState> {
-  let user;
+/** The owner's own password change; a refusal is shown beside the field it concerns. */
+export const changePassword = formAction(async (_prev: PasswordFormState, form: FormData): Promise<PasswordFormState> => {
+  const user = await requireUser();
+  const { currentPassword, newPassword } = changePasswordSchema.parse(Object.fromEntries(form));
+  const { emailId } = await changeOwnPassword(user, currentPassword, newPassword, await requestAddress());
+  ensureMailWorker();
   try {
-    user = await requireUser();
-  } catch (e) {
-    return formError(e);
-  }
-  const parsed = changePasswordSchema.safeParse(Object.fromEntries(form));
-  if (!parsed.success) return { error: "Check the highlighted fields.", fieldErrors: parsed.error.flatten().fieldErrors };
-  try {
-    const { emailId } = await changeOwnPassword(user, parsed.data.currentPassword, parsed.data.newPassword, await requestAddress());
-    ensureMailWorker();
-    try {
-      after(() => deliverWithRetries([emailId]).then(() => undefined, (e) => console.error("[cairn] password notice delivery stopped; the sweep retries", e)));
-    } catch {
-      // Outside a request (tests): the mail worker's sweep sends it.
-    }
-  } catch (e) {
-    if (!(e instanceof HttpError)) return formError(e);
-    const field = refusedField(e);
-    return field ? { error: e.message, fieldErrors: { [field]: [e.message] } } : { error: e.message };
+    after(() => deliverWithRetries([emailId]).then(() => undefined, (e) => console.error("[cairn] password notice delivery stopped; the sweep retries", e)));
+  } catch {
+    // Outside a request (tests): the mail worker's sweep sends it.
   }
   return { ok: "Your password was changed and every session of your account was signed out, this one included. Sign in again with the new password." };
-}
+}, { fieldsBeside: true });
 
 /** Makes a personal API token for one of the account's roles; the secret is answered once, never stored. */
 export async function createApiTokenAction(_prev: ApiTokenFormState, form: FormData): Promise<ApiTokenFormState> {

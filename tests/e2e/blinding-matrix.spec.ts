@@ -17,7 +17,7 @@ import path from "node:path";
 import { ACCOUNTS } from "./support/accounts";
 import { ACTION_REFUSAL, AUTHORIZATION_MATRIX, BLINDED_ROLES, ROLES, findOutcomeData, type MatrixRole, type MatrixRow } from "./support/authorization-matrix";
 import { FIXTURE_CLOSED, OUTSIDER } from "./support/matrix-fixture-data";
-import { matrixIds, type MatrixIds, type TrialIds, type TrialKey } from "./support/matrix-ids";
+import { fillPath, matrixIds, type MatrixIds, type TrialIds, type TrialKey } from "./support/matrix-ids";
 
 const TRIAL_KEYS: TrialKey[] = ["single", "two", "fixture"];
 const ROOT = path.resolve(import.meta.dirname, "../..");
@@ -37,16 +37,6 @@ function actionIds(): Map<string, string> {
 
 // React's own client-side encoding of action arguments, as the browser sends them: (previous state, form).
 const { encodeReply } = createRequire(import.meta.url)("next/dist/compiled/react-server-dom-webpack/client.node.js") as { encodeReply: (v: unknown) => Promise<FormData | string> };
-
-function fill(template: string, t: TrialIds | undefined): string | undefined {
-  let unresolved = false;
-  const out = template.replace(/\{(\w+)\}/g, (_, k: string) => {
-    const v = t?.[k as keyof TrialIds];
-    if (v === undefined) unresolved = true;
-    return String(v);
-  });
-  return unresolved ? undefined : out;
-}
 
 const contexts = new Map<MatrixRole, APIRequestContext>();
 let actions = new Map<string, string>();
@@ -89,7 +79,7 @@ async function requestCell(row: MatrixRow, url: string, ctx: APIRequestContext, 
     const id = actions.get(row.action!);
     expect(id, `action id of ${row.action} in the build manifest`).toBeTruthy();
     const form = new FormData();
-    for (const [k, v] of Object.entries(row.form ?? {})) form.set(k, fill(v, t) ?? "");
+    for (const [k, v] of Object.entries(row.form ?? {})) form.set(k, fillPath(v, t) ?? "");
     const encoded = await encodeReply([undefined, form]);
     // Field order matters (the root field "0" comes last, after the form's fields, as a browser sends it):
     // pass the FormData itself, since a plain object would put the integer key "0" first.
@@ -107,7 +97,7 @@ for (const row of AUTHORIZATION_MATRIX) {
     test(label, async ({ baseURL }) => {
       test.fixme(!!row.pending, "This page or route is not built yet.");
       const t = key ? ids[key] : undefined;
-      const url = fill(row.path, t);
+      const url = fillPath(row.path, t);
       // Meeting and packet placeholders exist on the fixture trial only.
       test.skip(url === undefined, "no such record on this trial");
       for (const role of ROLES) {
@@ -171,7 +161,7 @@ for (const row of AUTHORIZATION_MATRIX) {
 test("every row runs on at least one trial (no row is skipped everywhere)", () => {
   for (const row of AUTHORIZATION_MATRIX) {
     const keys = row.path.includes("{trial}") ? TRIAL_KEYS : [undefined];
-    expect(keys.some((k) => fill(row.path, k ? ids[k] : undefined) !== undefined), row.path).toBe(true);
+    expect(keys.some((k) => fillPath(row.path, k ? ids[k] : undefined) !== undefined), row.path).toBe(true);
   }
 });
 

@@ -23,7 +23,7 @@ import { expect, test, type Browser, type BrowserContext, type Page } from "@pla
 import { ACCOUNTS } from "./support/accounts";
 import { AUTHORIZATION_MATRIX, ROLES, type MatrixRole } from "./support/authorization-matrix";
 import { OUTSIDER } from "./support/matrix-fixture-data";
-import { matrixIds, type TrialIds } from "./support/matrix-ids";
+import { fillPath, matrixIds } from "./support/matrix-ids";
 import { SURFACE_CHECKS } from "./support/surface-checks";
 
 test.describe.configure({ mode: "parallel" });
@@ -46,16 +46,6 @@ async function contextFor(browser: Browser, baseURL: string, role: MatrixRole): 
   const ctx = await browser.newContext({ baseURL, viewport: DESKTOP });
   if (role !== "anonymous") await signInto(ctx, baseURL, role);
   return ctx;
-}
-
-function fill(template: string, t: TrialIds): string | undefined {
-  let unresolved = false;
-  const out = template.replace(/\{(\w+)\}/g, (_, k: string) => {
-    const v = t[k as keyof TrialIds];
-    if (v === undefined) unresolved = true;
-    return String(v);
-  });
-  return unresolved ? undefined : out;
 }
 
 /**
@@ -155,7 +145,7 @@ for (const role of ROLES) {
     if (templates.length === 0) continue;
     test(`every page ${who} ${PLACE_WORDS[place]}: no serious or critical WCAG 2.2 AA violation, charts described, reads well at 1440 and 390 px, reflows at 320 px`, async ({ browser, baseURL }) => {
       const ids = place === "site" ? null : matrixIds()[place];
-      const paths = templates.map((t) => ({ template: t, path: ids ? fill(t, ids) : t })).filter((p): p is { template: string; path: string } => p.path !== undefined);
+      const paths = templates.map((t) => ({ template: t, path: ids ? fillPath(t, ids) : t })).filter((p): p is { template: string; path: string } => p.path !== undefined);
       expect(paths.length, `pages for ${role} ${PLACE_WORDS[place]}`).toBeGreaterThan(0);
       // A bound on a hang, not a latency check: each visit waits for its lazy parts on a loaded machine.
       test.setTimeout(120_000 + paths.length * 60_000);

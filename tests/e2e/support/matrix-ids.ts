@@ -14,3 +14,14 @@ export function matrixIds(): MatrixIds {
   if (!raw) throw new Error(`${MATRIX_IDS_ENV} is not set: the browser tests' global set-up (tests/e2e/support/global-setup.ts) did not run`);
   return JSON.parse(raw) as MatrixIds;
 }
+
+/** A matrix path template ("/trials/{trial}/review/{analysis}") with a trial's ids put in; undefined when one is missing. */
+export function fillPath(template: string, t: TrialIds | undefined): string | undefined {
+  let unresolved = false;
+  const out = template.replace(/\{(\w+)\}/g, (_, k: string) => {
+    const v = t?.[k as keyof TrialIds];
+    if (v === undefined) unresolved = true;
+    return String(v);
+  });
+  return unresolved ? undefined : out;
+}

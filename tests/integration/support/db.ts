@@ -2,6 +2,10 @@
  * Test database helpers. The tests run as the application's account (like the app) through
  * db/knex; resetting the schema needs the owner account, which may drop tables.
  */
+import { createHash } from "node:crypto";
+import { existsSync, readdirSync, readFileSync, renameSync, writeFileSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
 import knexFactory, { type Knex } from "knex";
 import bcrypt from "bcryptjs";
 import config from "@/knexfile";
@@ -21,12 +25,67 @@ if (!process.env.CAIRN_DB_NAME?.startsWith("cairn_test")) {
   throw new Error("Integration tests must run against CAIRN_DB_NAME=cairn_test (use scripts/test).");
 }
 
-/** Drops every table and migrates again: a clean, empty schema. */
+/**
+ * A fingerprint of the schema as the database reports it: every column, index, constraint, trigger,
+ * view and routine. Two databases with the same fingerprint have the same schema, whatever their data.
+ */
+async function schemaFingerprint(owner: Knex): Promise<string> {
+  const queries = [
+    "SELECT TABLE_NAME, COLUMN_NAME, ORDINAL_POSITION, COLUMN_TYPE, IS_NULLABLE, COLUMN_DEFAULT, EXTRA, COLLATION_NAME, GENERATION_EXPRESSION FROM information_schema.COLUMNS WHERE TABLE_SCHEMA = DATABASE() ORDER BY TABLE_NAME, ORDINAL_POSITION",
+    "SELECT TABLE_NAME, INDEX_NAME, SEQ_IN_INDEX, COLUMN_NAME, NON_UNIQUE FROM information_schema.STATISTICS WHERE TABLE_SCHEMA = DATABASE() ORDER BY TABLE_NAME, INDEX_NAME, SEQ_IN_INDEX",
+    "SELECT TABLE_NAME, CONSTRAINT_NAME, CONSTRAINT_TYPE FROM information_schema.TABLE_CONSTRAINTS WHERE CONSTRAINT_SCHEMA = DATABASE() ORDER BY TABLE_NAME, CONSTRAINT_NAME",
+    "SELECT TABLE_NAME, CONSTRAINT_NAME, CHECK_CLAUSE FROM information_schema.CHECK_CONSTRAINTS WHERE CONSTRAINT_SCHEMA = DATABASE() ORDER BY TABLE_NAME, CONSTRAINT_NAME",
+    "SELECT TABLE_NAME, CONSTRAINT_NAME, REFERENCED_TABLE_NAME, UPDATE_RULE, DELETE_RULE FROM information_schema.REFERENTIAL_CONSTRAINTS WHERE CONSTRAINT_SCHEMA = DATABASE() ORDER BY TABLE_NAME, CONSTRAINT_NAME",
+    "SELECT TRIGGER_NAME, EVENT_MANIPULATION, EVENT_OBJECT_TABLE, ACTION_TIMING, ACTION_STATEMENT FROM information_schema.TRIGGERS WHERE TRIGGER_SCHEMA = DATABASE() ORDER BY TRIGGER_NAME",
+    "SELECT TABLE_NAME, VIEW_DEFINITION FROM information_schema.VIEWS WHERE TABLE_SCHEMA = DATABASE() ORDER BY TABLE_NAME",
+    "SELECT ROUTINE_NAME, ROUTINE_TYPE, ROUTINE_DEFINITION FROM information_schema.ROUTINES WHERE ROUTINE_SCHEMA = DATABASE() ORDER BY ROUTINE_NAME",
+  ];
+  // View definitions name their database: left out, so every test database has the same fingerprint.
+  const [[{ name }]] = (await owner.raw("SELECT DATABASE() AS name")) as [[{ name: string }]];
+  const hash = createHash("sha256");
+  for (const q of queries) hash.update(JSON.stringify((await owner.raw(q))[0]).split(`\`${name}\``).join("`{database}`")).update("\n");
+  return hash.digest("hex");
+}
+
+/**
+ * Where the fingerprint of a freshly migrated schema is kept between test files and workers: one
+ * file per set of migration files (their names and contents), so a changed migration never meets a
+ * stale fingerprint. It is written only right after a full migration.
+ */
+function fingerprintFile(): string {
+  const dir = path.join(import.meta.dirname, "../../../db/migrations");
+  const hash = createHash("sha256");
+  for (const f of readdirSync(dir).sort()) hash.update(f).update(readFileSync(path.join(dir, f)));
+  return path.join(os.tmpdir(), `cairn-test-schema-${hash.digest("hex").slice(0, 16)}.txt`);
+}
+
+/**
+ * A clean, empty schema at the latest migration. When the schema is already exactly the freshly
+ * migrated one (no pending migration, the same fingerprint), every table is emptied (TRUNCATE, which
+ * also restarts the ids at 1), in well under a second. Otherwise (a test went down the migrations,
+ * or dropped a trigger) every table is dropped and migrated again, which takes seconds.
+ */
 export async function resetDatabase(): Promise<void> {
-  const owner = ownerKnex();
+  // One connection, so the foreign-key switch holds for every TRUNCATE.
+  const owner = knexFactory({ ...config, connection: databaseConnection(true), pool: { min: 1, max: 1 } });
   try {
+    const file = fingerprintFile();
+    const [, pending] = (await owner.migrate.list()) as [unknown[], unknown[]];
+    const known = existsSync(file) ? readFileSync(file, "utf8") : null;
+    if (known && pending.length === 0 && (await schemaFingerprint(owner)) === known) {
+      const [rows] = await owner.raw("SELECT TABLE_NAME AS name FROM information_schema.TABLES WHERE TABLE_SCHEMA = DATABASE() AND TABLE_TYPE = 'BASE TABLE' AND TABLE_NAME NOT LIKE 'knex\\_migrations%'");
+      await owner.raw("SET FOREIGN_KEY_CHECKS = 0");
+      for (const { name } of rows as Array<{ name: string }>) await owner.raw("TRUNCATE TABLE ??", [name]);
+      await owner.raw("SET FOREIGN_KEY_CHECKS = 1");
+      return;
+    }
     await owner.migrate.rollback(undefined, true);
     await owner.migrate.latest();
+    const fresh = await schemaFingerprint(owner);
+    // Written whole, then renamed: a parallel reader never sees half a fingerprint.
+    const tmp = `${file}.${process.pid}`;
+    writeFileSync(tmp, fresh);
+    renameSync(tmp, file);
   } finally {
     await owner.destroy();
   }
@@ -85,7 +144,7 @@ export async function killMidTransaction(write: () => Promise<unknown>, midway: 
     // Find the blocked connection (the same account may see and kill its own threads).
     let victim: number | undefined;
     for (let i = 0; i < 200 && victim === undefined; i++) {
-      const [procs] = await db.raw("SELECT ID FROM information_schema.PROCESSLIST WHERE INFO LIKE '%audit_chain_head%for update%' AND ID <> CONNECTION_ID()");
+      const [procs] = await db.raw("SELECT ID FROM information_schema.PROCESSLIST WHERE INFO LIKE '%audit_chain_head%for update%' AND DB = DATABASE() AND ID <> CONNECTION_ID()");
       victim = (procs as Array<{ ID: number }>)[0]?.ID;
       if (victim === undefined) await new Promise((r) => setTimeout(r, 50));
     }
