@@ -19,11 +19,14 @@ export default defineConfig({
   globalSetup: "./tests/e2e/support/global-setup.ts",
   // Two lanes side by side: the flows change the seeded data (and sign people out) and run one at a
   // time, in file order; the reads (every page and route as every role, nothing changed) run beside
-  // them and spread over whatever worker is free. Both lanes hold on a two-core machine (docs: DEVELOPERS.md, "Browser tests").
-  workers: Number(process.env.CAIRN_E2E_WORKERS ?? 2),
+  // them and spread over whatever worker is free (docs: DEVELOPERS.md, "Browser tests").
+  // Three workers: the flows hold one, the reads two. The browser tests wait on the server and on the page far
+  // more than they compute (about one core busy on average over a run), so a third worker shortens
+  // the run on two cores.
+  workers: Number(process.env.CAIRN_E2E_WORKERS ?? 3),
   projects: [
     // Flows first: the scheduler hands a free worker the first queued job whose project is under its
-    // limit, so the flows' next file is always taken at once and the reads fill the other worker.
+    // limit, so the flows' next file is always taken at once and the reads fill the other workers.
     { name: "flows", testIgnore: READS, fullyParallel: false, workers: 1 },
     { name: "reads", testMatch: READS, fullyParallel: true },
   ],
