@@ -86,9 +86,15 @@ async function resizeTo(page: Page, size: { width: number; height: number }) {
   await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
 }
 
-/** Serious and critical violations as readable lines: rule, help, and each element's selector. */
+/**
+ * Serious and critical violations as readable lines: rule, help, and each element's selector.
+ * Chart drawings are left out: each is hidden from assistive technology behind its title, summary and
+ * numbers table (checked in chartProblems, with "nothing focusable inside"), and its colours are the
+ * palette's (lib/charts/palette.test.ts checks their contrast); their thousands of SVG nodes made up
+ * most of axe's time on chart pages. Only violations are collected (axe's resultTypes), not every pass.
+ */
 async function axeViolations(page: Page): Promise<string[]> {
-  const result = await new AxeBuilder({ page }).withTags(TAGS).analyze();
+  const result = await new AxeBuilder({ page }).withTags(TAGS).exclude("figure[data-chart] .js-plotly-plot").options({ resultTypes: ["violations"] }).analyze();
   return result.violations
     .filter((v) => v.impact === "serious" || v.impact === "critical")
     .flatMap((v) => v.nodes.map((n) => `${v.id} (${v.impact}): ${v.help} at ${n.target.join(" ")}${n.failureSummary ? ` [${n.failureSummary.replace(/\s+/g, " ").slice(0, 200)}]` : ""}`));
@@ -110,6 +116,9 @@ async function chartProblems(page: Page): Promise<{ charts: number; problems: st
     if ((await chart.locator("[data-chart-numbers] summary", { hasText: "Show the numbers" }).count()) !== 1) problems.push(`chart "${title}": no "Show the numbers" disclosure`);
     if ((await chart.locator("[data-chart-numbers] table tbody tr").count()) < 1) problems.push(`chart "${title}": the numbers table is empty`);
     if ((await chart.locator('[aria-hidden="true"] .js-plotly-plot').count()) !== 1) problems.push(`chart "${title}": the drawing is not hidden from assistive technology`);
+    // What is hidden from assistive technology must not take keyboard focus either (WCAG 4.1.2; axe's aria-hidden-focus).
+    const focusable = await chart.locator('[aria-hidden="true"]').locator('a[href], button, input, select, textarea, [tabindex]:not([tabindex="-1"]), [contenteditable="true"]').count();
+    if (focusable > 0) problems.push(`chart "${title}": ${focusable} focusable element(s) inside the hidden drawing`);
   }
   return { charts: n, problems };
 }
