@@ -14,7 +14,7 @@ import { expect, test, request as playwrightRequest, type APIRequestContext, typ
 import { readFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import path from "node:path";
-import { ACCOUNTS } from "./support/accounts";
+import { ACCOUNTS, credentialsSignIn } from "./support/accounts";
 import { ACTION_REFUSAL, AUTHORIZATION_MATRIX, BLINDED_ROLES, ROLES, findOutcomeData, type MatrixRole, type MatrixRow } from "./support/authorization-matrix";
 import { FIXTURE_CLOSED, OUTSIDER } from "./support/matrix-fixture-data";
 import { fillPath, matrixIds, type MatrixIds, type TrialIds, type TrialKey } from "./support/matrix-ids";
@@ -43,10 +43,7 @@ let actions = new Map<string, string>();
 
 async function signedInContext(baseURL: string, email: string, password: string): Promise<APIRequestContext> {
   const ctx = await playwrightRequest.newContext({ baseURL });
-  const { csrfToken } = (await (await ctx.get("/api/auth/csrf")).json()) as { csrfToken: string };
-  const res = await ctx.post("/api/auth/callback/credentials", { form: { email, password, csrfToken, json: "true", callbackUrl: "/trials" }, maxRedirects: 0 });
-  const { url } = (await res.json()) as { url: string };
-  expect(new URL(url, baseURL).searchParams.get("error"), `sign-in of ${email}`).toBeNull();
+  expect(await credentialsSignIn(ctx, email, password), `sign-in of ${email}`).toBeNull();
   return ctx;
 }
 

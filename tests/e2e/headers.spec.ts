@@ -6,12 +6,11 @@
  */
 import { expect, test, type APIRequestContext } from "@playwright/test";
 import { readFileSync } from "node:fs";
-import { ACCOUNTS } from "./support/accounts";
+import { ACCOUNTS, credentialsSignIn } from "./support/accounts";
 import { API_CONTENT_SECURITY_POLICY } from "../../lib/security-headers";
 
 async function signInApi(request: APIRequestContext, who: keyof typeof ACCOUNTS) {
-  const { csrfToken } = (await (await request.get("/api/auth/csrf")).json()) as { csrfToken: string };
-  await request.post("/api/auth/callback/credentials", { form: { email: ACCOUNTS[who].email, password: ACCOUNTS[who].password, csrfToken, json: "true", callbackUrl: "/trials" }, maxRedirects: 0 });
+  await credentialsSignIn(request, ACCOUNTS[who].email, ACCOUNTS[who].password);
 }
 
 /** CRN-201 and its look 2 (locked, with counts), found as the DMC member finds them. */

@@ -20,7 +20,7 @@
  */
 import AxeBuilder from "@axe-core/playwright";
 import { expect, test, type Browser, type BrowserContext, type Page } from "@playwright/test";
-import { ACCOUNTS } from "./support/accounts";
+import { ACCOUNTS, credentialsSignIn } from "./support/accounts";
 import { AUTHORIZATION_MATRIX, ROLES, type MatrixRole } from "./support/authorization-matrix";
 import { OUTSIDER } from "./support/matrix-fixture-data";
 import { fillPath, matrixIds } from "./support/matrix-ids";
@@ -34,17 +34,14 @@ const PHONE = { width: 390, height: 844 };
 const REFLOW = { width: 320, height: 800 };
 
 /** Signs a browser context in through the credentials endpoint (its request shares the context's cookies). */
-async function signInto(ctx: BrowserContext, baseURL: string, role: MatrixRole) {
+async function signInto(ctx: BrowserContext, role: MatrixRole) {
   const who = role === "outsider" ? OUTSIDER : ACCOUNTS[role as Exclude<MatrixRole, "outsider" | "anonymous">];
-  const { csrfToken } = (await (await ctx.request.get("/api/auth/csrf")).json()) as { csrfToken: string };
-  const res = await ctx.request.post("/api/auth/callback/credentials", { form: { email: who.email, password: who.password, csrfToken, json: "true", callbackUrl: "/trials" }, maxRedirects: 0 });
-  const { url } = (await res.json()) as { url: string };
-  expect(new URL(url, baseURL).searchParams.get("error"), `sign-in of ${who.email}`).toBeNull();
+  expect(await credentialsSignIn(ctx.request, who.email, who.password), `sign-in of ${who.email}`).toBeNull();
 }
 
 async function contextFor(browser: Browser, baseURL: string, role: MatrixRole): Promise<BrowserContext> {
   const ctx = await browser.newContext({ baseURL, viewport: DESKTOP });
-  if (role !== "anonymous") await signInto(ctx, baseURL, role);
+  if (role !== "anonymous") await signInto(ctx, role);
   return ctx;
 }
 
@@ -209,7 +206,7 @@ for (const role of ROLES) {
             thrown = e;
           }
           if (role !== "anonymous" && attempt < 4 && (await sessionEnded(ctx))) {
-            await signInto(ctx, baseURL!, role);
+            await signInto(ctx, role);
             continue;
           }
           if (thrown) throw thrown;

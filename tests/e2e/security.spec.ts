@@ -4,22 +4,15 @@
  * password guessing (sign-in throttled per account and per address).
  */
 import { expect, test, type APIRequestContext } from "@playwright/test";
-import { ACCOUNTS, signIn } from "./support/accounts";
+import { ACCOUNTS, credentialsSignIn, signIn } from "./support/accounts";
 
 /**
  * One sign-in attempt through next-auth's credentials callback, from a given client address
  * (documentation range 203.0.113.0/24, so no other test shares its counter). Returns the error
  * the sign-in form would show, or null when the attempt signed in.
  */
-async function attemptSignIn(request: APIRequestContext, address: string, email: string, password: string): Promise<string | null> {
-  const { csrfToken } = (await (await request.get("/api/auth/csrf")).json()) as { csrfToken: string };
-  const res = await request.post("/api/auth/callback/credentials", {
-    headers: { "x-forwarded-for": address },
-    form: { email, password, csrfToken, json: "true", callbackUrl: "/trials" },
-    maxRedirects: 0,
-  });
-  const { url } = (await res.json()) as { url: string };
-  return new URL(url, "http://localhost").searchParams.get("error");
+function attemptSignIn(request: APIRequestContext, address: string, email: string, password: string): Promise<string | null> {
+  return credentialsSignIn(request, email, password, { "x-forwarded-for": address });
 }
 
 const HOSTILE = `<img src=x onerror="window.__pwned=1">Trial "quoted" & <b>bold</b>`;

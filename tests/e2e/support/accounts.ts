@@ -1,4 +1,4 @@
-import { expect, type Page } from "@playwright/test";
+import { expect, type APIRequestContext, type Page } from "@playwright/test";
 
 /** The demo accounts of db/seeds/demo.ts (invented people). */
 export const ACCOUNTS = {
@@ -17,4 +17,15 @@ export async function signIn(page: Page, who: AccountKey) {
   await page.getByLabel("Password").fill(a.password);
   await page.getByRole("button", { name: "Sign in" }).click();
   await expect(page.getByTestId("signed-in-as")).toHaveText(a.name);
+}
+
+/**
+ * One sign-in through next-auth's credentials endpoint, as the sign-in form posts it, on a request
+ * context (its cookies are then signed in). Returns the error the form would show, or null.
+ */
+export async function credentialsSignIn(request: APIRequestContext, email: string, password: string, headers?: Record<string, string>): Promise<string | null> {
+  const { csrfToken } = (await (await request.get("/api/auth/csrf")).json()) as { csrfToken: string };
+  const res = await request.post("/api/auth/callback/credentials", { headers, form: { email, password, csrfToken, json: "true", callbackUrl: "/trials" }, maxRedirects: 0 });
+  const { url } = (await res.json()) as { url: string };
+  return new URL(url, "http://localhost").searchParams.get("error");
 }

@@ -17,8 +17,8 @@ import { insertTrial } from "@/db/queries/trials";
 import { insertMembership } from "@/db/queries/memberships";
 import type { PublicUser, TrialRole } from "@/db/types";
 
-export function ownerKnex(): Knex {
-  return knexFactory({ ...config, connection: databaseConnection(true) });
+export function ownerKnex(pool?: Knex.PoolConfig): Knex {
+  return knexFactory({ ...config, connection: databaseConnection(true), ...(pool ? { pool } : {}) });
 }
 
 if (!process.env.CAIRN_DB_NAME?.startsWith("cairn_test")) {
@@ -69,7 +69,7 @@ function fingerprintFile(): string {
  */
 export async function resetDatabase(): Promise<void> {
   // One connection, so the foreign-key switch holds for every statement after it.
-  const owner = knexFactory({ ...config, connection: databaseConnection(true), pool: { min: 1, max: 1 } });
+  const owner = ownerKnex({ min: 1, max: 1 });
   const file = fingerprintFile();
   try {
     const [, pending] = (await owner.migrate.list()) as [unknown[], unknown[]];
